@@ -1,0 +1,49 @@
+namespace IdentityQueue.Algebra;
+
+/// <summary>
+/// Every input limit, by name. Exceeding one makes that candidate invalid or undecided with a message
+/// naming the setting; it never crashes or hangs the worker. Immutable; share freely.
+/// </summary>
+public sealed record Limits
+{
+    public static readonly Limits Default = new();
+
+    /// <summary>Longest catalogue line, in characters.</summary>
+    public int MaxLineLength { get; init; } = 1 << 20;
+
+    /// <summary>Deepest nesting of parentheses, brackets and operators in one expression.</summary>
+    public int MaxNestingDepth { get; init; } = 500;
+
+    /// <summary>Most instances one family line may expand into.</summary>
+    public int MaxFamilySize { get; init; } = 10_000;
+
+    /// <summary>Most instructions in one compiled identity (the expression size after sums, products and matrices are expanded).</summary>
+    public int MaxProgramSize { get; init; } = 4_000_000;
+
+    /// <summary>Largest exponent allowed in <c>^</c> once parameters are fixed.</summary>
+    public System.Numerics.BigInteger MaxExponent { get; init; } = System.Numerics.BigInteger.Pow(2, 64);
+
+    /// <summary>Largest integer parameter value (range ends, indices, exponents before the exponent check), in bits.</summary>
+    public int MaxParameterBits { get; init; } = 4096;
+
+    /// <summary>Largest n in <c>fact(n)</c>, <c>qfact(n, q)</c>, <c>qint(n, q)</c>, <c>qbinom(n, k, q)</c> and <c>binom(a, k)</c>'s k.</summary>
+    public int MaxFunctionArgument { get; init; } = 100_000;
+
+    /// <summary>Largest order of a matrix whose permanent is evaluated (Ryser's formula costs 2^n·n per point).</summary>
+    public int MaxPermanentOrder { get; init; } = 30;
+
+    /// <summary>Largest matrix order (rows or columns).</summary>
+    public int MaxMatrixOrder { get; init; } = 2_000;
+
+    /// <summary>Largest field used for a trial, in bits; a degree bound that needs more leaves the candidate undecided.</summary>
+    public int MaxFieldBits { get; init; } = 4096;
+
+    /// <summary>Most trials for one candidate (including resampled undefined points).</summary>
+    public int MaxTrials { get; init; } = 200;
+
+    /// <summary>Wall-clock time allowed to one candidate's screening.</summary>
+    public TimeSpan TimePerCandidate { get; init; } = TimeSpan.FromSeconds(60);
+
+    /// <summary>Largest estimated size, in bits, of an exact rational evaluation used to certify a refutation.</summary>
+    public long MaxCertifyBits { get; init; } = 1 << 22;
+}
