@@ -1,0 +1,99 @@
+using System.Numerics;
+using IdentityQueue.Algebra.Syntax;
+
+namespace IdentityQueue.Algebra.Tests.Reference;
+
+/// <summary>
+/// Evaluates integer parameter expressions exactly (exponents, range ends, indices, binom's k, fact's n):
+/// integer literals, names bound in the environment, unary minus, <c>+ - *</c>, <c>/</c> when the division is
+/// exact, <c>^</c> with a non-negative exponent, <c>fact(n)</c> and <c>binom(n, k)</c> on integers.
+/// Anything else (a free variable, a bound form, a matrix, another function) throws <see cref="ReferenceException"/>.
+/// </summary>
+public static class ParameterEvaluator
+{
+    public static BigInteger Evaluate(Expr expression, IReadOnlyDictionary<string, BigInteger> environment) =>
+        expression.Accept(new Visitor(environment));
+
+    /// <summary>Evaluates and checks that the value fits in an int within [min, max].</summary>
+    public static int EvaluateInt(Expr expression, IReadOnlyDictionary<string, BigInteger> environment, int min, int max, string what)
+    {
+        var value = Evaluate(expression, environment);
+        if (value < min || value > max)
+            throw new ReferenceException($"{what} must lie in {min}..{max} but is {value} (at {expression.Position})");
+        return (int)value;
+    }
+
+    /// <summary>n! for 0 ≤ n ≤ <see cref="ReferenceLimits.MaxFunctionArgument"/>.</summary>
+    public static BigInteger Factorial(BigInteger n)
+    {
+        if (n.Sign < 0) throw new ReferenceException($"fact needs a non-negative argument, not {n}");
+        if (n > ReferenceLimits.MaxFunctionArgument) throw new ReferenceException($"fact({n}) is beyond the reference limit {ReferenceLimits.MaxFunctionArgument}");
+        var result = BigInteger.One;
+        for (var i = 2; i <= (int)n; i++) result *= i;
+        return result;
+    }
+
+    /// <summary>binom(n, k) = n(n−1)…(n−k+1)/k! for any integer n; 0 for k &lt; 0.</summary>
+    public static BigInteger Binomial(BigInteger n, BigInteger k)
+    {
+        if (k.Sign < 0) return BigInteger.Zero;
+        if (k > ReferenceLimits.MaxFunctionArgument) throw new ReferenceException($"binom's k = {k} is beyond the reference limit {ReferenceLimits.MaxFunctionArgument}");
+        var numerator = BigInteger.One;
+        for (var i = 0; i < (int)k; i++) numerator *= n - i;
+        return numerator / Factorial(k);
+    }
+
+    private sealed class Visitor(IReadOnlyDictionary<string, BigInteger> environment) : IExprVisitor<BigInteger>
+    {
+        public BigInteger VisitInteger(IntegerLiteral node) => node.Value;
+
+        public BigInteger VisitName(NameRef node) =>
+            environment.TryGetValue(node.Name, out var value)
+                ? value
+                : throw new ReferenceException($"'{node.Name}' at {node.Position} is not an integer parameter here (an integer parameter expression is required)");
+
+        public BigInteger VisitIndexed(IndexedName node) =>
+            throw new ReferenceException($"the indexed variable {node.Name}[...] at {node.Position} cannot appear in an integer parameter expression");
+
+        public BigInteger VisitUnary(UnaryExpr node) => -node.Operand.Accept(this);
+
+        public BigInteger VisitBinary(BinaryExpr node)
+        {
+            var a = node.Left.Accept(this);
+            var b = node.Right.Accept(this);
+            switch (node.Operator)
+            {
+                case BinaryOperator.Add: return a + b;
+                case BinaryOperator.Subtract: return a - b;
+                case BinaryOperator.Multiply: return a * b;
+                case BinaryOperator.Divide:
+                    if (b.IsZero) throw new ReferenceException($"division by zero in an integer parameter expression at {node.OperatorPosition}");
+                    var q = BigInteger.DivRem(a, b, out var r);
+                    if (!r.IsZero) throw new ReferenceException($"{a}/{b} at {node.OperatorPosition} is not an integer");
+                    return q;
+                case BinaryOperator.Power:
+                    if (b.Sign < 0) throw new ReferenceException($"negative exponent {b} in an integer parameter expression at {node.OperatorPosition}");
+                    if (b > ReferenceLimits.MaxExponent) throw new ReferenceException($"exponent {b} is beyond the reference limit {ReferenceLimits.MaxExponent}");
+                    return BigInteger.Pow(a, (int)b);
+                default:
+                    throw new ReferenceException($"unknown operator {node.Operator}");
+            }
+        }
+
+        public BigInteger VisitCall(CallExpr node)
+        {
+            if (node.Function == Builtins.Fact && node.Arguments.Count == 1) return Factorial(node.Arguments[0].Accept(this));
+            if (node.Function == Builtins.Binom && node.Arguments.Count == 2) return Binomial(node.Arguments[0].Accept(this), node.Arguments[1].Accept(this));
+            throw new ReferenceException($"{node.Function}(...) at {node.Position} cannot appear in an integer parameter expression (only fact and binom can)");
+        }
+
+        public BigInteger VisitBound(BoundExpr node) =>
+            throw new ReferenceException($"a {(node.Kind == BoundKind.Sum ? "sum" : "prod")} at {node.Position} cannot appear in an integer parameter expression");
+
+        public BigInteger VisitMatrixComprehension(MatrixComprehension node) =>
+            throw new ReferenceException($"a matrix at {node.Position} cannot appear in an integer parameter expression");
+
+        public BigInteger VisitMatrixLiteral(MatrixLiteral node) =>
+            throw new ReferenceException($"a matrix at {node.Position} cannot appear in an integer parameter expression");
+    }
+}
