@@ -1,0 +1,89 @@
+namespace IdentityQueue.Algebra.Syntax;
+
+/// <summary>
+/// Parses catalogue text (SPEC §3): <c>[label:] LHS = RHS [over FIELD] [for NAME in A..B {, NAME in A..B}]</c>.
+/// Stateless and thread-safe. Bad input never throws: it gives a failed <see cref="ParseResult{T}"/> whose
+/// <see cref="Diagnostic"/> has a 1-based line and column (columns count the chars of the given text) and a message
+/// from <see cref="SyntaxMessages"/>. The limits of <see cref="Limits"/> are checked before the work they bound:
+/// a line longer than <see cref="Limits.MaxLineLength"/> is refused before it is read, and nesting deeper than
+/// <see cref="Limits.MaxNestingDepth"/> is refused when it is reached. Every tree returned has height at most
+/// MaxNestingDepth, so recursive walks of it are safe.
+/// </summary>
+public static class CatalogueParser
+{
+    /// <summary>
+    /// One line of a catalogue file. A blank or comment-only line gives a successful result with a null value.
+    /// The entry's <see cref="IdentityEntry.Text"/> is <paramref name="text"/> and its line is <paramref name="lineNumber"/>.
+    /// </summary>
+    public static ParseResult<IdentityEntry?> ParseLine(string text, int lineNumber, Limits? limits = null)
+    {
+        ArgumentNullException.ThrowIfNull(text);
+        limits ??= Limits.Default;
+        if (text.Length > limits.MaxLineLength)
+            return ParseResult<IdentityEntry?>.Fail(new SourcePosition(lineNumber, 1), SyntaxMessages.LineTooLong(text.Length, limits.MaxLineLength));
+
+        var first = SkipSpaces(text, 0);
+        if (first == text.Length || text[first] == '#') return ParseResult<IdentityEntry?>.Ok(null);
+
+        var (label, start, labelError) = FindLabel(text, first);
+        if (labelError) return ParseResult<IdentityEntry?>.Fail(new SourcePosition(lineNumber, first + 1), SyntaxMessages.EmptyLabel);
+
+        var parser = new Parser(text, start, lineNumber, limits);
+        var entry = parser.ParseIdentity(label);
+        return entry is null ? ParseResult<IdentityEntry?>.Fail(parser.Error!) : ParseResult<IdentityEntry?>.Ok(entry);
+    }
+
+    /// <summary>One identity, as for <c>idq check "LHS = RHS"</c>: like <see cref="ParseLine"/> at line 1, but a blank text is an error.</summary>
+    public static ParseResult<IdentityEntry> ParseIdentity(string text, Limits? limits = null)
+    {
+        var result = ParseLine(text, 1, limits);
+        if (!result.Success) return ParseResult<IdentityEntry>.Fail(result.Error!);
+        if (result.Value is { } entry) return ParseResult<IdentityEntry>.Ok(entry);
+        return ParseResult<IdentityEntry>.Fail(new SourcePosition(1, 1), SyntaxMessages.ExpectedIdentity);
+    }
+
+    /// <summary>A text that is exactly one expression (e.g. the <c>lhs</c> of a <c>.jsonl</c> entry); positions are on line 1.</summary>
+    public static ParseResult<Expr> ParseExpression(string text, Limits? limits = null)
+    {
+        ArgumentNullException.ThrowIfNull(text);
+        limits ??= Limits.Default;
+        if (text.Length > limits.MaxLineLength)
+            return ParseResult<Expr>.Fail(new SourcePosition(1, 1), SyntaxMessages.LineTooLong(text.Length, limits.MaxLineLength));
+        var parser = new Parser(text, 0, 1, limits);
+        var expr = parser.ParseStandaloneExpression();
+        return expr is null ? ParseResult<Expr>.Fail(parser.Error!) : ParseResult<Expr>.Ok(expr);
+    }
+
+    /// <summary>A text that is exactly one field, <c>Q</c>, <c>GF(p)</c> or <c>GF(p^k)</c> (e.g. a <c>--over</c> option); positions are on line 1.</summary>
+    public static ParseResult<FieldSpec> ParseField(string text, Limits? limits = null)
+    {
+        ArgumentNullException.ThrowIfNull(text);
+        limits ??= Limits.Default;
+        if (text.Length > limits.MaxLineLength)
+            return ParseResult<FieldSpec>.Fail(new SourcePosition(1, 1), SyntaxMessages.LineTooLong(text.Length, limits.MaxLineLength));
+        var parser = new Parser(text, 0, 1, limits);
+        var field = parser.ParseStandaloneField();
+        return field is null ? ParseResult<FieldSpec>.Fail(parser.Error!) : ParseResult<FieldSpec>.Ok(field);
+    }
+
+    /// <summary>
+    /// A label is a run of letters, digits, '_', '-' and '.' at the start of the line, followed (after optional spaces)
+    /// by ':'. Nothing else can start a line that way — the ':' of a bound form always follows a '(' — so the rule
+    /// is exact. Returns the label (or null) and the index where the identity starts.
+    /// </summary>
+    internal static (string? Label, int Start, bool EmptyLabel) FindLabel(string text, int first)
+    {
+        var end = first;
+        while (end < text.Length && CharClass.IsLabelChar(text[end])) end++;
+        var colon = SkipSpaces(text, end);
+        if (colon == text.Length || text[colon] != ':') return (null, first, false);
+        if (end == first) return (null, first, true);
+        return (text[first..end], colon + 1, false);
+    }
+
+    private static int SkipSpaces(string text, int i)
+    {
+        while (i < text.Length && CharClass.IsSpace(text[i])) i++;
+        return i;
+    }
+}

@@ -1,0 +1,231 @@
+using System.Globalization;
+using System.Numerics;
+using System.Runtime.CompilerServices;
+using System.Text;
+
+namespace IdentityQueue.Algebra.Syntax;
+
+/// <summary>
+/// Writes an <see cref="Expr"/> back in catalogue syntax with the fewest parentheses that keep its tree: parsing the
+/// printed text gives a tree that prints the same. Style: spaces around '+', '-', '=' and after commas; none around
+/// '*', '/', '^'; indices as <c>a[i,j]</c>.
+/// Parentheses are written where a child binds looser than its place needs: the left operand of a left-associative
+/// operator may have the same precedence, the right one must bind tighter (<c>a - (b - c)</c>, <c>a/(b*c)</c>);
+/// the base of '^' must be an atom (<c>(-x)^2</c>, <c>(2^3)^2</c>) and its exponent may be a power or a negation
+/// (<c>2^3^2</c>, <c>2^-1</c>); the operand of unary minus may be a power (<c>-x^2</c>).
+/// </summary>
+public sealed class ExprPrinter : IExprVisitor<StringBuilder>
+{
+    private const int AdditiveLevel = 1, MultiplicativeLevel = 2, UnaryLevel = 3, PowerLevel = 4, AtomLevel = 5;
+
+    private readonly StringBuilder _output;
+
+    public ExprPrinter(StringBuilder output) => _output = output;
+
+    /// <summary>The catalogue text of an expression.</summary>
+    public static string Print(Expr expr)
+    {
+        var output = new StringBuilder();
+        expr.Accept(new ExprPrinter(output));
+        return output.ToString();
+    }
+
+    /// <summary>The catalogue line of an entry: <c>label: LHS = RHS over FIELD for n in A..B, …</c> (no <c>over</c> for Q).</summary>
+    public static string Print(IdentityEntry entry)
+    {
+        var output = new StringBuilder();
+        var printer = new ExprPrinter(output);
+        if (entry.Label is not null) output.Append(entry.Label).Append(": ");
+        entry.Left.Accept(printer);
+        output.Append(" = ");
+        entry.Right.Accept(printer);
+        if (!entry.Field.IsRationals) output.Append(" over ").Append(entry.Field.ToString());
+        for (var i = 0; i < entry.Parameters.Count; i++)
+        {
+            output.Append(i == 0 ? " for " : ", ");
+            var range = entry.Parameters[i];
+            printer.WriteRange(range.Name, range.From, range.To);
+        }
+        return output.ToString();
+    }
+
+    public StringBuilder VisitInteger(IntegerLiteral node)
+    {
+        DecimalText.Append(_output, node.Value);
+        return _output;
+    }
+
+    public StringBuilder VisitName(NameRef node) => _output.Append(node.Name);
+
+    public StringBuilder VisitIndexed(IndexedName node)
+    {
+        _output.Append(node.Name).Append('[');
+        WriteList(node.Indices, ",");
+        return _output.Append(']');
+    }
+
+    public StringBuilder VisitUnary(UnaryExpr node)
+    {
+        _output.Append('-');
+        WriteOperand(node.Operand, UnaryLevel);
+        return _output;
+    }
+
+    public StringBuilder VisitBinary(BinaryExpr node)
+    {
+        var (symbol, leftLevel, rightLevel) = node.Operator switch
+        {
+            BinaryOperator.Add => (" + ", AdditiveLevel, MultiplicativeLevel),
+            BinaryOperator.Subtract => (" - ", AdditiveLevel, MultiplicativeLevel),
+            BinaryOperator.Multiply => ("*", MultiplicativeLevel, UnaryLevel),
+            BinaryOperator.Divide => ("/", MultiplicativeLevel, UnaryLevel),
+            _ => ("^", AtomLevel, UnaryLevel),
+        };
+        WriteOperand(node.Left, leftLevel);
+        _output.Append(symbol);
+        WriteOperand(node.Right, rightLevel);
+        return _output;
+    }
+
+    public StringBuilder VisitCall(CallExpr node)
+    {
+        _output.Append(node.Function).Append('(');
+        WriteList(node.Arguments, ", ");
+        return _output.Append(')');
+    }
+
+    public StringBuilder VisitBound(BoundExpr node)
+    {
+        _output.Append(node.Kind == BoundKind.Sum ? Builtins.Sum : Builtins.Prod).Append('(');
+        WriteRange(node.Variable, node.From, node.To);
+        _output.Append(": ");
+        Write(node.Body);
+        return _output.Append(')');
+    }
+
+    public StringBuilder VisitMatrixComprehension(MatrixComprehension node)
+    {
+        _output.Append(Builtins.Matrix).Append('(');
+        WriteRange(node.RowVariable, node.RowFrom, node.RowTo);
+        _output.Append(", ");
+        WriteRange(node.ColumnVariable, node.ColumnFrom, node.ColumnTo);
+        _output.Append(": ");
+        Write(node.Body);
+        return _output.Append(')');
+    }
+
+    public StringBuilder VisitMatrixLiteral(MatrixLiteral node)
+    {
+        _output.Append('[');
+        for (var i = 0; i < node.Rows.Count; i++)
+        {
+            if (i > 0) _output.Append(", ");
+            _output.Append('[');
+            WriteList(node.Rows[i], ", ");
+            _output.Append(']');
+        }
+        return _output.Append(']');
+    }
+
+    /// <summary>How tightly the printed form of a node binds (higher binds tighter); a negative literal prints like a negation.</summary>
+    internal static int Level(Expr expr) => expr switch
+    {
+        BinaryExpr { Operator: BinaryOperator.Add or BinaryOperator.Subtract } => AdditiveLevel,
+        BinaryExpr { Operator: BinaryOperator.Multiply or BinaryOperator.Divide } => MultiplicativeLevel,
+        BinaryExpr => PowerLevel,
+        UnaryExpr => UnaryLevel,
+        IntegerLiteral { Value.Sign: < 0 } => UnaryLevel,
+        _ => AtomLevel,
+    };
+
+    private void WriteRange(string name, Expr from, Expr to)
+    {
+        _output.Append(name).Append(" in ");
+        Write(from);
+        _output.Append("..");
+        Write(to);
+    }
+
+    private void WriteList(IReadOnlyList<Expr> items, string separator)
+    {
+        for (var i = 0; i < items.Count; i++)
+        {
+            if (i > 0) _output.Append(separator);
+            Write(items[i]);
+        }
+    }
+
+    private void WriteOperand(Expr operand, int neededLevel)
+    {
+        if (Level(operand) >= neededLevel)
+        {
+            Write(operand);
+            return;
+        }
+        _output.Append('(');
+        Write(operand);
+        _output.Append(')');
+    }
+
+    private void Write(Expr expr)
+    {
+        // Parsed trees are at most MaxNestingDepth high; a deeper hand-built tree gets an exception, not a crash.
+        RuntimeHelpers.EnsureSufficientExecutionStack();
+        expr.Accept(this);
+    }
+}
+
+/// <summary>Decimal text of integers of any size, in time well below the quadratic cost of <see cref="BigInteger.ToString()"/> for huge values.</summary>
+internal static class DecimalText
+{
+    // Below this many digits the library conversion is used directly.
+    private const int LeafDigits = 2_000;
+
+    public static void Append(StringBuilder output, BigInteger value)
+    {
+        if (value.Sign < 0)
+        {
+            output.Append('-');
+            value = BigInteger.Negate(value);
+        }
+        // An upper bound on the digit count: bits·log10(2) + 1.
+        var digits = (long)(value.GetBitLength() * 0.30103) + 1;
+        if (digits <= LeafDigits)
+        {
+            output.Append(value.ToString(CultureInfo.InvariantCulture));
+            return;
+        }
+
+        // Split by 10^(LeafDigits·2^k) for k = top..0: halves are written recursively, the lower ones zero-padded.
+        var powers = new List<BigInteger>();
+        var power = BigInteger.Pow(10, LeafDigits);
+        long exponent = LeafDigits;
+        while (exponent * 2 < digits + LeafDigits)
+        {
+            powers.Add(power);
+            power *= power;
+            exponent *= 2;
+        }
+        powers.Add(power);
+        Write(output, value, powers.Count - 1, powers, pad: false);
+    }
+
+    private static void Write(StringBuilder output, BigInteger value, int level, List<BigInteger> powers, bool pad)
+    {
+        if (level < 0)
+        {
+            var text = value.ToString(CultureInfo.InvariantCulture);
+            if (pad) output.Append('0', LeafDigits - text.Length);
+            output.Append(text);
+            return;
+        }
+        var high = BigInteger.DivRem(value, powers[level], out var low);
+        if (!pad && high.IsZero)
+        {
+            Write(output, low, level - 1, powers, pad: false);
+            return;
+        }
+        Write(output, high, level - 1, powers, pad);
+        Write(output, low, level - 1, powers, pad: true);
+    }
+}

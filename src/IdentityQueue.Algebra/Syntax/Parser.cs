@@ -1,0 +1,612 @@
+using System.Diagnostics.CodeAnalysis;
+using System.Globalization;
+using System.Numerics;
+using System.Runtime.CompilerServices;
+using IdentityQueue.Algebra.Fields;
+
+namespace IdentityQueue.Algebra.Syntax;
+
+/// <summary>
+/// Recursive-descent parser with precedence climbing for one catalogue line (SPEC §3). It never throws on bad
+/// input: a failing method reports the first problem in <see cref="Error"/> and returns null, and every caller
+/// passes the null up. Nesting is bounded by <see cref="Limits.MaxNestingDepth"/> twice over: the recursion
+/// depth (parentheses, brackets, calls, unary minus, exponents) and the height of the tree built (which also
+/// grows along a flat chain like <c>x+x+…+x</c>), so that no later recursive walk of the tree can run out of stack.
+/// </summary>
+internal sealed class Parser
+{
+    // Binding powers of the left-associative infix operators; '^' and unary minus are handled by their own methods.
+    private const int AdditivePrecedence = 1;
+    private const int MultiplicativePrecedence = 2;
+
+    private readonly string _text;
+    private readonly int _line;
+    private readonly Limits _limits;
+    private readonly int _maxDepth;
+    private readonly Lexer _lexer;
+    private Token _token;
+    private Token _previous;
+    private bool _hasPrevious;
+
+    public Parser(string text, int start, int line, Limits limits)
+    {
+        _text = text;
+        _line = line;
+        _limits = limits;
+        _maxDepth = limits.MaxNestingDepth;
+        _lexer = new Lexer(text, start);
+        _token = _lexer.Next();
+    }
+
+    /// <summary>The first problem found, once a parse method has returned null.</summary>
+    public Diagnostic? Error { get; private set; }
+
+    public bool AtEnd => _token.Kind == TokenKind.End;
+
+    // ---------------------------------------------------------------- the line
+
+    /// <summary><c>LHS = RHS [over FIELD] [for NAME in A..B {, NAME in A..B}]</c>, to the end of the line.</summary>
+    public IdentityEntry? ParseIdentity(string? label)
+    {
+        if (label is not null && AtEnd) return Fail<IdentityEntry>(_token, SyntaxMessages.NothingAfterLabel(label));
+        if (_token.Kind == TokenKind.Equals) return Fail<IdentityEntry>(_token, SyntaxMessages.EmptyLeftSide);
+
+        var left = ParseExpression(0, out _);
+        if (left is null) return null;
+        if (_token.Kind != TokenKind.Equals)
+            return Fail<IdentityEntry>(_token, FollowMessage(SyntaxMessages.MissingEquals(Describe(_token))));
+        Advance();
+
+        var right = ParseExpression(0, out _);
+        if (right is null) return null;
+
+        FieldSpec? field = null;
+        List<ParameterRange>? parameters = null;
+        while (!AtEnd)
+        {
+            if (_token.IsWord(_text, "over"))
+            {
+                if (parameters is not null) return Fail<IdentityEntry>(_token, SyntaxMessages.OverAfterFor);
+                if (field is not null) return Fail<IdentityEntry>(_token, SyntaxMessages.SecondOver);
+                Advance();
+                field = ParseField();
+                if (field is null) return null;
+            }
+            else if (_token.IsWord(_text, "for"))
+            {
+                if (parameters is not null) return Fail<IdentityEntry>(_token, SyntaxMessages.SecondFor);
+                Advance();
+                parameters = ParseRanges();
+                if (parameters is null) return null;
+            }
+            else if (parameters is not null)
+            {
+                return Fail<IdentityEntry>(_token, SyntaxMessages.AfterRange(parameters[^1].Name, Describe(_token)));
+            }
+            else if (field is not null)
+            {
+                return Fail<IdentityEntry>(_token, SyntaxMessages.AfterField(Describe(_token)));
+            }
+            else if (_token.Kind == TokenKind.Equals)
+            {
+                return Fail<IdentityEntry>(_token, SyntaxMessages.SecondEquals);
+            }
+            else
+            {
+                return Fail<IdentityEntry>(_token, FollowMessage(SyntaxMessages.AfterRightSide(Describe(_token))));
+            }
+        }
+
+        return new IdentityEntry(label, left, right, field ?? FieldSpec.Rationals,
+            parameters is null ? [] : parameters.ToArray(), _line, _text);
+    }
+
+    /// <summary>A whole text that is one expression.</summary>
+    public Expr? ParseStandaloneExpression()
+    {
+        var expr = ParseExpression(0, out _);
+        if (expr is null) return null;
+        if (!AtEnd) return Fail<Expr>(_token, FollowMessage(SyntaxMessages.AfterExpression(Describe(_token))));
+        return expr;
+    }
+
+    /// <summary>A whole text that is one field.</summary>
+    public FieldSpec? ParseStandaloneField()
+    {
+        var field = ParseField();
+        if (field is null) return null;
+        if (!AtEnd) return Fail<FieldSpec>(_token, SyntaxMessages.AfterField(Describe(_token), inIdentity: false));
+        return field;
+    }
+
+    private List<ParameterRange>? ParseRanges()
+    {
+        var ranges = new List<ParameterRange>();
+        var names = new HashSet<string>(StringComparer.Ordinal);
+        while (true)
+        {
+            var nameToken = _token;
+            if (nameToken.Kind != TokenKind.Name)
+                return Fail<List<ParameterRange>>(nameToken, SyntaxMessages.ExpectedParameter(Describe(_previous), Describe(nameToken)));
+            var name = TextOf(nameToken);
+            if (Builtins.Reserved.Contains(name)) return Fail<List<ParameterRange>>(nameToken, SyntaxMessages.ReservedAsParameter(name));
+            if (!names.Add(name)) return Fail<List<ParameterRange>>(nameToken, SyntaxMessages.DuplicateParameter(name));
+            Advance();
+
+            if (!ParseRange(name, 0, out var from, out var to, out _)) return null;
+            ranges.Add(new ParameterRange(name, from, to, At(nameToken)));
+
+            if (_token.Kind != TokenKind.Comma) return ranges;
+            Advance();
+        }
+    }
+
+    /// <summary><c>in A..B</c>, after the name has been read.</summary>
+    private bool ParseRange(string name, int depth, [NotNullWhen(true)] out Expr? from, [NotNullWhen(true)] out Expr? to, out int height)
+    {
+        to = null;
+        height = 0;
+        from = null;
+        if (!_token.IsWord(_text, "in")) return Report(_token, SyntaxMessages.ExpectedIn(name, Describe(_token)));
+        Advance();
+        from = ParseExpression(depth, out var fromHeight);
+        if (from is null) return false;
+        if (_token.Kind != TokenKind.DotDot) return Report(_token, SyntaxMessages.ExpectedRangeDots(Describe(_token)));
+        Advance();
+        to = ParseExpression(depth, out var toHeight);
+        height = Math.Max(fromHeight, toHeight);
+        return to is not null;
+    }
+
+    // ---------------------------------------------------------------- fields
+
+    /// <summary><c>Q</c> | <c>GF(p)</c> | <c>GF(p^k)</c>; p must be prime, k ≥ 1, and the field within MaxFieldBits.</summary>
+    private FieldSpec? ParseField()
+    {
+        var nameToken = _token;
+        if (nameToken.Kind != TokenKind.Name)
+            return Fail<FieldSpec>(nameToken, SyntaxMessages.ExpectedField(_hasPrevious ? Describe(_previous) : null, Describe(nameToken)));
+        if (nameToken.IsWord(_text, "Q"))
+        {
+            Advance();
+            return FieldSpec.Rationals;
+        }
+        if (!nameToken.IsWord(_text, "GF")) return Fail<FieldSpec>(nameToken, SyntaxMessages.UnknownField(TextOf(nameToken)));
+        Advance();
+
+        var open = _token;
+        if (open.Kind != TokenKind.LeftParen) return Fail<FieldSpec>(open, SyntaxMessages.ExpectedFieldParenthesis(Describe(open)));
+        Advance();
+        var pToken = _token;
+        if (pToken.Kind != TokenKind.Integer) return Fail<FieldSpec>(pToken, SyntaxMessages.ExpectedCharacteristic(Describe(pToken)));
+        Advance();
+        Token? kToken = null;
+        if (_token.Kind == TokenKind.Caret)
+        {
+            Advance();
+            if (_token.Kind != TokenKind.Integer) return Fail<FieldSpec>(_token, SyntaxMessages.ExpectedFieldExponent(Describe(_token)));
+            kToken = _token;
+            Advance();
+        }
+        if (_token.Kind != TokenKind.RightParen)
+            return Fail<FieldSpec>(_token, SyntaxMessages.UnclosedParenthesis(open.Column, Describe(_token)));
+        var close = _token;
+        Advance();
+
+        var fieldText = ShortText(nameToken.Start, close.End);
+        var maxBits = _limits.MaxFieldBits;
+        // Check the size from the digit count before converting, so a huge p costs nothing: 10^(d-1) ≥ 2^(3.32(d-1)).
+        if ((pToken.Length - 1) * 3.3219 > maxBits) return Fail<FieldSpec>(pToken, SyntaxMessages.FieldTooLarge(fieldText, maxBits));
+        var p = ParseInteger(pToken);
+        if (p.GetBitLength() > maxBits) return Fail<FieldSpec>(pToken, SyntaxMessages.FieldTooLarge(fieldText, maxBits));
+        if (!Primality.IsPrime(p))
+        {
+            var (q, e) = AsPrimePower(p);
+            return Fail<FieldSpec>(pToken, SyntaxMessages.NotPrime(fieldText, p, q, e));
+        }
+        var k = 1;
+        if (kToken is { } kt)
+        {
+            if (kt.Length > 9) return Fail<FieldSpec>(kt, SyntaxMessages.FieldTooLarge(fieldText, maxBits));
+            k = int.Parse(_text.AsSpan(kt.Start, kt.Length), NumberStyles.None, CultureInfo.InvariantCulture);
+            if (k < 1) return Fail<FieldSpec>(kt, SyntaxMessages.ZeroFieldExponent(fieldText));
+            if (BigInteger.Log(p, 2) * k > maxBits) return Fail<FieldSpec>(kt, SyntaxMessages.FieldTooLarge(fieldText, maxBits));
+        }
+        return FieldSpec.Finite(p, k);
+    }
+
+    /// <summary>(q, e) with n = q^e, q a prime below 2^16 and e ≥ 2; (null, 0) otherwise. Only used to word a message.</summary>
+    private static (BigInteger?, int) AsPrimePower(BigInteger n)
+    {
+        if (n < 4) return (null, 0);
+        for (var q = 2; q < 1 << 16; q++)
+        {
+            if (!(n % q).IsZero) continue;
+            var e = 0;
+            var rest = n;
+            while ((rest % q).IsZero)
+            {
+                rest /= q;
+                e++;
+            }
+            return rest.IsOne && e >= 2 ? (q, e) : (null, 0);
+        }
+        return (null, 0);
+    }
+
+    // ---------------------------------------------------------------- expressions
+
+    /// <summary>expr := term {('+'|'-') term}; term := unary {('*'|'/') unary} — by precedence climbing.</summary>
+    private Expr? ParseExpression(int depth, out int height) => ParseBinary(AdditivePrecedence, depth, out height);
+
+    private Expr? ParseBinary(int minPrecedence, int depth, out int height)
+    {
+        var left = ParseUnary(depth, out height);
+        if (left is null) return null;
+        while (true)
+        {
+            var (op, precedence) = _token.Kind switch
+            {
+                TokenKind.Plus => (BinaryOperator.Add, AdditivePrecedence),
+                TokenKind.Minus => (BinaryOperator.Subtract, AdditivePrecedence),
+                TokenKind.Star => (BinaryOperator.Multiply, MultiplicativePrecedence),
+                TokenKind.Slash => (BinaryOperator.Divide, MultiplicativePrecedence),
+                _ => (BinaryOperator.Add, 0),
+            };
+            if (precedence == 0 || precedence < minPrecedence) return left;
+            var opToken = _token;
+            Advance();
+            // Left associativity: the right operand binds only tighter operators.
+            var right = ParseBinary(precedence + 1, depth, out var rightHeight);
+            if (right is null) return null;
+            height = Math.Max(height, rightHeight) + 1;
+            if (height > _maxDepth) return Fail<Expr>(opToken, SyntaxMessages.ChainTooDeep(_maxDepth));
+            left = new BinaryExpr(op, left, right, left.Position, At(opToken));
+        }
+    }
+
+    /// <summary>unary := ('-'|'+') unary | power. Unary minus binds looser than '^': <c>-x^2</c> is <c>-(x^2)</c>.</summary>
+    private Expr? ParseUnary(int depth, out int height)
+    {
+        height = 0;
+        if (!RuntimeHelpers.TryEnsureSufficientExecutionStack()) return Fail<Expr>(_token, SyntaxMessages.StackExhausted(_maxDepth));
+        var op = _token;
+        if (op.Kind is not (TokenKind.Minus or TokenKind.Plus)) return ParsePower(depth, out height);
+
+        if (depth + 1 > _maxDepth) return Fail<Expr>(op, SyntaxMessages.NestingTooDeep(_maxDepth));
+        Advance();
+        var operand = ParseUnary(depth + 1, out height);
+        if (operand is null) return null;
+        if (op.Kind == TokenKind.Plus) return operand;
+        height++;
+        if (height > _maxDepth) return Fail<Expr>(op, SyntaxMessages.NestingTooDeep(_maxDepth));
+        return new UnaryExpr(UnaryOperator.Negate, operand, At(op));
+    }
+
+    /// <summary>power := primary ['^' unary] — right-associative, and the exponent may start with a sign (<c>2^-1</c>).</summary>
+    private Expr? ParsePower(int depth, out int height)
+    {
+        var baseExpr = ParsePrimary(depth, out height);
+        if (baseExpr is null) return null;
+        if (_token.Kind != TokenKind.Caret) return baseExpr;
+
+        var caret = _token;
+        if (depth + 1 > _maxDepth) return Fail<Expr>(caret, SyntaxMessages.NestingTooDeep(_maxDepth));
+        Advance();
+        if (!StartsExpression(_token)) return Fail<Expr>(_token, SyntaxMessages.EmptyExponent(Describe(_token)));
+        var exponent = ParseUnary(depth + 1, out var exponentHeight);
+        if (exponent is null) return null;
+        height = Math.Max(height, exponentHeight) + 1;
+        if (height > _maxDepth) return Fail<Expr>(caret, SyntaxMessages.NestingTooDeep(_maxDepth));
+        return new BinaryExpr(BinaryOperator.Power, baseExpr, exponent, baseExpr.Position, At(caret));
+    }
+
+    private Expr? ParsePrimary(int depth, out int height)
+    {
+        height = 0;
+        var token = _token;
+        switch (token.Kind)
+        {
+            case TokenKind.Integer:
+                Advance();
+                return new IntegerLiteral(ParseInteger(token), At(token));
+            case TokenKind.Name:
+                return ParseName(depth, out height);
+            case TokenKind.LeftParen:
+            {
+                if (depth + 1 > _maxDepth) return Fail<Expr>(token, SyntaxMessages.NestingTooDeep(_maxDepth));
+                Advance();
+                if (_token.Kind == TokenKind.RightParen) return Fail<Expr>(_token, SyntaxMessages.EmptyParentheses);
+                var inner = ParseExpression(depth + 1, out height);
+                if (inner is null) return null;
+                if (_token.Kind != TokenKind.RightParen)
+                    return Fail<Expr>(_token, FollowMessage(SyntaxMessages.UnclosedParenthesis(token.Column, Describe(_token))));
+                Advance();
+                return inner;
+            }
+            case TokenKind.LeftBracket:
+                return ParseMatrixLiteral(depth, out height);
+            default:
+                return Fail<Expr>(token, SyntaxMessages.ExpectedExpression(_hasPrevious ? Describe(_previous) : null, Describe(token)));
+        }
+    }
+
+    /// <summary>A name, an indexed name, a call of a built-in function, or a bound form.</summary>
+    private Expr? ParseName(int depth, out int height)
+    {
+        height = 0;
+        var nameToken = _token;
+        var name = TextOf(nameToken);
+        if (Builtins.Reserved.Contains(name) && !Builtins.Arity.ContainsKey(name)
+            && name is not (Builtins.Sum or Builtins.Prod or Builtins.Matrix))
+        {
+            // 'over', 'for', 'in' where an operand should be.
+            return Fail<Expr>(nameToken, SyntaxMessages.ExpectedExpression(_hasPrevious ? Describe(_previous) : null, Describe(nameToken)));
+        }
+        Advance();
+        var isCall = _token.Kind == TokenKind.LeftParen;
+
+        switch (name)
+        {
+            case Builtins.Sum:
+            case Builtins.Prod:
+                return isCall
+                    ? ParseBound(name == Builtins.Sum ? BoundKind.Sum : BoundKind.Product, nameToken, depth, out height)
+                    : Fail<Expr>(nameToken, SyntaxMessages.BoundFormAsVariable(name));
+            case Builtins.Matrix:
+                return isCall
+                    ? ParseMatrixComprehension(nameToken, depth, out height)
+                    : Fail<Expr>(nameToken, SyntaxMessages.BoundFormAsVariable(name));
+        }
+        if (Builtins.Arity.TryGetValue(name, out var arity))
+        {
+            return isCall
+                ? ParseCall(name, arity, nameToken, depth, out height)
+                : Fail<Expr>(nameToken, SyntaxMessages.FunctionAsVariable(name));
+        }
+        if (isCall) return Fail<Expr>(nameToken, SyntaxMessages.UnknownFunction(name));
+        if (_token.Kind == TokenKind.LeftBracket) return ParseIndexed(name, nameToken, depth, out height);
+        return new NameRef(name, At(nameToken));
+    }
+
+    private Expr? ParseCall(string name, int arity, Token nameToken, int depth, out int height)
+    {
+        var arguments = new List<Expr>(arity);
+        if (!ParseList(TokenKind.RightParen, $"the argument list of {name}(...)", depth, arguments, out height,
+                static (after, found) => SyntaxMessages.ExpectedArgument(after, found), allowEmpty: true))
+            return null;
+        if (arguments.Count != arity) return Fail<Expr>(nameToken, SyntaxMessages.WrongArity(name, arity, arguments.Count));
+        height++;
+        if (height > _maxDepth) return Fail<Expr>(nameToken, SyntaxMessages.NestingTooDeep(_maxDepth));
+        return new CallExpr(name, arguments.ToArray(), At(nameToken));
+    }
+
+    private Expr? ParseIndexed(string name, Token nameToken, int depth, out int height)
+    {
+        var indices = new List<Expr>(2);
+        if (!ParseList(TokenKind.RightBracket, $"the index list of '{name}'", depth, indices, out height,
+                static (after, found) => SyntaxMessages.ExpectedIndex(after, found), allowEmpty: false))
+            return null;
+        height++;
+        if (height > _maxDepth) return Fail<Expr>(nameToken, SyntaxMessages.NestingTooDeep(_maxDepth));
+        return new IndexedName(name, indices.ToArray(), At(nameToken));
+    }
+
+    /// <summary>
+    /// The current token opens a list; reads <c>item {',' item}</c> and the closing token into <paramref name="items"/>;
+    /// <paramref name="height"/> is the largest item height.
+    /// </summary>
+    private bool ParseList(TokenKind close, string what, int depth, List<Expr> items, out int height,
+        Func<string, string, string> expectedItem, bool allowEmpty)
+    {
+        height = 0;
+        var open = _token;
+        if (depth + 1 > _maxDepth) return Report(open, SyntaxMessages.NestingTooDeep(_maxDepth));
+        Advance();
+        if (allowEmpty && _token.Kind == close)
+        {
+            Advance();
+            return true;
+        }
+        while (true)
+        {
+            if (!StartsExpression(_token)) return Report(_token, expectedItem(Describe(_previous), Describe(_token)));
+            var item = ParseExpression(depth + 1, out var itemHeight);
+            if (item is null) return false;
+            items.Add(item);
+            height = Math.Max(height, itemHeight);
+            if (_token.Kind == TokenKind.Comma)
+            {
+                Advance();
+                continue;
+            }
+            if (_token.Kind == close)
+            {
+                Advance();
+                return true;
+            }
+            return Report(_token, FollowMessage(SyntaxMessages.ExpectedCommaOrClose(close == TokenKind.RightParen ? ')' : ']',
+                open.Column, what, Describe(_token))));
+        }
+    }
+
+    /// <summary><c>sum(k in A..B: E)</c> or <c>prod(k in A..B: E)</c>; the current token is the '('.</summary>
+    private Expr? ParseBound(BoundKind kind, Token formToken, int depth, out int height)
+    {
+        height = 0;
+        var form = TextOf(formToken);
+        var open = _token;
+        if (depth + 1 > _maxDepth) return Fail<Expr>(open, SyntaxMessages.NestingTooDeep(_maxDepth));
+        Advance();
+        var variable = ParseBoundVariable(form);
+        if (variable is null) return null;
+        if (!ParseRange(variable, depth + 1, out var from, out var to, out var rangeHeight)) return null;
+        if (_token.Kind != TokenKind.Colon) return Fail<Expr>(_token, SyntaxMessages.ExpectedBodyColon(form, Describe(_token)));
+        Advance();
+        var body = ParseBody(form, open, depth, out var bodyHeight);
+        if (body is null) return null;
+
+        height = Math.Max(rangeHeight, bodyHeight) + 1;
+        if (height > _maxDepth) return Fail<Expr>(formToken, SyntaxMessages.NestingTooDeep(_maxDepth));
+        return new BoundExpr(kind, variable, from, to, body, At(formToken));
+    }
+
+    /// <summary><c>matrix(i in A..B, j in C..D: E)</c>; the current token is the '('.</summary>
+    private Expr? ParseMatrixComprehension(Token formToken, int depth, out int height)
+    {
+        height = 0;
+        const string form = Builtins.Matrix;
+        var open = _token;
+        if (depth + 1 > _maxDepth) return Fail<Expr>(open, SyntaxMessages.NestingTooDeep(_maxDepth));
+        Advance();
+        var rowVariable = ParseBoundVariable(form);
+        if (rowVariable is null) return null;
+        if (!ParseRange(rowVariable, depth + 1, out var rowFrom, out var rowTo, out var rowHeight)) return null;
+        if (_token.Kind != TokenKind.Comma) return Fail<Expr>(_token, SyntaxMessages.ExpectedColumnRange(Describe(_token)));
+        Advance();
+        var columnToken = _token;
+        var columnVariable = ParseBoundVariable(form);
+        if (columnVariable is null) return null;
+        if (columnVariable == rowVariable) return Fail<Expr>(columnToken, SyntaxMessages.SameMatrixVariables(columnVariable));
+        if (!ParseRange(columnVariable, depth + 1, out var columnFrom, out var columnTo, out var columnHeight)) return null;
+        if (_token.Kind != TokenKind.Colon) return Fail<Expr>(_token, SyntaxMessages.ExpectedBodyColon(form, Describe(_token)));
+        Advance();
+        var body = ParseBody(form, open, depth, out var bodyHeight);
+        if (body is null) return null;
+
+        height = Math.Max(Math.Max(rowHeight, columnHeight), bodyHeight) + 1;
+        if (height > _maxDepth) return Fail<Expr>(formToken, SyntaxMessages.NestingTooDeep(_maxDepth));
+        return new MatrixComprehension(rowVariable, rowFrom, rowTo, columnVariable, columnFrom, columnTo, body, At(formToken));
+    }
+
+    private string? ParseBoundVariable(string form)
+    {
+        var token = _token;
+        if (token.Kind != TokenKind.Name) return Fail<string>(token, SyntaxMessages.ExpectedBoundVariable(form, Describe(token)));
+        var name = TextOf(token);
+        if (Builtins.Reserved.Contains(name)) return Fail<string>(token, SyntaxMessages.ReservedAsBoundVariable(name));
+        Advance();
+        return name;
+    }
+
+    /// <summary>The body after ':' and the closing ')' of a bound form.</summary>
+    private Expr? ParseBody(string form, Token open, int depth, out int height)
+    {
+        height = 0;
+        if (!StartsExpression(_token)) return Fail<Expr>(_token, SyntaxMessages.ExpectedBody(form, Describe(_token)));
+        var body = ParseExpression(depth + 1, out height);
+        if (body is null) return null;
+        if (_token.Kind != TokenKind.RightParen)
+            return Fail<Expr>(_token, FollowMessage(SyntaxMessages.UnclosedParenthesis(open.Column, Describe(_token))));
+        Advance();
+        return body;
+    }
+
+    /// <summary><c>[[a, b], [c, d]]</c>: one or more rows of equal length, each of one or more entries.</summary>
+    private Expr? ParseMatrixLiteral(int depth, out int height)
+    {
+        height = 0;
+        var open = _token;
+        if (depth + 1 > _maxDepth) return Fail<Expr>(open, SyntaxMessages.NestingTooDeep(_maxDepth));
+        Advance();
+        if (_token.Kind == TokenKind.RightBracket) return Fail<Expr>(open, SyntaxMessages.EmptyMatrix);
+
+        var maxOrder = _limits.MaxMatrixOrder;
+        var rows = new List<IReadOnlyList<Expr>>();
+        while (true)
+        {
+            var rowOpen = _token;
+            if (rowOpen.Kind != TokenKind.LeftBracket) return Fail<Expr>(rowOpen, SyntaxMessages.ExpectedRow(rows.Count + 1, Describe(rowOpen)));
+            if (rows.Count == maxOrder) return Fail<Expr>(rowOpen, SyntaxMessages.MatrixTooLarge("rows", maxOrder));
+            var entries = new List<Expr>(rows.Count == 0 ? 4 : rows[0].Count);
+            if (!ParseList(TokenKind.RightBracket, $"row {rows.Count + 1} of the matrix literal", depth + 1, entries, out var rowHeight,
+                    static (after, found) => SyntaxMessages.ExpectedEntry(after, found), allowEmpty: false))
+                return null;
+            if (entries.Count > maxOrder) return Fail<Expr>(rowOpen, SyntaxMessages.MatrixTooLarge("columns", maxOrder));
+            if (rows.Count > 0 && entries.Count != rows[0].Count)
+                return Fail<Expr>(rowOpen, SyntaxMessages.RaggedRow(rows.Count + 1, entries.Count, rows[0].Count));
+            rows.Add(entries.ToArray());
+            height = Math.Max(height, rowHeight);
+
+            if (_token.Kind == TokenKind.Comma)
+            {
+                Advance();
+                continue;
+            }
+            if (_token.Kind == TokenKind.RightBracket)
+            {
+                Advance();
+                break;
+            }
+            return Fail<Expr>(_token, _token.Kind == TokenKind.LeftBracket
+                ? SyntaxMessages.MissingRowComma(rows.Count, Describe(_token))
+                : SyntaxMessages.UnclosedBracket(open.Column, Describe(_token)));
+        }
+
+        height++;
+        if (height > _maxDepth) return Fail<Expr>(open, SyntaxMessages.NestingTooDeep(_maxDepth));
+        return new MatrixLiteral(rows.ToArray(), At(open));
+    }
+
+    // ---------------------------------------------------------------- helpers
+
+    private void Advance()
+    {
+        _previous = _token;
+        _hasPrevious = true;
+        _token = _lexer.Next();
+    }
+
+    private static bool StartsExpression(Token token) => token.Kind is TokenKind.Integer or TokenKind.Name
+        or TokenKind.LeftParen or TokenKind.LeftBracket or TokenKind.Minus or TokenKind.Plus;
+
+    /// <summary>
+    /// The message for a token that cannot follow a complete operand: two operands side by side are a missing operator,
+    /// a stray closing bracket is unmatched, anything else gets <paramref name="otherwise"/>.
+    /// </summary>
+    private string FollowMessage(string otherwise)
+    {
+        if (_hasPrevious && _token.StartsOperand(_text)) return SyntaxMessages.MissingOperator(Describe(_previous), Describe(_token));
+        return _token.Kind switch
+        {
+            TokenKind.RightParen => SyntaxMessages.UnmatchedParenthesis,
+            TokenKind.RightBracket => SyntaxMessages.UnmatchedBracket,
+            _ => otherwise,
+        };
+    }
+
+    /// <summary>Records the first problem; a problem at an invalid token is always the lexer's own message.</summary>
+    private bool Report(Token at, string message)
+    {
+        Error ??= new Diagnostic(At(at), at.Kind == TokenKind.Invalid && at.Message is not null ? at.Message : message);
+        return false;
+    }
+
+    private T? Fail<T>(Token at, string message) where T : class
+    {
+        Report(at, message);
+        return null;
+    }
+
+    private SourcePosition At(Token token) => new(_line, token.Column);
+
+    private string TextOf(Token token) => _text.Substring(token.Start, token.Length);
+
+    private string Describe(Token token) =>
+        token.Kind == TokenKind.End ? SyntaxMessages.EndOfLine : SyntaxMessages.Quote(_text.AsSpan(token.Start, token.Length));
+
+    private string ShortText(int start, int end) =>
+        end - start <= 60 ? _text[start..end] : string.Concat(_text.AsSpan(start, 50), "…", _text.AsSpan(end - 1, 1));
+
+    private BigInteger ParseInteger(Token token)
+    {
+        var digits = _text.AsSpan(token.Start, token.Length);
+        if (digits.Length <= 18)
+        {
+            ulong value = 0;
+            foreach (var c in digits) value = value * 10 + (ulong)(c - '0');
+            return value;
+        }
+        return BigInteger.Parse(digits, NumberStyles.None, CultureInfo.InvariantCulture);
+    }
+}
