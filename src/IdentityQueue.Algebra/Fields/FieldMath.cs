@@ -12,14 +12,15 @@ public static class FieldMath
     {
         if (e.Sign < 0) throw new ArgumentOutOfRangeException(nameof(e), e, "the exponent must be non-negative");
         if (e <= ulong.MaxValue) return Pow(field, a, (ulong)e);
+        var f = field; // a local copy: calls on an 'in' type parameter would each copy the struct
         var bytes = e.ToByteArray(isUnsigned: true, isBigEndian: true);
-        var result = field.One;
+        var result = f.One;
         foreach (var b in bytes)
         {
             for (var bit = 7; bit >= 0; bit--)
             {
-                result = field.Multiply(result, result);
-                if (((b >> bit) & 1) != 0) result = field.Multiply(result, a);
+                result = f.Multiply(result, result);
+                if (((b >> bit) & 1) != 0) result = f.Multiply(result, a);
             }
         }
         return result;
@@ -30,13 +31,13 @@ public static class FieldMath
         where TField : struct, IField<T>
         where T : struct
     {
-        var result = field.One;
-        if (e == 0) return result;
-        result = a;
+        var f = field; // a local copy: calls on an 'in' type parameter would each copy the struct
+        if (e == 0) return f.One;
+        var result = a;
         for (var bit = 62 - BitOperations.LeadingZeroCount(e); bit >= 0; bit--)
         {
-            result = field.Multiply(result, result);
-            if (((e >> bit) & 1) != 0) result = field.Multiply(result, a);
+            result = f.Multiply(result, result);
+            if (((e >> bit) & 1) != 0) result = f.Multiply(result, a);
         }
         return result;
     }
