@@ -91,7 +91,7 @@ public readonly struct PrimeField31 : IField<Residue31>
     }
 
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
-    public Residue31 Multiply(Residue31 a, Residue31 b) => new(Reduce((ulong)a.Value * b.Value));
+    public Residue31 Multiply(Residue31 a, Residue31 b) => new(Reduce(unchecked((ulong)a.Value * b.Value))); // < 2^62: no overflow, no check
 
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
     public Residue31 MultiplyAdd(Residue31 a, Residue31 b, Residue31 c) => Add(Multiply(a, b), c);

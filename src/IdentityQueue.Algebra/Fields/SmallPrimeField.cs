@@ -79,7 +79,8 @@ public readonly struct SmallPrimeField : IField<SmallResidue>
 
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
     public SmallResidue Multiply(SmallResidue a, SmallResidue b) =>
-        new(_productFits ? a.Value * b.Value % _p : (ulong)(Math.BigMul(a.Value, b.Value) % _p));
+        // neither product overflows (the first is below 2^64 when p ≤ 2^32); unchecked only drops the checks
+        new(unchecked(_productFits ? a.Value * b.Value % _p : (ulong)(Math.BigMul(a.Value, b.Value) % _p)));
 
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
     public SmallResidue MultiplyAdd(SmallResidue a, SmallResidue b, SmallResidue c) => Add(Multiply(a, b), c);

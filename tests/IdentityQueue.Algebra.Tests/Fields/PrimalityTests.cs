@@ -51,7 +51,7 @@ public class PrimalityTests
     [Fact]
     public void ColesFactorisationOfTwoToThe67MinusOneIsConfirmed()
     {
-        // 2^67 − 1 = 193707721 × 761838257287 (F. N. Cole, Bull. AMS 10 (1903) 134–137).
+        // 2^67 − 1 = 193707721 × 761838257287 (F. N. Cole, "On the factoring of large numbers", Bull. AMS 10 (1903) 134–137 [memory]).
         var n = (BigInteger.One << 67) - 1;
         Assert.Equal(n, new BigInteger(193707721) * 761838257287);
         Assert.False(Primality.IsPrime(n));

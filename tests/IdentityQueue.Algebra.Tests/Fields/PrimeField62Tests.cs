@@ -36,7 +36,7 @@ public class PrimeField62Tests
         Assert.True(top > (BigInteger.One << 62) - 1000);
         ReferenceCheck.Run<PrimeField62, Residue62>(PrimeField62.Create((ulong)top), 21, 5000);
         ReferenceCheck.Run<PrimeField62, Residue62>(PrimeField62.Create(3), 22, 500);
-        ReferenceCheck.Run<PrimeField62, Residue62>(PrimeField62.Create(4294967311), 23, 2000); // smallest prime above 2^32 (checked by IsPrime in Create)
+        ReferenceCheck.Run<PrimeField62, Residue62>(PrimeField62.Create(4294967311), 23, 2000); // 2^32 + 15, the smallest prime above 2^32 [memory]; Create checks that it is prime
     }
 
     [Fact]

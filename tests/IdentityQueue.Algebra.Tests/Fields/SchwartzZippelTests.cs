@@ -179,7 +179,7 @@ public class SchwartzZippelTests
             if (d > 0 && zeros == bound) attained = true;
             checkedPolynomials++;
         }
-        // every nonzero affine polynomial has exactly p^(n−1) zeros, so degree 1 always attains the bound
+        // every nonconstant affine polynomial has exactly p^(n−1) zeros (common practice), so degree 1 attains the bound
         Assert.True(attained, "no polynomial attained the bound");
     }
 

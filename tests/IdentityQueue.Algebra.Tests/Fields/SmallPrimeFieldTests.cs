@@ -20,7 +20,7 @@ public class SmallPrimeFieldTests
         var top = ReferenceCheck.LargestPrimeBelowPowerOfTwo(63);
         ReferenceCheck.Run<SmallPrimeField, SmallResidue>(SmallPrimeField.Create((ulong)top), 1, 4000);
         ReferenceCheck.Run<SmallPrimeField, SmallResidue>(SmallPrimeField.Create(2), 2, 50);
-        ReferenceCheck.Run<SmallPrimeField, SmallResidue>(SmallPrimeField.Create(65521), 3, 2000); // largest prime below 2^16 (checked by Create)
+        ReferenceCheck.Run<SmallPrimeField, SmallResidue>(SmallPrimeField.Create(65521), 3, 2000); // largest prime below 2^16 [memory]; Create checks that it is prime
         ReferenceCheck.Run<SmallPrimeField, SmallResidue>(SmallPrimeField.Create(4294967311UL), 4, 2000);
     }
 
