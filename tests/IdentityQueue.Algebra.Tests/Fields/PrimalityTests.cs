@@ -42,10 +42,29 @@ public class PrimalityTests
     }
 
     [Fact]
-    public void StrongPseudoprimeHasTheExpectedFactorisation()
+    public void StrongPseudoprimeIsCompositeYetPassesBasesTwoThreeFiveSeven()
     {
-        // 3215031751 = 151 · 751 · 28351 [memory]; checked here by multiplication so the test does not rest on memory.
-        Assert.Equal(3215031751UL, 151UL * 751 * 28351);
+        // 3215031751 = 151 · 751 · 28351 [memory]; both facts are computed here, so the test does not rest on memory.
+        const ulong n = 3215031751;
+        Assert.Equal(n, 151UL * 751 * 28351);
+        foreach (var a in new[] { 2, 3, 5, 7 }) Assert.True(IsStrongProbablePrime(n, a), $"base {a}");
+        Assert.False(IsStrongProbablePrime(n, 11));
+    }
+
+    /// <summary>One Miller–Rabin round (common practice): n − 1 = d·2^s, a^d ≡ 1 or a^(d·2^r) ≡ −1 for some r &lt; s.</summary>
+    private static bool IsStrongProbablePrime(BigInteger n, BigInteger a)
+    {
+        var d = n - 1;
+        var s = 0;
+        while (d.IsEven) { d >>= 1; s++; }
+        var x = BigInteger.ModPow(a, d, n);
+        if (x.IsOne || x == n - 1) return true;
+        for (var r = 1; r < s; r++)
+        {
+            x = x * x % n;
+            if (x == n - 1) return true;
+        }
+        return false;
     }
 
     [Fact]
