@@ -79,7 +79,7 @@ public struct Xoshiro256
             for (var i = 0; i < bytes.Length - 1; i += 8)
             {
                 var r = NextUInt64();
-                for (var j = 0; j < 8 && i + j < bytes.Length - 1; j++) bytes[i + j] = (byte)(r >> (8 * j));
+                for (var j = 0; j < 8 && i + j < bytes.Length - 1; j++) bytes[i + j] = unchecked((byte)(r >> (8 * j))); // keep the low byte: an explicit narrowing is checked in this project
             }
             var excess = (bytes.Length - 1) * 8 - bits;
             bytes[^2] &= (byte)(0xFF >> excess);
