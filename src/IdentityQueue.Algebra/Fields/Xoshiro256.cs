@@ -23,7 +23,7 @@ public struct Xoshiro256
     /// <summary>Mixes several values into one seed (SplitMix64 finaliser), for deriving per-trial seeds.</summary>
     public static ulong Mix(ulong a, ulong b)
     {
-        var x = a ^ (b + 0x9E3779B97F4A7C15UL + (a << 6) + (a >> 2));
+        var x = unchecked(a ^ (b + 0x9E3779B97F4A7C15UL + (a << 6) + (a >> 2)));
         return SplitMix(ref x);
     }
 

@@ -1,0 +1,515 @@
+using System.Numerics;
+using System.Runtime.CompilerServices;
+using IdentityQueue.Algebra.Bounds;
+using IdentityQueue.Algebra.Exact;
+using IdentityQueue.Algebra.Syntax;
+
+namespace IdentityQueue.Algebra.Compile;
+
+/// <summary>One instance of an identity, compiled: the program of lhs − rhs, its bounds, and where it came from. Immutable.</summary>
+public sealed record CompiledIdentity(
+    IdentityEntry Entry,
+    IReadOnlyDictionary<string, BigInteger> Parameters,
+    StraightLineProgram Program,
+    IdentityBounds Bounds)
+{
+    public FieldSpec Field => Entry.Field;
+    public bool IsMatrixIdentity => Program.OutputNames.Length > 0;
+}
+
+/// <summary>
+/// Compiles an identity (with its family parameters fixed) into a straight-line program of lhs − rhs:
+/// sums, products, q-functions and matrix operations are expanded, types (scalar or matrix of a shape)
+/// are checked, and integer parameter expressions are evaluated exactly. Stateless; thread-safe.
+/// </summary>
+public static class IdentityCompiler
+{
+    private static readonly IReadOnlyDictionary<string, BigInteger> NoParameters = new Dictionary<string, BigInteger>();
+
+    /// <summary>Compiles one instance; errors come back as a <see cref="Diagnostic"/> with the position, never as an exception.</summary>
+    public static CompileResult Compile(IdentityEntry entry, IReadOnlyDictionary<string, BigInteger>? parameters = null, Limits? limits = null)
+    {
+        limits ??= Limits.Default;
+        parameters ??= NoParameters;
+        var walker = new Walker(limits, parameters);
+        try
+        {
+            var program = walker.CompileDifference(entry.Left, entry.Right);
+            var bounds = BoundAnalysis.Analyse(program);
+            return CompileResult.Ok(new CompiledIdentity(entry, parameters, program, bounds));
+        }
+        catch (CompileError e)
+        {
+            return CompileResult.Fail(e.ToDiagnostic());
+        }
+        catch (ProgramTooLargeException)
+        {
+            return CompileResult.Fail(new Diagnostic(walker.LastPosition,
+                $"the identity expands to more than {limits.MaxProgramSize} instructions (the limit MaxProgramSize)"));
+        }
+        catch (InsufficientExecutionStackException)
+        {
+            return CompileResult.Fail(new Diagnostic(walker.LastPosition,
+                $"the expression is nested too deeply to compile (see the limit MaxNestingDepth, {limits.MaxNestingDepth})"));
+        }
+    }
+
+    /// <summary>A scalar register or a matrix of registers.</summary>
+    private readonly struct Value
+    {
+        private Value(int scalar, int rows, int columns, int[]? entries)
+        {
+            Scalar = scalar;
+            Rows = rows;
+            Columns = columns;
+            Entries = entries;
+        }
+
+        public int Scalar { get; }
+        public int Rows { get; }
+        public int Columns { get; }
+        public int[]? Entries { get; }
+        public bool IsMatrix => Entries is not null;
+
+        public static Value Of(int register) => new(register, 0, 0, null);
+        public static Value Matrix(int rows, int columns, int[] entries) => new(-1, rows, columns, entries);
+
+        public int this[int i, int j] => Entries![i * Columns + j];
+
+        public string Describe() => IsMatrix ? $"a {Rows}×{Columns} matrix" : "a scalar";
+    }
+
+    private sealed class Walker(Limits limits, IReadOnlyDictionary<string, BigInteger> parameters) : IExprVisitor<Value>
+    {
+        private readonly ProgramBuilder _b = new(limits);
+        private readonly Dictionary<string, BigInteger> _scope = new(parameters, StringComparer.Ordinal);
+        private long _steps;
+
+        public SourcePosition LastPosition { get; private set; } = new(1, 1);
+
+        public StraightLineProgram CompileDifference(Expr left, Expr right)
+        {
+            var l = left.Accept(this);
+            var r = right.Accept(this);
+            if (!l.IsMatrix && !r.IsMatrix)
+            {
+                var d = _b.RawSubtract(l.Scalar, r.Scalar);
+                return _b.Build([d], []);
+            }
+            // A matrix compared with the literal 0 means the zero matrix.
+            if (!r.IsMatrix && IsLiteralZero(right)) r = ZeroMatrix(l.Rows, l.Columns);
+            if (!l.IsMatrix && IsLiteralZero(left)) l = ZeroMatrix(r.Rows, r.Columns);
+            if (l.IsMatrix != r.IsMatrix || l.Rows != r.Rows || l.Columns != r.Columns)
+                throw new CompileError(right.Position, $"the two sides differ in type: the left is {l.Describe()}, the right is {r.Describe()}");
+            var outputs = new int[l.Rows * l.Columns];
+            var names = new string[outputs.Length];
+            for (var i = 0; i < l.Rows; i++)
+                for (var j = 0; j < l.Columns; j++)
+                {
+                    outputs[i * l.Columns + j] = _b.RawSubtract(l[i, j], r[i, j]);
+                    names[i * l.Columns + j] = $"[{i + 1},{j + 1}]";
+                }
+            return _b.Build(outputs, names);
+        }
+
+        private static bool IsLiteralZero(Expr e) => e is IntegerLiteral { Value.IsZero: true };
+
+        private Value ZeroMatrix(int rows, int columns)
+        {
+            var zero = _b.Constant(Rational.Zero);
+            return Value.Matrix(rows, columns, Enumerable.Repeat(zero, rows * columns).ToArray());
+        }
+
+        private void Step(Expr node)
+        {
+            LastPosition = node.Position;
+            if (++_steps > limits.MaxProgramSize)
+                throw new CompileError(node.Position, $"the identity expands to more than {limits.MaxProgramSize} terms (the limit MaxProgramSize)");
+            RuntimeHelpers.EnsureSufficientExecutionStack();
+        }
+
+        private BigInteger Integer(Expr e, string context) => ParameterEvaluator.EvaluateInteger(e, _scope, limits, context);
+
+        private int ScalarOf(Expr e, string role)
+        {
+            var v = e.Accept(this);
+            if (v.IsMatrix) throw new CompileError(e.Position, $"{role} must be a scalar, but it is {v.Describe()}");
+            return v.Scalar;
+        }
+
+        private Value MatrixOf(Expr e, string role)
+        {
+            var v = e.Accept(this);
+            if (!v.IsMatrix) throw new CompileError(e.Position, $"{role} must be a matrix, but it is a scalar");
+            return v;
+        }
+
+        public Value VisitInteger(IntegerLiteral node)
+        {
+            Step(node);
+            return Value.Of(_b.Constant(node.Value));
+        }
+
+        public Value VisitName(NameRef node)
+        {
+            Step(node);
+            return Value.Of(_scope.TryGetValue(node.Name, out var p) ? _b.Constant(p) : _b.Variable(node.Name));
+        }
+
+        public Value VisitIndexed(IndexedName node)
+        {
+            Step(node);
+            if (_scope.ContainsKey(node.Name))
+                throw new CompileError(node.Position, $"'{node.Name}' is an integer parameter here and cannot be indexed");
+            var indices = new string[node.Indices.Count];
+            for (var i = 0; i < indices.Length; i++) indices[i] = Integer(node.Indices[i], "an index").ToString();
+            return Value.Of(_b.Variable($"{node.Name}[{string.Join(',', indices)}]"));
+        }
+
+        public Value VisitUnary(UnaryExpr node)
+        {
+            Step(node);
+            var v = node.Operand.Accept(this);
+            return Map(v, _b.Negate);
+        }
+
+        private Value Map(Value v, Func<int, int> f)
+        {
+            if (!v.IsMatrix) return Value.Of(f(v.Scalar));
+            var e = new int[v.Entries!.Length];
+            for (var i = 0; i < e.Length; i++) e[i] = f(v.Entries[i]);
+            return Value.Matrix(v.Rows, v.Columns, e);
+        }
+
+        public Value VisitBinary(BinaryExpr node)
+        {
+            Step(node);
+            if (node.Operator == BinaryOperator.Power) return Power(node);
+            var l = node.Left.Accept(this);
+            var r = node.Right.Accept(this);
+            return node.Operator switch
+            {
+                BinaryOperator.Add => AddOrSubtract(l, r, node.OperatorPosition, subtract: false),
+                BinaryOperator.Subtract => AddOrSubtract(l, r, node.OperatorPosition, subtract: true),
+                BinaryOperator.Multiply => Multiply(l, r, node.OperatorPosition),
+                _ => Divide(l, r, node),
+            };
+        }
+
+        private Value AddOrSubtract(Value l, Value r, SourcePosition at, bool subtract)
+        {
+            var verb = subtract ? "subtract" : "add";
+            if (!l.IsMatrix && !r.IsMatrix)
+                return Value.Of(subtract ? _b.Subtract(l.Scalar, r.Scalar) : _b.Add(l.Scalar, r.Scalar));
+            if (l.IsMatrix != r.IsMatrix || l.Rows != r.Rows || l.Columns != r.Columns)
+                throw new CompileError(at, subtract
+                    ? $"cannot subtract {r.Describe()} from {l.Describe()}"
+                    : $"cannot {verb} {l.Describe()} and {r.Describe()}");
+            var e = new int[l.Entries!.Length];
+            for (var i = 0; i < e.Length; i++)
+                e[i] = subtract ? _b.Subtract(l.Entries[i], r.Entries![i]) : _b.Add(l.Entries[i], r.Entries![i]);
+            return Value.Matrix(l.Rows, l.Columns, e);
+        }
+
+        private Value Multiply(Value l, Value r, SourcePosition at)
+        {
+            if (!l.IsMatrix && !r.IsMatrix) return Value.Of(_b.Multiply(l.Scalar, r.Scalar));
+            if (!l.IsMatrix) return Map(r, x => _b.Multiply(l.Scalar, x));
+            if (!r.IsMatrix) return Map(l, x => _b.Multiply(x, r.Scalar));
+            if (l.Columns != r.Rows)
+                throw new CompileError(at, $"cannot multiply {l.Describe()} by {r.Describe()}: the inner dimensions differ");
+            var e = new int[l.Rows * r.Columns];
+            for (var i = 0; i < l.Rows; i++)
+                for (var j = 0; j < r.Columns; j++)
+                {
+                    var acc = _b.Multiply(l[i, 0], r[0, j]);
+                    for (var k = 1; k < l.Columns; k++) acc = _b.Add(acc, _b.Multiply(l[i, k], r[k, j]));
+                    e[i * r.Columns + j] = acc;
+                }
+            return Value.Matrix(l.Rows, r.Columns, e);
+        }
+
+        private Value Divide(Value l, Value r, BinaryExpr node)
+        {
+            if (r.IsMatrix) throw new CompileError(node.Right.Position, $"cannot divide by a matrix ({r.Describe()})");
+            if (_b.TryGetConstant(r.Scalar, out var c) && c.IsZero)
+                throw new CompileError(node.OperatorPosition, "division by zero");
+            var inverse = _b.Invert(r.Scalar);
+            return Map(l, x => _b.Multiply(x, inverse));
+        }
+
+        private Value Power(BinaryExpr node)
+        {
+            var b = node.Left.Accept(this);
+            var e = Integer(node.Right, "an exponent");
+            if (e.Sign < 0)
+                throw new CompileError(node.Right.Position, $"the exponent is {e}; exponents must be non-negative integers");
+            if (e > limits.MaxExponent)
+                throw new CompileError(node.Right.Position, $"the exponent has {e.GetBitLength()} bits; the limit MaxExponent is {limits.MaxExponent}");
+            if (!b.IsMatrix) return Value.Of(_b.Power(b.Scalar, e));
+            if (b.Rows != b.Columns) throw new CompileError(node.Left.Position, $"only a square matrix has powers, not {b.Describe()}");
+            var result = Identity(b.Rows);
+            var square = b;
+            while (!e.IsZero)
+            {
+                if (!e.IsEven) result = Multiply(result, square, node.OperatorPosition);
+                e >>= 1;
+                if (!e.IsZero) square = Multiply(square, square, node.OperatorPosition);
+            }
+            return result;
+        }
+
+        private Value Identity(int n)
+        {
+            var one = _b.Constant(Rational.One);
+            var zero = _b.Constant(Rational.Zero);
+            var e = new int[n * n];
+            for (var i = 0; i < n; i++)
+                for (var j = 0; j < n; j++) e[i * n + j] = i == j ? one : zero;
+            return Value.Matrix(n, n, e);
+        }
+
+        private int CheckedCount(BigInteger count, Expr at, string what)
+        {
+            if (count > limits.MaxFunctionArgument)
+                throw new CompileError(at.Position, $"{what} is {count}; the limit MaxFunctionArgument is {limits.MaxFunctionArgument}");
+            return (int)count;
+        }
+
+        public Value VisitCall(CallExpr node)
+        {
+            Step(node);
+            var args = node.Arguments;
+            switch (node.Function)
+            {
+                case Builtins.Fact:
+                {
+                    var n = Integer(args[0], "fact's argument");
+                    if (n.Sign < 0) throw new CompileError(args[0].Position, $"fact's argument must be non-negative, but it is {n}");
+                    var count = CheckedCount(n, args[0], "fact's argument");
+                    var acc = _b.Constant(Rational.One);
+                    for (var i = 2; i <= count; i++) acc = _b.Multiply(acc, _b.Constant(i));
+                    return Value.Of(acc);
+                }
+                case Builtins.Binom:
+                {
+                    var a = ScalarOf(args[0], "binom's first argument");
+                    var k = Integer(args[1], "binom's second argument");
+                    if (k.Sign < 0) return Value.Of(_b.Constant(Rational.Zero));
+                    var count = CheckedCount(k, args[1], "binom's second argument");
+                    var acc = _b.Constant(Rational.One);
+                    var factorial = BigInteger.One;
+                    for (var i = 0; i < count; i++)
+                    {
+                        acc = _b.Multiply(acc, _b.Subtract(a, _b.Constant(i)));
+                        factorial *= i + 1;
+                    }
+                    return Value.Of(_b.Multiply(acc, _b.Constant(Rational.Create(1, factorial))));
+                }
+                case Builtins.QInt:
+                {
+                    var n = QCount(args[0], "qint's first argument");
+                    var q = ScalarOf(args[1], "qint's second argument");
+                    return Value.Of(QInts(q, n)[n]);
+                }
+                case Builtins.QFact:
+                {
+                    var n = QCount(args[0], "qfact's first argument");
+                    var q = ScalarOf(args[1], "qfact's second argument");
+                    var ints = QInts(q, n);
+                    var acc = _b.Constant(Rational.One);
+                    for (var i = 1; i <= n; i++) acc = _b.Multiply(acc, ints[i]);
+                    return Value.Of(acc);
+                }
+                case Builtins.QBinom:
+                    return Value.Of(QBinomial(node));
+                case Builtins.Det:
+                case Builtins.Permanent:
+                case Builtins.Pfaffian:
+                    return Value.Of(MatrixFunction(node));
+                case Builtins.Trace:
+                {
+                    var m = MatrixOf(args[0], "tr's argument");
+                    if (m.Rows != m.Columns) throw new CompileError(args[0].Position, $"tr needs a square matrix, not {m.Describe()}");
+                    var acc = m[0, 0];
+                    for (var i = 1; i < m.Rows; i++) acc = _b.Add(acc, m[i, i]);
+                    return Value.Of(acc);
+                }
+                case Builtins.Transpose:
+                {
+                    var m = MatrixOf(args[0], "transpose's argument");
+                    var e = new int[m.Entries!.Length];
+                    for (var i = 0; i < m.Rows; i++)
+                        for (var j = 0; j < m.Columns; j++) e[j * m.Rows + i] = m[i, j];
+                    return Value.Matrix(m.Columns, m.Rows, e);
+                }
+                case Builtins.Identity:
+                {
+                    var n = Integer(args[0], "id's argument");
+                    if (n < 1 || n > limits.MaxMatrixOrder)
+                        throw new CompileError(args[0].Position, $"id's argument is {n}; it must be between 1 and the limit MaxMatrixOrder ({limits.MaxMatrixOrder})");
+                    return Identity((int)n);
+                }
+                default:
+                    throw new CompileError(node.Position, $"unknown function '{node.Function}'");
+            }
+        }
+
+        private int QCount(Expr e, string what)
+        {
+            var n = Integer(e, what);
+            if (n.Sign < 0) throw new CompileError(e.Position, $"{what} must be non-negative, but it is {n}");
+            return CheckedCount(n, e, what);
+        }
+
+        /// <summary>qint(0..n, q) with qint(i+1) = qint(i) + q^i.</summary>
+        private int[] QInts(int q, int n)
+        {
+            var ints = new int[n + 1];
+            ints[0] = _b.Constant(Rational.Zero);
+            var power = _b.Constant(Rational.One);
+            for (var i = 0; i < n; i++)
+            {
+                ints[i + 1] = _b.Add(ints[i], power);
+                power = _b.Multiply(power, q);
+            }
+            return ints;
+        }
+
+        /// <summary>Gaussian binomial by the q-Pascal rule [n,k] = [n−1,k−1] + q^k·[n−1,k], division-free.</summary>
+        private int QBinomial(CallExpr node)
+        {
+            var args = node.Arguments;
+            var nValue = Integer(args[0], "qbinom's first argument");
+            var kValue = Integer(args[1], "qbinom's second argument");
+            var q = ScalarOf(args[2], "qbinom's third argument");
+            if (nValue.Sign < 0) throw new CompileError(args[0].Position, $"qbinom's first argument must be non-negative, but it is {nValue}");
+            if (kValue.Sign < 0 || kValue > nValue) return _b.Constant(Rational.Zero);
+            var n = CheckedCount(nValue, args[0], "qbinom's first argument");
+            var k = (int)kValue;
+            if ((long)n * (k + 1) > limits.MaxProgramSize)
+                throw new CompileError(node.Position, $"qbinom({n}, {k}, ·) expands to more than {limits.MaxProgramSize} instructions (the limit MaxProgramSize)");
+            var powers = new int[k + 1];
+            powers[0] = _b.Constant(Rational.One);
+            for (var j = 1; j <= k; j++) powers[j] = _b.Multiply(powers[j - 1], q);
+            // row[j] = [m, j] for the current m, j = 0..k
+            var row = new int[k + 1];
+            var zero = _b.Constant(Rational.Zero);
+            row[0] = _b.Constant(Rational.One);
+            for (var j = 1; j <= k; j++) row[j] = zero;
+            for (var m = 1; m <= n; m++)
+                for (var j = Math.Min(m, k); j >= 1; j--)
+                    row[j] = _b.Add(row[j - 1], _b.Multiply(powers[j], row[j]));
+            return row[k];
+        }
+
+        private int MatrixFunction(CallExpr node)
+        {
+            var m = MatrixOf(node.Arguments[0], $"{node.Function}'s argument");
+            if (m.Rows != m.Columns)
+                throw new CompileError(node.Arguments[0].Position, $"{node.Function} needs a square matrix, not {m.Describe()}");
+            var n = m.Rows;
+            switch (node.Function)
+            {
+                case Builtins.Det:
+                    if (n == 1) return m[0, 0];
+                    return _b.MatrixFunction(OpCode.Determinant, n, m.Entries);
+                case Builtins.Permanent:
+                    if (n > limits.MaxPermanentOrder)
+                        throw new CompileError(node.Position, $"perm of a {n}×{n} matrix exceeds the limit MaxPermanentOrder ({limits.MaxPermanentOrder})");
+                    if (n == 1) return m[0, 0];
+                    return _b.MatrixFunction(OpCode.Permanent, n, m.Entries);
+                default:
+                    if (n % 2 == 1)
+                        throw new CompileError(node.Arguments[0].Position, $"pf needs a skew-symmetric matrix of even order, but this one is {n}×{n}");
+                    for (var i = 0; i < n; i++)
+                    {
+                        if (!_b.TryGetConstant(m[i, i], out var d) || !d.IsZero)
+                            throw new CompileError(node.Arguments[0].Position, $"pf needs a skew-symmetric matrix, but entry [{i + 1},{i + 1}] is not 0");
+                        for (var j = i + 1; j < n; j++)
+                            if (!_b.AreNegatives(m[i, j], m[j, i]))
+                                throw new CompileError(node.Arguments[0].Position, $"pf needs a skew-symmetric matrix, but entry [{j + 1},{i + 1}] is not the negative of entry [{i + 1},{j + 1}]");
+                    }
+                    return _b.MatrixFunction(OpCode.Pfaffian, n, m.Entries);
+            }
+        }
+
+        public Value VisitBound(BoundExpr node)
+        {
+            Step(node);
+            var from = Integer(node.From, "a range start");
+            var to = Integer(node.To, "a range end");
+            if (to - from + 1 > limits.MaxProgramSize)
+                throw new CompileError(node.Position, $"the range {from}..{to} has more than {limits.MaxProgramSize} terms (the limit MaxProgramSize)");
+            var saved = _scope.TryGetValue(node.Variable, out var outer);
+            Value? acc = null;
+            try
+            {
+                for (var k = from; k <= to; k++)
+                {
+                    _scope[node.Variable] = k;
+                    var term = node.Body.Accept(this);
+                    acc = acc is null ? term
+                        : node.Kind == BoundKind.Sum ? AddOrSubtract(acc.Value, term, node.Body.Position, subtract: false)
+                        : Multiply(acc.Value, term, node.Position);
+                }
+            }
+            finally
+            {
+                if (saved) _scope[node.Variable] = outer; else _scope.Remove(node.Variable);
+            }
+            return acc ?? Value.Of(_b.Constant(node.Kind == BoundKind.Sum ? Rational.Zero : Rational.One));
+        }
+
+        public Value VisitMatrixComprehension(MatrixComprehension node)
+        {
+            Step(node);
+            var r0 = Integer(node.RowFrom, "a range start");
+            var r1 = Integer(node.RowTo, "a range end");
+            var c0 = Integer(node.ColumnFrom, "a range start");
+            var c1 = Integer(node.ColumnTo, "a range end");
+            var rows = r1 - r0 + 1;
+            var columns = c1 - c0 + 1;
+            if (rows < 1 || columns < 1)
+                throw new CompileError(node.Position, $"the matrix would have {BigInteger.Max(rows, 0)} rows and {BigInteger.Max(columns, 0)} columns; a matrix needs at least one of each");
+            if (rows > limits.MaxMatrixOrder || columns > limits.MaxMatrixOrder)
+                throw new CompileError(node.Position, $"the matrix is {rows}×{columns}; the limit MaxMatrixOrder is {limits.MaxMatrixOrder}");
+            var e = new int[(int)rows * (int)columns];
+            var savedRow = _scope.TryGetValue(node.RowVariable, out var outerRow);
+            var savedColumn = _scope.TryGetValue(node.ColumnVariable, out var outerColumn);
+            try
+            {
+                for (var i = 0; i < (int)rows; i++)
+                    for (var j = 0; j < (int)columns; j++)
+                    {
+                        _scope[node.RowVariable] = r0 + i;
+                        _scope[node.ColumnVariable] = c0 + j;
+                        e[i * (int)columns + j] = ScalarOf(node.Body, "a matrix entry");
+                    }
+            }
+            finally
+            {
+                if (savedRow) _scope[node.RowVariable] = outerRow; else _scope.Remove(node.RowVariable);
+                if (savedColumn) _scope[node.ColumnVariable] = outerColumn; else _scope.Remove(node.ColumnVariable);
+            }
+            return Value.Matrix((int)rows, (int)columns, e);
+        }
+
+        public Value VisitMatrixLiteral(MatrixLiteral node)
+        {
+            Step(node);
+            var rows = node.Rows.Count;
+            var columns = node.Rows[0].Count;
+            if (rows > limits.MaxMatrixOrder || columns > limits.MaxMatrixOrder)
+                throw new CompileError(node.Position, $"the matrix is {rows}×{columns}; the limit MaxMatrixOrder is {limits.MaxMatrixOrder}");
+            var e = new int[rows * columns];
+            for (var i = 0; i < rows; i++)
+            {
+                if (node.Rows[i].Count != columns)
+                    throw new CompileError(node.Rows[i].Count > 0 ? node.Rows[i][0].Position : node.Position, $"row {i + 1} has {node.Rows[i].Count} entries but row 1 has {columns}");
+                for (var j = 0; j < columns; j++) e[i * columns + j] = ScalarOf(node.Rows[i][j], "a matrix entry");
+            }
+            return Value.Matrix(rows, columns, e);
+        }
+    }
+}

@@ -1,0 +1,126 @@
+using System.Numerics;
+using IdentityQueue.Algebra.Exact;
+using IdentityQueue.Algebra.Syntax;
+
+namespace IdentityQueue.Algebra.Compile;
+
+/// <summary>
+/// Evaluates integer parameter expressions (range ends, exponents, indices, the integer arguments of
+/// binom/fact/q-functions) exactly, given the values of the parameters in scope. Sizes are checked
+/// before any work that could blow up, against <see cref="Limits.MaxParameterBits"/>.
+/// </summary>
+internal sealed class ParameterEvaluator(IReadOnlyDictionary<string, BigInteger> scope, Limits limits, string context)
+    : IExprVisitor<Rational>
+{
+    /// <summary>Evaluates <paramref name="expression"/> to an integer; <paramref name="context"/> says where it stands ("an exponent").</summary>
+    public static BigInteger EvaluateInteger(Expr expression, IReadOnlyDictionary<string, BigInteger> scope, Limits limits, string context)
+    {
+        var value = expression.Accept(new ParameterEvaluator(scope, limits, context));
+        if (!value.IsInteger)
+            throw new CompileError(expression.Position, $"{context} must be an integer, but it is {value}");
+        return value.Numerator;
+    }
+
+    private Rational Checked(Rational value, SourcePosition at)
+    {
+        if (value.Numerator.GetBitLength() > limits.MaxParameterBits || value.Denominator.GetBitLength() > limits.MaxParameterBits)
+            throw new CompileError(at, $"{context} has a value larger than 2^{limits.MaxParameterBits} (the limit MaxParameterBits)");
+        return value;
+    }
+
+    public Rational VisitInteger(IntegerLiteral node) => Checked(node.Value, node.Position);
+
+    public Rational VisitName(NameRef node) =>
+        scope.TryGetValue(node.Name, out var value)
+            ? value
+            : throw new CompileError(node.Position, $"{context} must be an integer expression in the parameters, but '{node.Name}' is a variable");
+
+    public Rational VisitIndexed(IndexedName node) =>
+        throw new CompileError(node.Position, $"{context} must be an integer expression in the parameters, but '{node.Name}[...]' is a variable");
+
+    public Rational VisitUnary(UnaryExpr node) => -node.Operand.Accept(this);
+
+    public Rational VisitBinary(BinaryExpr node)
+    {
+        var left = node.Left.Accept(this);
+        var right = node.Right.Accept(this);
+        switch (node.Operator)
+        {
+            case BinaryOperator.Add: return Checked(left + right, node.Position);
+            case BinaryOperator.Subtract: return Checked(left - right, node.Position);
+            case BinaryOperator.Multiply: return Checked(left * right, node.Position);
+            case BinaryOperator.Divide:
+                if (right.IsZero) throw new CompileError(node.OperatorPosition, $"division by zero in {context}");
+                return Checked(left / right, node.Position);
+            default:
+                if (!right.IsInteger)
+                    throw new CompileError(node.Right.Position, $"an exponent must be an integer, but it is {right}");
+                var exponent = right.Numerator;
+                if (left.IsZero || left == Rational.One) return exponent.Sign < 0 && left.IsZero
+                    ? throw new CompileError(node.OperatorPosition, $"0 raised to a negative power in {context}")
+                    : exponent.IsZero ? Rational.One : left;
+                if (left == -Rational.One) return exponent.IsEven ? Rational.One : left;
+                var bits = Math.Max(left.Numerator.GetBitLength(), left.Denominator.GetBitLength());
+                if (BigInteger.Abs(exponent) * bits > limits.MaxParameterBits)
+                    throw new CompileError(node.OperatorPosition, $"{context} has a value larger than 2^{limits.MaxParameterBits} (the limit MaxParameterBits)");
+                return Rational.Pow(left, (int)exponent);
+        }
+    }
+
+    public Rational VisitCall(CallExpr node)
+    {
+        switch (node.Function)
+        {
+            case Builtins.Fact:
+            {
+                var n = Integer(node.Arguments[0], "fact's argument");
+                if (n.Sign < 0) throw new CompileError(node.Arguments[0].Position, $"fact's argument must be non-negative, but it is {n}");
+                if (n > limits.MaxFunctionArgument) throw new CompileError(node.Arguments[0].Position, $"fact({n}) exceeds the limit MaxFunctionArgument ({limits.MaxFunctionArgument})");
+                var result = BigInteger.One;
+                for (var i = 2; i <= (int)n; i++) result *= i;
+                return Checked(result, node.Position);
+            }
+            case Builtins.Binom:
+            {
+                var a = node.Arguments[0].Accept(this);
+                var k = Integer(node.Arguments[1], "binom's second argument");
+                if (k.Sign < 0) return Rational.Zero;
+                if (k > limits.MaxFunctionArgument) throw new CompileError(node.Arguments[1].Position, $"binom's second argument {k} exceeds the limit MaxFunctionArgument ({limits.MaxFunctionArgument})");
+                var result = Rational.One;
+                for (var i = 0; i < (int)k; i++) result = Checked(result * (a - i) / (i + 1), node.Position);
+                return result;
+            }
+            default:
+                throw new CompileError(node.Position, $"{context} must be an integer expression in the parameters; {node.Function}(...) is not allowed there");
+        }
+    }
+
+    private BigInteger Integer(Expr e, string what)
+    {
+        var v = e.Accept(this);
+        return v.IsInteger ? v.Numerator : throw new CompileError(e.Position, $"{what} must be an integer, but it is {v}");
+    }
+
+    public Rational VisitBound(BoundExpr node)
+    {
+        var from = Integer(node.From, "a range start");
+        var to = Integer(node.To, "a range end");
+        if (to - from + 1 > limits.MaxProgramSize)
+            throw new CompileError(node.Position, $"the range {from}..{to} has more than {limits.MaxProgramSize} terms (the limit MaxProgramSize)");
+        var inner = new Dictionary<string, BigInteger>(scope);
+        var acc = node.Kind == BoundKind.Sum ? Rational.Zero : Rational.One;
+        for (var k = from; k <= to; k++)
+        {
+            inner[node.Variable] = k;
+            var term = node.Body.Accept(new ParameterEvaluator(inner, limits, context));
+            acc = Checked(node.Kind == BoundKind.Sum ? acc + term : acc * term, node.Position);
+        }
+        return acc;
+    }
+
+    public Rational VisitMatrixComprehension(MatrixComprehension node) =>
+        throw new CompileError(node.Position, $"{context} must be an integer, not a matrix");
+
+    public Rational VisitMatrixLiteral(MatrixLiteral node) =>
+        throw new CompileError(node.Position, $"{context} must be an integer, not a matrix");
+}

@@ -1,0 +1,65 @@
+using System.Numerics;
+using IdentityQueue.Algebra.Exact;
+
+namespace IdentityQueue.Algebra.Compile;
+
+/// <summary>The operations of a straight-line program. Instruction i writes register i.</summary>
+public enum OpCode : byte
+{
+    /// <summary>The rational constant <c>Constants[A]</c>.</summary>
+    Constant,
+    /// <summary>The variable <c>Variables[A]</c>.</summary>
+    Variable,
+    Add,
+    Subtract,
+    Multiply,
+    Negate,
+    /// <summary>1/A; undefined where A vanishes.</summary>
+    Invert,
+    /// <summary>A^<c>Exponents[B]</c>.</summary>
+    Power,
+    /// <summary>Determinant of the B×B matrix whose registers, row by row, are <c>Operands[A .. A+B·B]</c>.</summary>
+    Determinant,
+    /// <summary>Permanent, operands as for <see cref="Determinant"/>.</summary>
+    Permanent,
+    /// <summary>Pfaffian of a skew-symmetric B×B matrix, operands as for <see cref="Determinant"/>.</summary>
+    Pfaffian,
+}
+
+/// <summary>One instruction; operand meanings depend on <see cref="Op"/>.</summary>
+public readonly record struct Instruction(OpCode Op, int A, int B);
+
+/// <summary>
+/// A compiled expression: instructions in dependency order with hash-consed common subexpressions, the
+/// tables they refer to, and the output registers (one for a scalar identity, one per entry for a matrix
+/// identity). Immutable once built; safe to share between threads and between trials.
+/// </summary>
+public sealed class StraightLineProgram
+{
+    internal StraightLineProgram(
+        Instruction[] instructions, Rational[] constants, BigInteger[] exponents, int[] operands,
+        string[] variables, int[] outputs, string[] outputNames)
+    {
+        Instructions = instructions;
+        Constants = constants;
+        Exponents = exponents;
+        Operands = operands;
+        Variables = variables;
+        Outputs = outputs;
+        OutputNames = outputNames;
+    }
+
+    public Instruction[] Instructions { get; }
+    public Rational[] Constants { get; }
+    public BigInteger[] Exponents { get; }
+    /// <summary>Register lists of matrix instructions.</summary>
+    public int[] Operands { get; }
+    /// <summary>Evaluated variable names in order of first appearance: <c>x</c>, <c>x[3]</c>, <c>a[1,2]</c>.</summary>
+    public string[] Variables { get; }
+    /// <summary>Registers holding lhs − rhs (entrywise for matrices).</summary>
+    public int[] Outputs { get; }
+    /// <summary>Empty for a scalar identity; <c>[i,j]</c> per output of a matrix identity.</summary>
+    public string[] OutputNames { get; }
+
+    public int Length => Instructions.Length;
+}

@@ -1,0 +1,75 @@
+using IdentityQueue.Algebra.Compile;
+using IdentityQueue.Algebra.Fields;
+
+namespace IdentityQueue.Algebra.Evaluate;
+
+/// <summary>
+/// Runs a <see cref="StraightLineProgram"/> over any field, at one point. One generic implementation: the field is a
+/// struct type parameter, so the JIT makes a specialised copy per rung. Stateless; thread-safe (callers own the buffers).
+/// </summary>
+public static class Evaluator
+{
+    /// <summary>
+    /// The program's constants as field elements, or false when a constant's denominator is 0 in the field
+    /// (then every point is undefined in this field).
+    /// </summary>
+    public static bool TryPrepareConstants<TField, T>(TField field, StraightLineProgram program, out T[] constants)
+        where TField : struct, IField<T> where T : struct
+    {
+        constants = new T[program.Constants.Length];
+        for (var i = 0; i < constants.Length; i++)
+        {
+            var c = program.Constants[i];
+            var numerator = field.FromInteger(c.Numerator);
+            if (c.IsInteger) { constants[i] = numerator; continue; }
+            if (!field.TryInvert(field.FromInteger(c.Denominator), out var inverse)) return false;
+            constants[i] = field.Multiply(numerator, inverse);
+        }
+        return true;
+    }
+
+    /// <summary>
+    /// Evaluates every register at <paramref name="point"/> (indexed like <see cref="StraightLineProgram.Variables"/>);
+    /// false when a division by zero made the point undefined. <paramref name="registers"/> needs <see cref="StraightLineProgram.Length"/> slots.
+    /// </summary>
+    public static bool Evaluate<TField, T>(TField field, StraightLineProgram program, ReadOnlySpan<T> constants, ReadOnlySpan<T> point, Span<T> registers)
+        where TField : struct, IField<T> where T : struct
+    {
+        var instructions = program.Instructions;
+        T[]? scratch = null;
+        for (var i = 0; i < instructions.Length; i++)
+        {
+            var ins = instructions[i];
+            switch (ins.Op)
+            {
+                case OpCode.Constant: registers[i] = constants[ins.A]; break;
+                case OpCode.Variable: registers[i] = point[ins.A]; break;
+                case OpCode.Add: registers[i] = field.Add(registers[ins.A], registers[ins.B]); break;
+                case OpCode.Subtract: registers[i] = field.Subtract(registers[ins.A], registers[ins.B]); break;
+                case OpCode.Multiply: registers[i] = field.Multiply(registers[ins.A], registers[ins.B]); break;
+                case OpCode.Negate: registers[i] = field.Negate(registers[ins.A]); break;
+                case OpCode.Invert:
+                    if (!field.TryInvert(registers[ins.A], out var inverse)) return false;
+                    registers[i] = inverse;
+                    break;
+                case OpCode.Power: registers[i] = FieldMath.Pow(field, registers[ins.A], program.Exponents[ins.B]); break;
+                default:
+                {
+                    var n = ins.B;
+                    if (scratch is null || scratch.Length < n * n) scratch = new T[n * n];
+                    var m = scratch.AsSpan(0, n * n);
+                    var ops = program.Operands.AsSpan(ins.A, n * n);
+                    for (var k = 0; k < m.Length; k++) m[k] = registers[ops[k]];
+                    registers[i] = ins.Op switch
+                    {
+                        OpCode.Determinant => MatrixKernels.Determinant(field, m, n),
+                        OpCode.Permanent => MatrixKernels.Permanent(field, m, n),
+                        _ => MatrixKernels.Pfaffian(field, m, n),
+                    };
+                    break;
+                }
+            }
+        }
+        return true;
+    }
+}
