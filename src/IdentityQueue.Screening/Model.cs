@@ -1,0 +1,78 @@
+using System.Numerics;
+
+namespace IdentityQueue.Screening;
+
+/// <summary>What one evaluation found.</summary>
+public enum TrialOutcome
+{
+    /// <summary>lhs − rhs vanished at the point: evidence for the identity.</summary>
+    Zero,
+    /// <summary>lhs − rhs did not vanish: the identity is false, and this trial is the witness.</summary>
+    Nonzero,
+    /// <summary>A denominator vanished at the point: no evidence either way; the screen resamples.</summary>
+    Undefined,
+}
+
+/// <summary>The states a screened candidate can end in (names as in the store's <c>result.state</c>).</summary>
+public enum Verdict { Survived, Refuted, Undecided, Invalid }
+
+/// <summary>A field a trial ran in: GF(p) when <see cref="DefiningPolynomial"/> is null, else GF(p)[t]/(f). Immutable.</summary>
+public sealed record TrialField(BigInteger Modulus, int ExtensionDegree, BigInteger[]? DefiningPolynomial, double SizeLog2)
+{
+    /// <summary>Bits of the field size, rounded up (the store's <c>field_bits</c>).</summary>
+    public int Bits => (int)Math.Ceiling(SizeLog2 - 1e-9);
+}
+
+/// <summary>A variable's value in a trial: its name (indices evaluated, <c>x[3]</c>) and its coordinates over GF(p).</summary>
+public sealed record PointValue(string Name, BigInteger[] Coordinates);
+
+/// <summary>
+/// One evaluation of lhs − rhs at a random point. The witness of a refutation is re-checkable from
+/// <see cref="Field"/> and <see cref="Point"/> alone. Immutable.
+/// </summary>
+public sealed record TrialRecord(
+    int Seq,
+    TrialField Field,
+    ulong PointSeed,
+    TrialOutcome Outcome,
+    IReadOnlyList<PointValue> Point,
+    BigInteger[]? Difference,
+    string? Entry,
+    double? BoundLog2,
+    long ElapsedMicroseconds);
+
+/// <summary>The outcome of screening one candidate (or of continuing its screening). Immutable.</summary>
+public sealed record ScreenResult(
+    Verdict Verdict,
+    BigInteger DegreeBound,
+    double HeightBoundLog2,
+    double? ErrorBoundLog2,
+    IReadOnlyList<TrialRecord> Trials,
+    TrialRecord? Witness,
+    bool Certified,
+    string? Message)
+{
+    /// <summary>All trials that ran, with those given as prior evidence first.</summary>
+    public int TrialCount => Trials.Count;
+}
+
+/// <summary>Settings of one screening run. Immutable.</summary>
+public sealed record ScreeningOptions
+{
+    /// <summary>A false identity survives with probability at most 2^-TargetBits.</summary>
+    public int TargetBits { get; init; } = 64;
+
+    /// <summary>The run's seed: every prime and point derives from it, the candidate key and the trial number.</summary>
+    public ulong Seed { get; init; }
+
+    /// <summary>A trial must buy at least this many bits of evidence, or a larger field is used.</summary>
+    public int MinBitsPerTrial { get; init; } = 16;
+
+    /// <summary>Undefined points in a row after which the candidate is undecided.</summary>
+    public int MaxConsecutiveUndefined { get; init; } = 24;
+
+    public Algebra.Limits Limits { get; init; } = Algebra.Limits.Default;
+
+    /// <summary>Confirm refutations over Q by exact rational evaluation when it fits <see cref="Algebra.Limits.MaxCertifyBits"/>.</summary>
+    public bool Certify { get; init; } = true;
+}

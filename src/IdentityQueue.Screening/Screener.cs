@@ -1,0 +1,77 @@
+using System.Diagnostics;
+using IdentityQueue.Algebra.Compile;
+using IdentityQueue.Algebra.Fields;
+
+namespace IdentityQueue.Screening;
+
+/// <summary>
+/// The screening policy (SPEC §5): trials on the escalation ladder until the accumulated error bound reaches
+/// 2^-TargetBits (survived), a trial is nonzero (refuted), or a budget runs out (undecided, with the reason).
+/// Earlier trials of the same candidate count as evidence and are not redone, so a run with a higher target only adds
+/// trials. Stateless; thread-safe.
+/// </summary>
+public static class Screener
+{
+    /// <summary>The seed of trial <paramref name="seq"/> of a candidate: a pure function of the run seed, the candidate key and seq.</summary>
+    public static ulong TrialSeed(ulong runSeed, ulong candidateKey, int seq) =>
+        Xoshiro256.Mix(Xoshiro256.Mix(runSeed, candidateKey), (ulong)seq);
+
+    /// <summary>Screens one compiled candidate, continuing after <paramref name="priorTrials"/> (empty for a fresh candidate).</summary>
+    public static ScreenResult Screen(CompiledIdentity identity, ScreeningOptions options, ulong candidateKey,
+        IReadOnlyList<TrialRecord>? priorTrials = null, CancellationToken cancellation = default)
+    {
+        var trials = new List<TrialRecord>(priorTrials ?? []);
+        var bounds = identity.Bounds;
+        var accumulated = 0.0;
+        var zeroTrials = 0;
+        var consecutiveUndefined = 0;
+        foreach (var t in trials)
+        {
+            if (t.Outcome == TrialOutcome.Nonzero) return Refuted(identity, options, trials, t);
+            if (t.Outcome == TrialOutcome.Zero) { accumulated += t.BoundLog2 ?? 0; zeroTrials++; consecutiveUndefined = 0; }
+            else consecutiveUndefined++;
+        }
+        var rungs = FieldLadder.Rungs(identity.Field, options.Limits.MaxFieldBits);
+        var clock = Stopwatch.StartNew();
+        var seq = trials.Count == 0 ? 1 : trials[^1].Seq + 1;
+        while (accumulated > -options.TargetBits)
+        {
+            var rung = FieldLadder.Choose(identity, rungs, zeroTrials, options.MinBitsPerTrial);
+            if (rung is null)
+                return Undecided(identity, trials, accumulated,
+                    $"the degree bound {bounds.Degree} is too large: a trial in the largest field allowed (MaxFieldBits = {options.Limits.MaxFieldBits}) buys only {FieldLadder.BestBits(identity, rungs):F1} bits, fewer than {options.MinBitsPerTrial}");
+            if (trials.Count >= options.Limits.MaxTrials)
+                return Undecided(identity, trials, accumulated, $"the trial budget (MaxTrials = {options.Limits.MaxTrials}) ran out at 2^{accumulated:F1} of the target 2^-{options.TargetBits}");
+            if (clock.Elapsed > options.Limits.TimePerCandidate || cancellation.IsCancellationRequested)
+                return Undecided(identity, trials, accumulated, $"the time budget (TimePerCandidate = {options.Limits.TimePerCandidate.TotalSeconds:F0} s) ran out at 2^{accumulated:F1} of the target 2^-{options.TargetBits}");
+            var trial = TrialRunner.Run(identity, rung, seq, TrialSeed(options.Seed, candidateKey, seq));
+            trials.Add(trial);
+            seq++;
+            switch (trial.Outcome)
+            {
+                case TrialOutcome.Nonzero:
+                    return Refuted(identity, options, trials, trial);
+                case TrialOutcome.Undefined:
+                    if (++consecutiveUndefined >= options.MaxConsecutiveUndefined)
+                        return Undecided(identity, trials, accumulated,
+                            $"lhs − rhs was undefined (a denominator vanished) at {consecutiveUndefined} random points in a row: a denominator may be identically zero");
+                    break;
+                default:
+                    consecutiveUndefined = 0;
+                    zeroTrials++;
+                    accumulated += trial.BoundLog2 ?? 0;
+                    break;
+            }
+        }
+        return new ScreenResult(Verdict.Survived, bounds.Degree, bounds.HeightLog2, accumulated, trials, null, false, null);
+    }
+
+    private static ScreenResult Undecided(CompiledIdentity identity, List<TrialRecord> trials, double accumulated, string message) =>
+        new(Verdict.Undecided, identity.Bounds.Degree, identity.Bounds.HeightLog2, accumulated, trials, null, false, message);
+
+    private static ScreenResult Refuted(CompiledIdentity identity, ScreeningOptions options, List<TrialRecord> trials, TrialRecord witness)
+    {
+        var certified = options.Certify && WitnessChecker.Certify(identity, witness, options.Limits);
+        return new ScreenResult(Verdict.Refuted, identity.Bounds.Degree, identity.Bounds.HeightLog2, null, trials, witness, certified, null);
+    }
+}

@@ -1,0 +1,70 @@
+using System.Diagnostics;
+using System.Numerics;
+using IdentityQueue.Algebra.Compile;
+using IdentityQueue.Algebra.Evaluate;
+using IdentityQueue.Algebra.Fields;
+
+namespace IdentityQueue.Screening;
+
+/// <summary>
+/// Runs one trial: draws the field of the rung (a random prime, or a random irreducible polynomial) and a uniform point from
+/// the trial's seed, evaluates lhs − rhs, and records the outcome. The same seed gives the same trial. Stateless.
+/// </summary>
+public static class TrialRunner
+{
+    public static TrialRecord Run(CompiledIdentity identity, Rung rung, int seq, ulong pointSeed)
+    {
+        var random = new Xoshiro256(pointSeed);
+        var clock = Stopwatch.StartNew();
+        if (identity.Field.IsRationals)
+        {
+            return rung.PrimeBits switch
+            {
+                31 => Evaluate<PrimeField31, Residue31>(PrimeField31.CreateRandom(ref random), identity, seq, pointSeed, ref random, clock, null),
+                62 => Evaluate<PrimeField62, Residue62>(PrimeField62.CreateRandom(ref random), identity, seq, pointSeed, ref random, clock, null),
+                127 => Evaluate<PrimeField127, Residue127>(PrimeField127.CreateRandom(ref random), identity, seq, pointSeed, ref random, clock, null),
+                _ => Evaluate<BigPrimeField, BigResidue>(BigPrimeField.CreateRandom(rung.PrimeBits, ref random), identity, seq, pointSeed, ref random, clock, null),
+            };
+        }
+        var p = identity.Field.Characteristic;
+        if (p <= long.MaxValue)
+        {
+            var field = ExtensionField<SmallPrimeField, SmallResidue>.Create(SmallPrimeField.Create((ulong)p), rung.ExtensionDegree, ref random);
+            return Evaluate<ExtensionField<SmallPrimeField, SmallResidue>, ExtElement<SmallResidue>>(field, identity, seq, pointSeed, ref random, clock, field.DefiningPolynomial);
+        }
+        var big = ExtensionField<BigPrimeField, BigResidue>.Create(BigPrimeField.Create(p), rung.ExtensionDegree, ref random);
+        return Evaluate<ExtensionField<BigPrimeField, BigResidue>, ExtElement<BigResidue>>(big, identity, seq, pointSeed, ref random, clock, big.DefiningPolynomial);
+    }
+
+    private static TrialRecord Evaluate<TField, T>(TField field, CompiledIdentity identity, int seq, ulong pointSeed,
+        ref Xoshiro256 random, Stopwatch clock, BigInteger[]? definingPolynomial)
+        where TField : struct, IField<T> where T : struct
+    {
+        var program = identity.Program;
+        var trialField = new TrialField(field.Characteristic, field.ExtensionDegree, definingPolynomial, field.SizeLog2);
+        var point = new T[program.Variables.Length];
+        for (var i = 0; i < point.Length; i++) point[i] = field.Sample(ref random);
+        var pointValues = new PointValue[point.Length];
+        for (var i = 0; i < point.Length; i++) pointValues[i] = new PointValue(program.Variables[i], field.ToCoefficients(point[i]));
+
+        if (!Evaluator.TryPrepareConstants<TField, T>(field, program, out var constants))
+            return Undefined();
+        var registers = new T[program.Length];
+        if (!Evaluator.Evaluate<TField, T>(field, program, constants, point, registers))
+            return Undefined();
+        for (var o = 0; o < program.Outputs.Length; o++)
+        {
+            var value = registers[program.Outputs[o]];
+            if (!field.IsZero(value))
+                return new TrialRecord(seq, trialField, pointSeed, TrialOutcome.Nonzero, pointValues, field.ToCoefficients(value),
+                    program.OutputNames.Length > 0 ? program.OutputNames[o] : null, null, Elapsed(clock));
+        }
+        var bound = Evidence.TrialBoundLog2(identity.Bounds, field.SizeLog2, identity.Field.IsRationals ? (int)field.Characteristic.GetBitLength() : null);
+        return new TrialRecord(seq, trialField, pointSeed, TrialOutcome.Zero, pointValues, null, null, bound ?? 0, Elapsed(clock));
+
+        TrialRecord Undefined() =>
+            new(seq, trialField, pointSeed, TrialOutcome.Undefined, pointValues, null, null, null, Elapsed(clock));
+    }
+
+    private static long Elapsed(Stopwatch clock) => (long)(clock.Elapsed.TotalMicroseconds);
+}

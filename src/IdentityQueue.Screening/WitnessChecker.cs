@@ -1,0 +1,81 @@
+using System.Numerics;
+using IdentityQueue.Algebra;
+using IdentityQueue.Algebra.Bounds;
+using IdentityQueue.Algebra.Compile;
+using IdentityQueue.Algebra.Evaluate;
+using IdentityQueue.Algebra.Exact;
+using IdentityQueue.Algebra.Fields;
+
+namespace IdentityQueue.Screening;
+
+/// <summary>The outcome of re-evaluating a stored witness: the difference found, and at which entry.</summary>
+public sealed record RecheckResult(bool Defined, BigInteger[]? Difference, string? Entry)
+{
+    public bool Refutes => Defined && Difference is not null;
+}
+
+/// <summary>
+/// Re-checks refutations from the stored field and point alone (no seed), with a general-purpose field implementation
+/// independent of the fast rungs; and certifies refutations over Q by exact rational evaluation. Stateless.
+/// </summary>
+public static class WitnessChecker
+{
+    /// <summary>Evaluates lhs − rhs in the witness's field at its point.</summary>
+    public static RecheckResult Recheck(CompiledIdentity identity, TrialField field, IReadOnlyList<PointValue> point)
+    {
+        if (field.DefiningPolynomial is null && identity.Field.IsRationals)
+            return Run<BigPrimeField, BigResidue>(BigPrimeField.Create(field.Modulus), identity, point);
+        var p = field.Modulus;
+        var poly = field.DefiningPolynomial ?? [BigInteger.Zero, BigInteger.One];
+        var extension = ExtensionField<BigPrimeField, BigResidue>.Create(BigPrimeField.Create(p), poly);
+        return Run<ExtensionField<BigPrimeField, BigResidue>, ExtElement<BigResidue>>(extension, identity, point);
+    }
+
+    private static RecheckResult Run<TField, T>(TField field, CompiledIdentity identity, IReadOnlyList<PointValue> point)
+        where TField : struct, IField<T> where T : struct
+    {
+        var program = identity.Program;
+        var values = new T[program.Variables.Length];
+        var byName = point.ToDictionary(v => v.Name, v => v.Coordinates, StringComparer.Ordinal);
+        for (var i = 0; i < values.Length; i++)
+        {
+            if (!byName.TryGetValue(program.Variables[i], out var coordinates))
+                throw new ArgumentException($"the witness gives no value for the variable '{program.Variables[i]}'");
+            values[i] = field.FromCoefficients(coordinates);
+        }
+        if (!Evaluator.TryPrepareConstants<TField, T>(field, program, out var constants)) return new RecheckResult(false, null, null);
+        var registers = new T[program.Length];
+        if (!Evaluator.Evaluate<TField, T>(field, program, constants, values, registers)) return new RecheckResult(false, null, null);
+        for (var o = 0; o < program.Outputs.Length; o++)
+        {
+            var v = registers[program.Outputs[o]];
+            if (!field.IsZero(v))
+                return new RecheckResult(true, field.ToCoefficients(v), program.OutputNames.Length > 0 ? program.OutputNames[o] : null);
+        }
+        return new RecheckResult(true, null, null);
+    }
+
+    /// <summary>
+    /// Confirms a refutation exactly. Over Q: lhs − rhs evaluated with exact rationals at the witness point (its residues
+    /// read as integers) is nonzero, when the estimated size of that evaluation fits <see cref="Limits.MaxCertifyBits"/>.
+    /// In characteristic p the field arithmetic is already exact; the witness is confirmed by the independent re-check.
+    /// </summary>
+    public static bool Certify(CompiledIdentity identity, TrialRecord witness, Limits limits)
+    {
+        if (!identity.Field.IsRationals)
+            return Recheck(identity, witness.Field, witness.Point).Refutes;
+        var program = identity.Program;
+        var coordinateBits = witness.Point.Count == 0 ? 1 : witness.Point.Max(v => (double)v.Coordinates[0].GetBitLength());
+        if (BoundAnalysis.ExactEvaluationBits(program, coordinateBits, limits.MaxCertifyBits) > limits.MaxCertifyBits) return false;
+        var field = default(RationalField);
+        var values = new Rational[program.Variables.Length];
+        var byName = witness.Point.ToDictionary(v => v.Name, v => v.Coordinates[0], StringComparer.Ordinal);
+        for (var i = 0; i < values.Length; i++) values[i] = byName[program.Variables[i]];
+        if (!Evaluator.TryPrepareConstants<RationalField, Rational>(field, program, out var constants)) return false;
+        var registers = new Rational[program.Length];
+        if (!Evaluator.Evaluate<RationalField, Rational>(field, program, constants, values, registers)) return false;
+        foreach (var o in program.Outputs)
+            if (!registers[o].IsZero) return true;
+        return false;
+    }
+}

@@ -1,0 +1,89 @@
+namespace IdentityQueue.Screening.Tests;
+
+public class ScreenerTests
+{
+    [Fact]
+    public void SameSeed_GivesTheSameTrials()
+    {
+        var a = Some.Screen("(x+y)^3 = x^3 + 3*x^2*y + 3*x*y^2 + y^3", seed: 7);
+        var b = Some.Screen("(x+y)^3 = x^3 + 3*x^2*y + 3*x*y^2 + y^3", seed: 7);
+        Assert.Equal(a.Trials.Select(t => (t.Field.Modulus, t.PointSeed)), b.Trials.Select(t => (t.Field.Modulus, t.PointSeed)));
+        var c = Some.Screen("(x+y)^3 = x^3 + 3*x^2*y + 3*x*y^2 + y^3", seed: 8);
+        Assert.NotEqual(a.Trials[0].Field.Modulus, c.Trials[0].Field.Modulus);
+    }
+
+    [Fact]
+    public void ErrorBound_IsTheSumOfTheTrialBounds()
+    {
+        var r = Some.Screen("(a^2+b^2)*(c^2+d^2) = (a*c-b*d)^2 + (a*d+b*c)^2", targetBits: 200);
+        Assert.Equal(Verdict.Survived, r.Verdict);
+        Assert.Equal(r.Trials.Sum(t => t.BoundLog2 ?? 0), r.ErrorBoundLog2!.Value, 6);
+        Assert.True(r.ErrorBoundLog2 <= -200);
+    }
+
+    // SPEC §5: the first trial uses the cheapest field where a trial is worth at least 16 bits, survivors move up.
+    [Fact]
+    public void Escalation_StartsCheapAndMovesUp()
+    {
+        var r = Some.Screen("(a^2+b^2)*(c^2+d^2) = (a*c-b*d)^2 + (a*d+b*c)^2", targetBits: 200);
+        var bits = r.Trials.Select(t => (int)t.Field.Modulus.GetBitLength()).ToArray();
+        Assert.Equal(31, bits[0]);
+        Assert.Equal(62, bits[1]);
+        Assert.Equal(127, bits[2]);
+        Assert.All(r.Trials, t => Assert.True(t.BoundLog2 <= -16));
+    }
+
+    // A large degree bound skips the rungs where a trial would buy fewer than 16 bits.
+    [Fact]
+    public void LargeDegree_StartsInALargerField()
+    {
+        var r = Some.Screen("(x+1)^(2^20) = (x+1)^(2^20)");
+        Assert.Equal(62, (int)r.Trials[0].Field.Modulus.GetBitLength());
+        Assert.Equal(Verdict.Survived, r.Verdict);
+    }
+
+    // Evidence accumulates: continuing with a higher target adds trials after the earlier ones and redoes none.
+    [Fact]
+    public void HigherTarget_AddsTrialsOnly()
+    {
+        var c = Some.Compiled("(x+y)^2 = x^2 + 2*x*y + y^2");
+        var first = Screener.Screen(c, new ScreeningOptions { TargetBits = 64, Seed = 3 }, 9);
+        var more = Screener.Screen(c, new ScreeningOptions { TargetBits = 300, Seed = 3 }, 9, first.Trials);
+        Assert.Equal(first.Trials, more.Trials.Take(first.Trials.Count));
+        Assert.True(more.Trials.Count > first.Trials.Count);
+        Assert.True(more.ErrorBoundLog2 <= -300);
+        Assert.Equal(Enumerable.Range(1, more.Trials.Count), more.Trials.Select(t => t.Seq));
+    }
+
+    [Fact]
+    public void DenominatorThatVanishesIdentically_IsUndecidedWithAReason()
+    {
+        var r = Some.Screen("1/(x - x) = 1");
+        Assert.Equal(Verdict.Undecided, r.Verdict);
+        Assert.Contains("denominator", r.Message);
+        Assert.All(r.Trials, t => Assert.Equal(TrialOutcome.Undefined, t.Outcome));
+    }
+
+    // In GF(2) itself the pole x = 1 of (x² − 1)/(x − 1) is hit half the time: such points are recorded as undefined, with no bound.
+    [Fact]
+    public void UndefinedPoints_AreRecordedWithoutEvidence()
+    {
+        var c = Some.Compiled("(x^2 - 1)/(x - 1) = x + 1 over GF(2)");
+        var tiny = new Rung(0, 1, 1);
+        var trials = Enumerable.Range(1, 64).Select(i => TrialRunner.Run(c, tiny, i, Screener.TrialSeed(5, 1, i))).ToList();
+        Assert.Contains(trials, t => t.Outcome == TrialOutcome.Undefined);
+        Assert.Contains(trials, t => t.Outcome == TrialOutcome.Zero);
+        Assert.All(trials.Where(t => t.Outcome == TrialOutcome.Undefined), t => Assert.Null(t.BoundLog2));
+        Assert.DoesNotContain(trials, t => t.Outcome == TrialOutcome.Nonzero);
+    }
+
+    [Fact]
+    public void DegreeTooLargeForEveryField_IsUndecided()
+    {
+        var options = new ScreeningOptions { Limits = Algebra.Limits.Default with { MaxFieldBits = 62 } };
+        var u = Screener.Screen(Some.Compiled("x^(2^60) = x^(2^60)"), options, 1);
+        Assert.Equal(Verdict.Undecided, u.Verdict);
+        Assert.Contains("degree bound", u.Message);
+        Assert.Empty(u.Trials);
+    }
+}
