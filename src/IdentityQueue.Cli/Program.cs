@@ -1,1 +1,4 @@
-return 0;
+using System.CommandLine;
+using IdentityQueue.Cli;
+
+return CliApp.Run(args, Console.Out, Console.Error);
