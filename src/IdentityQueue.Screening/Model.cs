@@ -13,8 +13,11 @@ public enum TrialOutcome
     Undefined,
 }
 
-/// <summary>The states a screened candidate can end in (names as in the store's <c>result.state</c>).</summary>
-public enum Verdict { Survived, Refuted, Undecided, Invalid }
+/// <summary>
+/// The states a screened candidate can end in (names as in the store's <c>result.state</c>), and <see cref="Pending"/>
+/// for one that stopped at a stage boundary with more trials to come.
+/// </summary>
+public enum Verdict { Survived, Refuted, Undecided, Invalid, Pending }
 
 /// <summary>A field a trial ran in: GF(p) when <see cref="DefiningPolynomial"/> is null, else GF(p)[t]/(f). Immutable.</summary>
 public sealed record TrialField(BigInteger Modulus, int ExtensionDegree, BigInteger[]? DefiningPolynomial, double SizeLog2)
@@ -72,6 +75,12 @@ public sealed record ScreeningOptions
     public int MaxConsecutiveUndefined { get; init; } = 24;
 
     public Algebra.Limits Limits { get; init; } = Algebra.Limits.Default;
+
+    /// <summary>
+    /// Stop with <see cref="Verdict.Pending"/> after this many new zero trials (null: go on to a final state). The first
+    /// stage of a batch uses 1, so every candidate gets its cheap trial before any survivor moves to larger fields.
+    /// </summary>
+    public int? MaxNewZeroTrials { get; init; }
 
     /// <summary>Confirm refutations over Q by exact rational evaluation when it fits <see cref="Algebra.Limits.MaxCertifyBits"/>.</summary>
     public bool Certify { get; init; } = true;

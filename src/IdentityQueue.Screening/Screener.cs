@@ -34,8 +34,11 @@ public static class Screener
         var rungs = FieldLadder.Rungs(identity.Field, options.Limits.MaxFieldBits);
         var clock = Stopwatch.StartNew();
         var seq = trials.Count == 0 ? 1 : trials[^1].Seq + 1;
+        var newZeroTrials = 0;
         while (accumulated > -options.TargetBits)
         {
+            if (newZeroTrials == options.MaxNewZeroTrials)
+                return new ScreenResult(Verdict.Pending, bounds.Degree, bounds.HeightLog2, accumulated, trials, null, false, null);
             var rung = FieldLadder.Choose(identity, rungs, zeroTrials, options.MinBitsPerTrial);
             if (rung is null)
                 return Undecided(identity, trials, accumulated,
@@ -59,6 +62,7 @@ public static class Screener
                 default:
                     consecutiveUndefined = 0;
                     zeroTrials++;
+                    newZeroTrials++;
                     accumulated += trial.BoundLog2 ?? 0;
                     break;
             }

@@ -87,3 +87,29 @@ public class ScreenerTests
         Assert.Empty(u.Trials);
     }
 }
+
+public class StagedScreeningTests
+{
+    // The first stage gives every candidate one cheap zero trial; continuing later reaches the same evidence as one go.
+    [Fact]
+    public void StagedScreening_EqualsOneRun()
+    {
+        var c = Some.Compiled("(a+b)^3 = a^3 + 3*a^2*b + 3*a*b^2 + b^3");
+        var options = new ScreeningOptions { Seed = 11 };
+        var stage1 = Screener.Screen(c, options with { MaxNewZeroTrials = 1 }, 5);
+        Assert.Equal(Verdict.Pending, stage1.Verdict);
+        Assert.Single(stage1.Trials);
+        var stage2 = Screener.Screen(c, options, 5, stage1.Trials);
+        var once = Screener.Screen(c, options, 5);
+        Assert.Equal(Verdict.Survived, stage2.Verdict);
+        Assert.Equal(once.Trials.Select(t => (t.Seq, t.PointSeed, t.Field.Modulus)), stage2.Trials.Select(t => (t.Seq, t.PointSeed, t.Field.Modulus)));
+        Assert.Equal(once.ErrorBoundLog2, stage2.ErrorBoundLog2);
+    }
+
+    [Fact]
+    public void FirstStage_RefutesFalseCandidates()
+    {
+        var r = Screener.Screen(Some.Compiled("(a+b)^3 = a^3 + b^3"), new ScreeningOptions { Seed = 1, MaxNewZeroTrials = 1 }, 5);
+        Assert.Equal(Verdict.Refuted, r.Verdict);
+    }
+}
