@@ -1,0 +1,31 @@
+using Hangfire;
+using Microsoft.Extensions.Logging;
+
+namespace IdentityQueue.Worker;
+
+/// <summary>
+/// Keeps the queue fed: takes pending candidates of the earliest stage from the store and enqueues them in chunks, so
+/// that every candidate's cheap first trial runs before survivors move on to larger fields. Thread-safe through the store.
+/// </summary>
+public sealed class Planner(IScreeningStore store, IBackgroundJobClient jobs, WorkerSettings settings, ILogger<Planner> log)
+{
+    /// <summary>
+    /// Enqueues more work when fewer than two chunks per worker are in flight (or everything pending, with
+    /// <paramref name="all"/>); returns the candidates enqueued. When nothing is pending it first looks for candidates
+    /// inserted by hand since the last look.
+    /// </summary>
+    public int Plan(bool all = false)
+    {
+        var counts = store.Counts();
+        if (counts.Pending == 0 && counts.InFlight == 0 && store.EnsureResultRows() > 0) counts = store.Counts();
+        var room = all ? long.MaxValue : (long)settings.Workers * 2 * settings.ChunkSize - counts.InFlight;
+        if (room < settings.ChunkSize || counts.Pending == 0) return 0;
+        // Checkpoint: TakePending marks the candidates queued before their jobs exist; dying in between leaves them
+        // queued with no job, and start-up recovery returns them to pending.
+        var work = store.TakePending((int)Math.Min(room, int.MaxValue));
+        foreach (var chunk in work.Ids.Chunk(settings.ChunkSize))
+            jobs.Enqueue<ScreeningJob>(j => j.Run(work.Stage, chunk, CancellationToken.None));
+        if (work.Ids.Count > 0) log.LogInformation("enqueued {Count} candidates for stage {Stage}", work.Ids.Count, work.Stage);
+        return work.Ids.Count;
+    }
+}

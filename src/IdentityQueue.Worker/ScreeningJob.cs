@@ -1,0 +1,71 @@
+using System.ComponentModel;
+using Hangfire;
+using IdentityQueue.Algebra.Compile;
+using IdentityQueue.Screening;
+using Microsoft.Extensions.Logging;
+
+namespace IdentityQueue.Worker;
+
+/// <summary>
+/// The Hangfire job: screens one chunk of candidates for one stage. It takes only ids, and it may run twice or stop
+/// halfway (at-least-once delivery): settled candidates are skipped, trials are keyed (candidate, seq) with points derived
+/// from the catalogue's seed, so a second run recomputes exactly what the first stored and stores nothing twice.
+/// </summary>
+public sealed class ScreeningJob(IScreeningStore store, WorkerSettings settings, ILogger<ScreeningJob> log)
+{
+    /// <summary>Outcomes written per transaction.</summary>
+    public const int SaveBatch = 50;
+
+    [AutomaticRetry(Attempts = 5, DelaysInSeconds = [1, 5, 15, 60, 300])]
+    [DisplayName("screen {1} (stage {0})")]
+    public void Run(int stage, long[] candidateIds, CancellationToken cancellation)
+    {
+        // Checkpoint: dying before the claim leaves the candidates queued; start-up recovery returns them to pending.
+        var claimed = store.Claim(candidateIds, settings.WorkerName);
+        var outcomes = new List<CandidateOutcome>(SaveBatch);
+        for (var i = 0; i < claimed.Count; i++)
+        {
+            if (cancellation.IsCancellationRequested)
+            {
+                // A graceful stop: what is screened is saved, the rest goes back to pending for the next run.
+                store.Save(outcomes, settings.WorkerName);
+                store.Release(claimed.Skip(i).Select(c => c.Id).ToList());
+                log.LogInformation("stopping: released {Count} candidates of a stage-{Stage} chunk", claimed.Count - i, stage);
+                return;
+            }
+            outcomes.Add(ScreenOne(claimed[i], stage, cancellation));
+            if (outcomes.Count == SaveBatch)
+            {
+                store.Save(outcomes, settings.WorkerName);
+                outcomes.Clear();
+            }
+            // Checkpoint: dying here loses only the unsaved outcomes; their candidates stay claimed, are returned to pending
+            // at the next start, and are screened again with the same seeds, giving the same trials.
+        }
+        store.Save(outcomes, settings.WorkerName);
+    }
+
+    /// <summary>Screens one candidate; a deterministic failure of this candidate is its outcome, never the chunk's.</summary>
+    internal CandidateOutcome ScreenOne(CandidateWork work, int stage, CancellationToken cancellation)
+    {
+        if (work.Problem is not null) return new CandidateOutcome(work.Id, null, work.Problem, null);
+        try
+        {
+            var compiled = IdentityCompiler.Compile(work.Entry!, work.Parameters, settings.Limits);
+            if (!compiled.Success) return new CandidateOutcome(work.Id, null, compiled.Error!.ToString(), null);
+            var options = new ScreeningOptions
+            {
+                Seed = work.Seed,
+                TargetBits = work.TargetBits,
+                Limits = settings.Limits,
+                MaxNewZeroTrials = stage == 1 ? 1 : null,
+            };
+            return new CandidateOutcome(work.Id, Screener.Screen(compiled.Value!, options, (ulong)work.Id, work.Trials, cancellation), null, null);
+        }
+        catch (Exception e) when (e is not OutOfMemoryException and not OperationCanceledException)
+        {
+            log.LogWarning(e, "candidate {Id} failed", work.Id);
+            return new CandidateOutcome(work.Id, null, null, $"{e.GetType().Name}: {e.Message}");
+        }
+    }
+}

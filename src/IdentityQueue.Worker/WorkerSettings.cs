@@ -1,0 +1,34 @@
+using IdentityQueue.Algebra;
+
+namespace IdentityQueue.Worker;
+
+/// <summary>Settings of a worker process; validated by <see cref="Validate"/> at start-up. Immutable.</summary>
+public sealed record WorkerSettings
+{
+    /// <summary>Hangfire worker threads in this process.</summary>
+    public int Workers { get; init; } = Environment.ProcessorCount;
+
+    /// <summary>Candidates per job: a job must carry enough work to pay for the queue's own cost (about 15–20 ms a job).</summary>
+    public int ChunkSize { get; init; } = 500;
+
+    /// <summary>Error bound wanted, as −log2; a store's candidates may override it (catalogue.target_bits).</summary>
+    public int TargetBits { get; init; } = 64;
+
+    /// <summary>This process's name in claims and trial rows: host:pid.</summary>
+    public string WorkerName { get; init; } = $"{Environment.MachineName}:{Environment.ProcessId}";
+
+    public Limits Limits { get; init; } = Limits.Default;
+
+    /// <summary>How often the planner looks for work to enqueue.</summary>
+    public TimeSpan PlanInterval { get; init; } = TimeSpan.FromMilliseconds(500);
+
+    /// <summary>A message for each invalid setting; empty when all are fine.</summary>
+    public IReadOnlyList<string> Validate()
+    {
+        var problems = new List<string>();
+        if (Workers < 1 || Workers > 256) problems.Add($"--workers must be between 1 and 256, got {Workers}");
+        if (ChunkSize < 1 || ChunkSize > 100_000) problems.Add($"--chunk-size must be between 1 and 100000, got {ChunkSize}");
+        if (TargetBits < 1 || TargetBits > 4096) problems.Add($"--target-bits must be between 1 and 4096, got {TargetBits}");
+        return problems;
+    }
+}
