@@ -35,7 +35,7 @@ internal static class TextReport
         switch (x.Verdict)
         {
             case Verdict.Invalid:
-                o.WriteLine($"invalid: {x.Invalid}");
+                o.WriteLine($"invalid: {x.Invalid ?? r?.Message}");
                 return;
             case Verdict.Survived:
                 o.WriteLine($"survived: very likely true over {entry.Field} (screening is evidence, not proof)");
@@ -48,7 +48,7 @@ internal static class TextReport
                 break;
         }
         o.WriteLine($"  degree bound   {r!.DegreeBound}");
-        if (r.Verdict != Verdict.Refuted && r.ErrorBoundLog2 is double e)
+        if (r.Verdict != Verdict.Refuted && r.ErrorBoundLog2 is double e && e < 0)
             o.WriteLine($"  error bound    2^{e:F1}: a false identity passes these trials with probability at most this, if the degree bound holds");
         o.WriteLine($"  trials         {r.TrialCount}: " + string.Join(", ", r.Trials.GroupBy(t => t.Field.Bits).OrderBy(g => g.Key)
             .Select(g => $"{g.Count()} in a {g.Key}-bit field" + Undefined(g))));

@@ -22,6 +22,9 @@ public static class Screener
     {
         var trials = new List<TrialRecord>(priorTrials ?? []);
         var bounds = identity.Bounds;
+        if (UndefinedConstant(identity) is { } constant)
+            return new ScreenResult(Verdict.Invalid, bounds.Degree, bounds.HeightLog2, null, trials, null, false,
+                $"the constant {constant} is not defined in {identity.Field}: its denominator is divisible by {identity.Field.Characteristic}");
         var accumulated = 0.0;
         var zeroTrials = 0;
         var consecutiveUndefined = 0;
@@ -68,6 +71,15 @@ public static class Screener
             }
         }
         return new ScreenResult(Verdict.Survived, bounds.Degree, bounds.HeightLog2, accumulated, trials, null, false, null);
+    }
+
+    /// <summary>In characteristic p, a rational constant whose denominator p divides (1/7 over GF(7), or binom(x, 7)'s 1/7!).</summary>
+    private static Algebra.Exact.Rational? UndefinedConstant(CompiledIdentity identity)
+    {
+        if (identity.Field.IsRationals) return null;
+        foreach (var c in identity.Program.Constants)
+            if ((c.Denominator % identity.Field.Characteristic).IsZero) return c;
+        return null;
     }
 
     private static ScreenResult Undecided(CompiledIdentity identity, List<TrialRecord> trials, double accumulated, string message) =>

@@ -27,6 +27,12 @@ public static class TrialRunner
             };
         }
         var p = identity.Field.Characteristic;
+        if (rung.ExtensionDegree == 1)
+        {
+            return p <= long.MaxValue
+                ? Evaluate<SmallPrimeField, SmallResidue>(SmallPrimeField.Create((ulong)p), identity, seq, pointSeed, ref random, clock, null)
+                : Evaluate<BigPrimeField, BigResidue>(BigPrimeField.Create(p), identity, seq, pointSeed, ref random, clock, null);
+        }
         if (p <= long.MaxValue)
         {
             var field = ExtensionField<SmallPrimeField, SmallResidue>.Create(SmallPrimeField.Create((ulong)p), rung.ExtensionDegree, ref random);

@@ -23,11 +23,9 @@ public static class WitnessChecker
     /// <summary>Evaluates lhs − rhs in the witness's field at its point.</summary>
     public static RecheckResult Recheck(CompiledIdentity identity, TrialField field, IReadOnlyList<PointValue> point)
     {
-        if (field.DefiningPolynomial is null && identity.Field.IsRationals)
+        if (field.DefiningPolynomial is null)
             return Run<BigPrimeField, BigResidue>(BigPrimeField.Create(field.Modulus), identity, point);
-        var p = field.Modulus;
-        var poly = field.DefiningPolynomial ?? [BigInteger.Zero, BigInteger.One];
-        var extension = ExtensionField<BigPrimeField, BigResidue>.Create(BigPrimeField.Create(p), poly);
+        var extension = ExtensionField<BigPrimeField, BigResidue>.Create(BigPrimeField.Create(field.Modulus), field.DefiningPolynomial);
         return Run<ExtensionField<BigPrimeField, BigResidue>, ExtElement<BigResidue>>(extension, identity, point);
     }
 

@@ -113,3 +113,27 @@ public class StagedScreeningTests
         Assert.Equal(Verdict.Refuted, r.Verdict);
     }
 }
+
+public class CharacteristicPTests
+{
+    // 1/7! has no meaning in GF(7): binom(x, 7) is not a polynomial over GF(7) (common practice).
+    [Fact]
+    public void ConstantWithADenominatorDivisibleByP_IsInvalid()
+    {
+        var r = Some.Screen("binom(x, 7) = 0 over GF(7)");
+        Assert.Equal(Verdict.Invalid, r.Verdict);
+        Assert.Contains("not defined in GF(7)", r.Message);
+        Assert.Equal(Verdict.Invalid, Some.Screen("x/7 = 0 over GF(7)").Verdict);
+        Assert.Equal(Verdict.Survived, Some.Screen("x/2 + x/2 = x over GF(7)").Verdict);
+    }
+
+    // A large characteristic needs no extension on the first rungs: the trial runs in GF(p) itself, with no defining polynomial.
+    [Fact]
+    public void LargeCharacteristic_SamplesInThePrimeFieldItself()
+    {
+        var r = Some.Screen("x^3 = x over GF(170141183460469231731687303715884105727)");
+        Assert.Equal(Verdict.Refuted, r.Verdict);
+        Assert.Null(r.Witness!.Field.DefiningPolynomial);
+        Assert.True(r.Certified);
+    }
+}
