@@ -57,13 +57,19 @@ public sealed class WorkerSession : IDisposable
             cancellation.WaitHandle.WaitOne(settings.PlanInterval);
         }
         _host.StopAsync(TimeSpan.FromSeconds(60)).GetAwaiter().GetResult();
+        store.Recover();
         counts = store.Counts();
         progress(counts);
         return counts;
     }
 
     /// <summary>Runs the long-running worker until SIGINT/SIGTERM (the generic host's console lifetime).</summary>
-    public void RunUntilStopped() => _host.Run();
+    public void RunUntilStopped()
+    {
+        _host.Run();
+        // Stopped: in-flight chunks saved what they screened and released the rest; queued work goes back to pending.
+        Store.Recover();
+    }
 
     /// <summary>Enqueues the pending work without running it (<c>idq enqueue</c>); returns the candidates enqueued.</summary>
     public int EnqueueOnly()
