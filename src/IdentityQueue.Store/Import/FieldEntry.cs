@@ -43,7 +43,7 @@ internal sealed record FieldEntry(string? Label, string? Lhs, string? Rhs, strin
         else if (!string.IsNullOrWhiteSpace(For)) built.Literal(" for ").Field("for", For);
 
         var parsed = CatalogueParser.ParseLine(built.Text, line, limits);
-        if (!parsed.Success) return new LineResult(null, built.Describe(parsed.Error!), built);
+        if (!parsed.Success) return new LineResult(null, SideError(line, limits) ?? built.Describe(parsed.Error!), built);
         if (parsed.Value is not { } entry) return LineResult.Reject($"line {line}: the entry is empty");
         if (entry.Label != label)
             return LineResult.Reject($"line {line}: the {(Identity is null ? "\"lhs\"" : "\"identity\"")} field must not start with a label; use \"label\"");
@@ -54,6 +54,21 @@ internal sealed record FieldEntry(string? Label, string? Lhs, string? Rhs, strin
         if (Ranges is { Count: > 0 } && (entry.Parameters.Count != Ranges.Count || entry.Parameters.Select(p => p.Name).Where((n, i) => n != Ranges[i].Name).Any()))
             return LineResult.Reject($"line {line}: a range end in \"for\" must be one expression (it added or changed parameters)");
         return new LineResult(entry, null, built);
+    }
+
+    /// <summary>
+    /// When the line does not parse and a side alone does not either, that side's own diagnostic: its columns (also those
+    /// inside the message, "to close '(' at column 1") count in the field, not in the line built from the fields.
+    /// </summary>
+    private string? SideError(int line, Limits limits)
+    {
+        foreach (var (name, value) in new[] { ("lhs", Lhs), ("rhs", Rhs) })
+        {
+            if (value is null) continue;
+            var side = CatalogueParser.ParseExpression(value, limits);
+            if (!side.Success) return $"line {line}, column {side.Error!.Position.Column} of \"{name}\": {side.Error.Message}";
+        }
+        return null;
     }
 
     private IEnumerable<(string, string)> Fields()
