@@ -283,4 +283,27 @@ public sealed class CandidateStoreTests
         Assert.True(new CandidateStore(store.Connection).SaveOutcome(1, Some.Screen(store, 1), Some.Worker));
         Assert.Equal("survived", store.Scalar("SELECT state FROM result"));
     }
+
+    [Fact]
+    public async Task ConcurrentWorkers_OnTheirOwnConnections_SaveWithoutLockErrors()
+    {
+        using var store = TempStore.Create();
+        Some.Catalogue(store, string.Concat(Enumerable.Range(0, 40).Select(i => $"c{i}: (x + {i})^2 = x^2 + {2 * i}*x + {i * i}\n")));
+        var results = Enumerable.Range(1, 40).ToDictionary(id => (long)id, id => Some.Screen(store, id, targetBits: 16));
+        var workers = Enumerable.Range(0, 4).Select(w => Task.Run(() =>
+        {
+            using var connection = StoreConnection.OpenSqlite(store.DbPath);
+            var candidates = new CandidateStore(connection);
+            for (var round = 0; round < 2; round++)
+                foreach (var (id, result) in results.Where(r => r.Key % 4 == w || round == 1))
+                {
+                    candidates.EnsureResultRows();
+                    candidates.Claim(id, $"w{w}");
+                    candidates.SaveOutcome(id, result, $"w{w}");
+                }
+        })).ToArray();
+        await Task.WhenAll(workers);
+        Assert.Equal(40, store.Count("SELECT COUNT(*) FROM result WHERE state = 'survived' AND claimed_by IS NULL"));
+        Assert.Equal(results.Values.Sum(r => r.TrialCount), store.Count("SELECT COUNT(*) FROM trial"));
+    }
 }
