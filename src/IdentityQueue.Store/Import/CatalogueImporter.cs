@@ -7,7 +7,6 @@ using IdentityQueue.Algebra.Compile;
 using IdentityQueue.Algebra.Syntax;
 using IdentityQueue.Store.Schema;
 using IdentityQueue.Store.Work;
-using Microsoft.Data.Sqlite;
 
 namespace IdentityQueue.Store.Import;
 
@@ -39,11 +38,16 @@ public sealed class CatalogueImporter(StoreConnection store)
         if (options.Seed is < 0) return $"the seed must be between 0 and 2^63 - 1, got {options.Seed}";
         var name = options.CatalogueName ?? DefaultName(path);
         if (string.IsNullOrWhiteSpace(name)) return $"{path}: the catalogue name is empty; give one with --catalogue NAME";
-        using var command = _db.Command("SELECT COUNT(*) FROM catalogue WHERE name = @name");
-        command.Parameter("@name", name);
-        if (Convert.ToInt64(command.ExecuteScalar(), CultureInfo.InvariantCulture) > 0)
+        if (NameTaken(name))
             return $"{path}: the store already has a catalogue named '{name}'; import it under another name with --catalogue NAME";
         return null;
+    }
+
+    private bool NameTaken(string name)
+    {
+        using var command = _db.Command("SELECT COUNT(*) FROM catalogue WHERE name = @name");
+        command.Parameter("@name", name);
+        return Convert.ToInt64(command.ExecuteScalar(), CultureInfo.InvariantCulture) > 0;
     }
 
     /// <summary>Imports one file; refused (nothing stored) for the reasons of <see cref="Check"/>.</summary>
@@ -64,9 +68,9 @@ public sealed class CatalogueImporter(StoreConnection store)
             insert.Parameter("@seed", seed);
             catalogueId = Convert.ToInt64(insert.ExecuteScalar(), CultureInfo.InvariantCulture);
         }
-        catch (SqliteException e) when (e.SqliteErrorCode == 19)
+        catch (DbException) when (NameTaken(name))
         {
-            // SQLITE_CONSTRAINT: another import took the name between the check and this insert.
+            // The unique index on catalogue.name: another import took the name between the check and this insert.
             return ImportResult.Refused($"{path}: the store already has a catalogue named '{name}'; import it under another name with --catalogue NAME");
         }
 

@@ -35,6 +35,15 @@ public sealed class MigrationTests
     }
 
     [Fact]
+    public void Migrations_MatchTheModel()
+    {
+        // A model change without a migration would make Migrate() refuse to run (EF Core's PendingModelChangesWarning).
+        using var store = TempStore.Create();
+        using var context = store.Connection.CreateContext();
+        Assert.False(Microsoft.EntityFrameworkCore.RelationalDatabaseFacadeExtensions.HasPendingModelChanges(context.Database));
+    }
+
+    [Fact]
     public void Migrate_IsIdempotent()
     {
         using var store = TempStore.Create();
