@@ -99,7 +99,7 @@ public sealed class CatalogueImporter(StoreConnection store)
             _ => new IdqEntryReader(limits),
         };
         var fileName = Path.GetFileName(path);
-        var rows = new Rows(_db, catalogueId, path);
+        using var rows = new Rows(_db, catalogueId, path);
         int lines = 0, entries = 0, instances = 0, rejections = 0;
         var first = new List<Rejection>();
 
@@ -135,8 +135,7 @@ public sealed class CatalogueImporter(StoreConnection store)
                 if (rows.Pending >= options.BatchSize) rows.Commit();
             }
         }
-        rows.Commit();
-        rows.Dispose();
+        rows.Finish();
 
         using var finish = _db.BeginTransaction();
         using (var results = _db.Command($"""
@@ -211,6 +210,7 @@ public sealed class CatalogueImporter(StoreConnection store)
         private readonly DbCommand _candidate, _rejection;
         private readonly DbParameter _label, _family, _params, _lhs, _rhs, _field, _position, _line, _raw, _reason;
         private DbTransaction _transaction;
+        private bool _finished;
 
         public Rows(DbConnection db, long catalogueId, string source)
         {
@@ -277,9 +277,18 @@ public sealed class CatalogueImporter(StoreConnection store)
             Pending = 0;
         }
 
+        /// <summary>Commits the last batch and ends the transactions.</summary>
+        public void Finish()
+        {
+            _transaction.Commit();
+            _transaction.Dispose();
+            _finished = true;
+        }
+
+        /// <summary>Rolls back an unfinished batch (after an exception) and releases the commands.</summary>
         public void Dispose()
         {
-            _transaction.Dispose();
+            if (!_finished) _transaction.Dispose();
             _candidate.Dispose();
             _rejection.Dispose();
         }

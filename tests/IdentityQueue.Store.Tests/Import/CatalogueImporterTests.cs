@@ -295,4 +295,17 @@ public sealed class CatalogueImporterTests
         Assert.Contains("unknown column \"name\"", reasons[0]);
         Assert.All(reasons.Skip(1), r => Assert.Contains("header on line 1 is not valid", r));
     }
+
+    [Fact]
+    public void AnImportThatFailsInTheDatabase_LeavesNoCatalogueBehind()
+    {
+        using var store = TempStore.Create();
+        store.Execute("CREATE TRIGGER refuse BEFORE INSERT ON candidate WHEN NEW.label = 'boom' BEGIN SELECT RAISE(ABORT, 'boom'); END");
+        var path = store.File("c.idq", string.Concat(Enumerable.Range(0, 50).Select(i => $"a{i}: x = x\n")) + "boom: x = x\n");
+        Assert.ThrowsAny<System.Data.Common.DbException>(() => new CatalogueImporter(store.Connection).Import(path, new ImportOptions { BatchSize = 10 }));
+        Assert.Equal(0, store.Count("SELECT COUNT(*) FROM catalogue"));
+        Assert.Equal(0, store.Count("SELECT COUNT(*) FROM candidate"));
+        store.Execute("DROP TRIGGER refuse");
+        Assert.Equal(51, store.Import(path).Instances);
+    }
 }
