@@ -1,0 +1,296 @@
+using System.Data.Common;
+using System.Diagnostics;
+using System.Globalization;
+using System.Numerics;
+using System.Text;
+using IdentityQueue.Algebra.Compile;
+using IdentityQueue.Algebra.Syntax;
+using IdentityQueue.Store.Schema;
+using IdentityQueue.Store.Work;
+
+namespace IdentityQueue.Store.Import;
+
+/// <summary>
+/// Loads a catalogue file (<c>.idq</c>, <c>.jsonl</c>, <c>.csv</c>) into the store as one <c>catalogue</c> row, a
+/// <c>candidate</c> row per identity (one per instance of a family line) with a pending <c>result</c>, and a
+/// <c>rejection</c> row per entry that cannot be imported — a bad entry never stops the import. The file is streamed:
+/// one line in memory at a time, rows written by prepared commands in transactions of <see cref="ImportOptions.BatchSize"/>.
+/// A catalogue name already in the store is refused, so importing the same file twice does not double it.
+/// Uses the connection it is given; not thread-safe.
+/// </summary>
+public sealed class CatalogueImporter(StoreConnection store)
+{
+    public static readonly IReadOnlyList<string> Extensions = [".idq", ".jsonl", ".csv"];
+
+    private readonly DbConnection _db = store.Connection;
+
+    /// <summary>The catalogue name a file gets without <c>--catalogue</c>: its file name without the extension.</summary>
+    public static string DefaultName(string path) => Path.GetFileNameWithoutExtension(path);
+
+    /// <summary>Why importing <paramref name="path"/> would be refused (no such file, unknown format, the name is taken), or null.</summary>
+    public string? Check(string path, ImportOptions? options = null)
+    {
+        options ??= new ImportOptions();
+        if (!File.Exists(path)) return $"{path}: no such file";
+        var extension = Path.GetExtension(path).ToLowerInvariant();
+        if (!Extensions.Contains(extension))
+            return $"{path}: unknown catalogue format '{extension}' (the formats are {string.Join(", ", Extensions)})";
+        if (options.Seed is < 0) return $"the seed must be between 0 and 2^63 - 1, got {options.Seed}";
+        var name = options.CatalogueName ?? DefaultName(path);
+        if (string.IsNullOrWhiteSpace(name)) return $"{path}: the catalogue name is empty; give one with --catalogue NAME";
+        if (NameTaken(name))
+            return $"{path}: the store already has a catalogue named '{name}'; import it under another name with --catalogue NAME";
+        return null;
+    }
+
+    private bool NameTaken(string name)
+    {
+        using var command = _db.Command("SELECT COUNT(*) FROM catalogue WHERE name = @name");
+        command.Parameter("@name", name);
+        return Convert.ToInt64(command.ExecuteScalar(), CultureInfo.InvariantCulture) > 0;
+    }
+
+    /// <summary>Imports one file; refused (nothing stored) for the reasons of <see cref="Check"/>.</summary>
+    public ImportResult Import(string path, ImportOptions? options = null)
+    {
+        options ??= new ImportOptions();
+        if (Check(path, options) is { } refusal) return ImportResult.Refused(refusal);
+        var name = options.CatalogueName ?? DefaultName(path);
+        var seed = options.Seed ?? Random.Shared.NextInt64(0, long.MaxValue);
+        var clock = Stopwatch.StartNew();
+
+        long catalogueId;
+        try
+        {
+            using var insert = _db.Command("INSERT INTO catalogue (name, source, seed) VALUES (@name, @source, @seed) RETURNING id");
+            insert.Parameter("@name", name);
+            insert.Parameter("@source", path);
+            insert.Parameter("@seed", seed);
+            catalogueId = Convert.ToInt64(insert.ExecuteScalar(), CultureInfo.InvariantCulture);
+        }
+        catch (DbException) when (NameTaken(name))
+        {
+            // The unique index on catalogue.name: another import took the name between the check and this insert.
+            return ImportResult.Refused($"{path}: the store already has a catalogue named '{name}'; import it under another name with --catalogue NAME");
+        }
+
+        try
+        {
+            var summary = Load(path, catalogueId, name, seed, options, clock);
+            return new ImportResult(summary, null);
+        }
+        catch
+        {
+            // Leave no half catalogue behind (its candidates and rejections go with it: foreign keys cascade).
+            using var delete = _db.Command("DELETE FROM catalogue WHERE id = @id");
+            delete.Parameter("@id", catalogueId);
+            delete.ExecuteNonQuery();
+            throw;
+        }
+    }
+
+    private ImportSummary Load(string path, long catalogueId, string name, long seed, ImportOptions options, Stopwatch clock)
+    {
+        var limits = options.Limits;
+        IEntryReader reader = Path.GetExtension(path).ToLowerInvariant() switch
+        {
+            ".jsonl" => new JsonlEntryReader(limits),
+            ".csv" => new CsvEntryReader(limits),
+            _ => new IdqEntryReader(limits),
+        };
+        var fileName = Path.GetFileName(path);
+        using var rows = new Rows(_db, catalogueId, path);
+        int lines = 0, entries = 0, instances = 0, rejections = 0;
+        var first = new List<Rejection>();
+
+        void Reject(int line, string raw, string reason)
+        {
+            rows.Rejection(line, raw, reason);
+            rejections++;
+            if (first.Count < options.RejectionsListed) first.Add(new Rejection(path, line, raw, reason));
+        }
+
+        using (var stream = new FileStream(path, FileMode.Open, FileAccess.Read, FileShare.Read, 1, FileOptions.SequentialScan))
+        {
+            foreach (var line in SourceLines.Read(stream, limits.MaxLineLength))
+            {
+                lines++;
+                if (line.Text is null)
+                {
+                    Reject(line.Number, line.Raw, $"line {line.Number}: {line.Problem}");
+                }
+                else if (Interpret(reader, line, fileName, options) is var (made, reason))
+                {
+                    if (reason is not null) Reject(line.Number, SourceLines.Truncate(line.Text), reason);
+                    else if (made is not null)
+                    {
+                        entries++;
+                        foreach (var c in made.Instances)
+                        {
+                            rows.Candidate(c.Label, made.Family, c.Params, made.Lhs, made.Rhs, made.Field, line.Number);
+                            instances++;
+                        }
+                    }
+                }
+                if (rows.Pending >= options.BatchSize) rows.Commit();
+            }
+        }
+        rows.Finish();
+
+        using var finish = _db.BeginTransaction();
+        using (var results = _db.Command($"""
+            INSERT INTO result (candidate_id, state)
+            SELECT c.id, '{ResultStates.Pending}' FROM candidate c
+            WHERE c.catalogue_id = @id AND NOT EXISTS (SELECT 1 FROM result r WHERE r.candidate_id = c.id)
+            ON CONFLICT (candidate_id) DO NOTHING
+            """, finish))
+        {
+            results.Parameter("@id", catalogueId);
+            results.ExecuteNonQuery();
+        }
+        using (var counts = _db.Command("UPDATE catalogue SET entries = @entries, instances = @instances, rejections = @rejections WHERE id = @id", finish))
+        {
+            counts.Parameter("@entries", entries);
+            counts.Parameter("@instances", instances);
+            counts.Parameter("@rejections", rejections);
+            counts.Parameter("@id", catalogueId);
+            counts.ExecuteNonQuery();
+        }
+        finish.Commit();
+        return new ImportSummary(catalogueId, name, path, seed, lines, entries, instances, rejections, first, clock.Elapsed);
+    }
+
+    /// <summary>An entry's candidates: the sides and field as stored, and one label and params per instance.</summary>
+    private sealed record Made(string? Family, string Lhs, string Rhs, string Field, IReadOnlyList<(string Label, string? Params)> Instances);
+
+    /// <summary>
+    /// One line to its candidates, or the reason it is rejected; (null, null) for a line with no entry. A failure in
+    /// reading one line is that line's rejection (fatal errors such as running out of memory are not caught).
+    /// </summary>
+    private static (Made?, string?) Interpret(IEntryReader reader, SourceLine line, string fileName, ImportOptions options)
+    {
+        try
+        {
+            var read = reader.Read(line.Text!, line.Number);
+            if (read.Rejection is not null) return (null, read.Rejection);
+            if (read.Entry is not { } entry) return (null, null);
+            var expansion = FamilyExpander.Expand(entry, options.Limits);
+            if (!expansion.Success) return (null, read.Describe(expansion.Error!));
+            var lhs = ExprPrinter.Print(entry.Left);
+            var rhs = ExprPrinter.Print(entry.Right);
+            var field = entry.Field.ToString();
+            var ownLabel = entry.Label ?? $"{fileName}:{line.Number}";
+            if (!entry.IsFamily) return (new Made(null, lhs, rhs, field, [(ownLabel, null)]), null);
+            var names = entry.Parameters.Select(p => p.Name).ToList();
+            var instances = new List<(string, string?)>(expansion.Instances.Count);
+            var label = new StringBuilder();
+            foreach (var assignment in expansion.Instances)
+            {
+                var ordered = names.Select(n => new KeyValuePair<string, BigInteger>(n, assignment[n])).ToList();
+                label.Clear().Append(ownLabel).Append('[');
+                for (var i = 0; i < ordered.Count; i++)
+                {
+                    if (i > 0) label.Append(',');
+                    label.Append(ordered[i].Key).Append('=').Append(ordered[i].Value.ToString(CultureInfo.InvariantCulture));
+                }
+                instances.Add((label.Append(']').ToString(), ParamsText.Write(ordered)));
+            }
+            return (new Made(ownLabel, lhs, rhs, field, instances), null);
+        }
+        catch (Exception e) when (e is not OutOfMemoryException)
+        {
+            return (null, $"line {line.Number}: could not be imported: {e.GetType().Name}: {e.Message}");
+        }
+    }
+
+    /// <summary>The prepared inserts of one import and its open transaction, committed every batch.</summary>
+    private sealed class Rows : IDisposable
+    {
+        private readonly DbConnection _db;
+        private readonly DbCommand _candidate, _rejection;
+        private readonly DbParameter _label, _family, _params, _lhs, _rhs, _field, _position, _line, _raw, _reason;
+        private DbTransaction _transaction;
+        private bool _finished;
+
+        public Rows(DbConnection db, long catalogueId, string source)
+        {
+            _db = db;
+            _transaction = db.BeginTransaction();
+            _candidate = db.Command("""
+                INSERT INTO candidate (catalogue_id, label, family, params, lhs, rhs, field, position)
+                VALUES (@catalogue, @label, @family, @params, @lhs, @rhs, @field, @position)
+                """, _transaction);
+            _candidate.Parameter("@catalogue", catalogueId);
+            _label = _candidate.Parameter("@label");
+            _family = _candidate.Parameter("@family");
+            _params = _candidate.Parameter("@params");
+            _lhs = _candidate.Parameter("@lhs");
+            _rhs = _candidate.Parameter("@rhs");
+            _field = _candidate.Parameter("@field");
+            _position = _candidate.Parameter("@position");
+            _rejection = db.Command("""
+                INSERT INTO rejection (catalogue_id, source, line, raw, reason)
+                VALUES (@catalogue, @source, @line, @raw, @reason)
+                """, _transaction);
+            _rejection.Parameter("@catalogue", catalogueId);
+            _rejection.Parameter("@source", source);
+            _line = _rejection.Parameter("@line");
+            _raw = _rejection.Parameter("@raw");
+            _reason = _rejection.Parameter("@reason");
+            _candidate.Prepare();
+            _rejection.Prepare();
+        }
+
+        /// <summary>Rows written since the last commit.</summary>
+        public int Pending { get; private set; }
+
+        public void Candidate(string label, string? family, string? parameters, string lhs, string rhs, string field, int position)
+        {
+            _label.Set(label);
+            _family.Set(family);
+            _params.Set(parameters);
+            _lhs.Set(lhs);
+            _rhs.Set(rhs);
+            _field.Set(field);
+            _position.Set(position);
+            _candidate.ExecuteNonQuery();
+            Pending++;
+        }
+
+        public void Rejection(int line, string raw, string reason)
+        {
+            _line.Set(line);
+            _raw.Set(raw);
+            _reason.Set(reason);
+            _rejection.ExecuteNonQuery();
+            Pending++;
+        }
+
+        /// <summary>Commits the batch. If the process dies before this, the batch is lost with the catalogue row kept: see the README.</summary>
+        public void Commit()
+        {
+            _transaction.Commit();
+            _transaction.Dispose();
+            _transaction = _db.BeginTransaction();
+            _candidate.Transaction = _transaction;
+            _rejection.Transaction = _transaction;
+            Pending = 0;
+        }
+
+        /// <summary>Commits the last batch and ends the transactions.</summary>
+        public void Finish()
+        {
+            _transaction.Commit();
+            _transaction.Dispose();
+            _finished = true;
+        }
+
+        /// <summary>Rolls back an unfinished batch (after an exception) and releases the commands.</summary>
+        public void Dispose()
+        {
+            if (!_finished) _transaction.Dispose();
+            _candidate.Dispose();
+            _rejection.Dispose();
+        }
+    }
+}

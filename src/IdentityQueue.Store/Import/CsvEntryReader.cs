@@ -1,0 +1,85 @@
+using CsvHelper;
+using IdentityQueue.Algebra;
+
+namespace IdentityQueue.Store.Import;
+
+/// <summary>
+/// The <c>.csv</c> format (SPEC §3): a header naming the columns — <c>label,lhs,rhs,over,for</c>, in any order, with
+/// <c>identity</c> allowed instead of lhs and rhs; label, over and for may be left out — then one entry per row, with
+/// <c>for</c> written like <c>n in 2..12</c>. Fields follow RFC 4180 (CsvHelper parses them), but a record must stay on
+/// one line, so that a bad row is one rejection at a known line. Missing trailing fields count as empty.
+/// </summary>
+internal sealed class CsvEntryReader(Limits limits) : IEntryReader
+{
+    private static readonly string[] Columns = ["label", "lhs", "rhs", "identity", "over", "for"];
+
+    private static readonly CsvReaderOptions Options = new()
+    {
+        Separator = ',',
+        HasHeader = false,
+        TrimWhitespace = true,
+        AllowLineBreaksInQuotes = false,
+        MalformedData = CsvMalformedDataHandling.Throw,
+    };
+
+    private Dictionary<string, int>? _header;
+    private int _headerLine;
+    private string? _headerProblem;
+
+    public LineResult Read(string text, int line)
+    {
+        if (string.IsNullOrWhiteSpace(text)) return LineResult.Skip;
+        if (text.Count(c => c == '"') % 2 != 0)
+            return _header is null && _headerProblem is null
+                ? HeaderFailed(line, $"line {line}: the header has an unterminated quoted field")
+                : LineResult.Reject($"line {line}: an unterminated quoted field (a record must be on one line)");
+        string[] fields;
+        try
+        {
+            fields = Split(text);
+        }
+        catch (CsvFormatException e)
+        {
+            var reason = $"line {line}: not a valid CSV record: {e.Message.Split('\n')[0].Trim()}";
+            return _header is null && _headerProblem is null ? HeaderFailed(line, reason) : LineResult.Reject(reason);
+        }
+        if (_headerProblem is not null)
+            return LineResult.Reject($"line {line}: not read, because the header on line {_headerLine} is not valid: {_headerProblem}");
+        if (_header is null) return ReadHeader(fields, line);
+        if (fields.Length > _header.Count)
+            return LineResult.Reject($"line {line}: {fields.Length} fields, but the header on line {_headerLine} names {_header.Count}");
+        string? Get(string column) =>
+            _header.TryGetValue(column, out var i) && i < fields.Length && fields[i].Length > 0 ? fields[i] : null;
+        return new FieldEntry(Get("label"), Get("lhs"), Get("rhs"), Get("identity"), Get("over"), null, Get("for")).Parse(line, limits);
+    }
+
+    private LineResult ReadHeader(string[] fields, int line)
+    {
+        var header = new Dictionary<string, int>(StringComparer.Ordinal);
+        for (var i = 0; i < fields.Length; i++)
+        {
+            var name = fields[i].Trim().ToLowerInvariant();
+            if (!Columns.Contains(name))
+                return HeaderFailed(line, $"line {line}: unknown column \"{fields[i]}\" in the header (the columns are {string.Join(", ", Columns)})");
+            if (!header.TryAdd(name, i)) return HeaderFailed(line, $"line {line}: the column \"{name}\" is named twice in the header");
+        }
+        if (!header.ContainsKey("identity") && !(header.ContainsKey("lhs") && header.ContainsKey("rhs")))
+            return HeaderFailed(line, $"line {line}: the header must name the columns lhs and rhs (or identity): label,lhs,rhs,over,for");
+        _header = header;
+        _headerLine = line;
+        return LineResult.Skip;
+    }
+
+    private LineResult HeaderFailed(int line, string reason)
+    {
+        _headerProblem = reason;
+        _headerLine = line;
+        return LineResult.Reject(reason);
+    }
+
+    private static string[] Split(string text)
+    {
+        using var csv = CsvReader.FromText(text, Options);
+        return csv.Read() ? csv.Current.ToArray() : [];
+    }
+}

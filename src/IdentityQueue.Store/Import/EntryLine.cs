@@ -1,0 +1,60 @@
+using System.Text;
+using IdentityQueue.Algebra.Syntax;
+
+namespace IdentityQueue.Store.Import;
+
+/// <summary>
+/// The catalogue line built from the fields of a <c>.jsonl</c> object or a <c>.csv</c> row, so that one parser checks
+/// every format. It remembers where each field went, so a diagnostic can name the field and the column inside it.
+/// </summary>
+internal sealed class EntryLine
+{
+    private readonly StringBuilder _text = new();
+    private readonly List<(string Field, int Start, int Length)> _fields = [];
+
+    public string Text => _text.ToString();
+
+    public EntryLine Literal(string text)
+    {
+        _text.Append(text);
+        return this;
+    }
+
+    public EntryLine Field(string field, string value)
+    {
+        _fields.Add((field, _text.Length, value.Length));
+        _text.Append(value);
+        return this;
+    }
+
+    /// <summary>
+    /// "line 3, column 5 of "lhs": …": the column counted inside the field where the problem is. A position between fields
+    /// (in the " = " or " over " this class wrote) is reported at the end of the field before it, where the text broke off.
+    /// </summary>
+    public string Describe(Diagnostic diagnostic)
+    {
+        var index = diagnostic.Position.Column - 1;
+        (string Field, int Start, int Length)? owner = null;
+        foreach (var f in _fields)
+            if (f.Start <= index) owner = f;
+        if (owner is not { } o) return diagnostic.ToString();
+        var column = Math.Min(index - o.Start, o.Length) + 1;
+        return $"line {diagnostic.Position.Line}, column {column} of \"{o.Field}\": {diagnostic.Message}";
+    }
+}
+
+/// <summary>What one line of a catalogue file gives: nothing (blank, comment, header), an entry, or a rejection.</summary>
+internal readonly record struct LineResult(IdentityEntry? Entry, string? Rejection, EntryLine? Built)
+{
+    public static readonly LineResult Skip = default;
+
+    public static LineResult Reject(string reason) => new(null, reason, null);
+
+    public string Describe(Diagnostic diagnostic) => Built?.Describe(diagnostic) ?? diagnostic.ToString();
+}
+
+/// <summary>Turns the lines of one file, in order, into entries; one instance per file, as a format may keep state (a CSV header).</summary>
+internal interface IEntryReader
+{
+    LineResult Read(string text, int line);
+}

@@ -1,0 +1,49 @@
+namespace IdentityQueue.Store.Import;
+
+/// <summary>Settings of one import. Immutable.</summary>
+public sealed record ImportOptions
+{
+    /// <summary>The catalogue's name; null for the file name without its extension.</summary>
+    public string? CatalogueName { get; init; }
+
+    /// <summary>The catalogue's run seed (0 ≤ seed &lt; 2^63); null for a random one.</summary>
+    public long? Seed { get; init; }
+
+    /// <summary>Rows (candidates and rejections) written per transaction.</summary>
+    public int BatchSize { get; init; } = 2_000;
+
+    /// <summary>How many rejections the summary lists (all are stored).</summary>
+    public int RejectionsListed { get; init; } = 5;
+
+    public Algebra.Limits Limits { get; init; } = Algebra.Limits.Default;
+}
+
+/// <summary>A catalogue entry that was not imported: where, what, and why (a row of <c>rejection</c>).</summary>
+public sealed record Rejection(string Source, int Line, string Raw, string Reason)
+{
+    public override string ToString() => $"{Source}:{Line}: {Reason}";
+}
+
+/// <summary>What an import stored. Immutable.</summary>
+/// <param name="Entries">Lines that gave an identity or a family.</param>
+/// <param name="Instances">Candidates stored (one per family instance).</param>
+/// <param name="Lines">Physical lines read.</param>
+public sealed record ImportSummary(
+    long CatalogueId,
+    string Catalogue,
+    string Source,
+    long Seed,
+    int Lines,
+    int Entries,
+    int Instances,
+    int Rejections,
+    IReadOnlyList<Rejection> FirstRejections,
+    TimeSpan Elapsed);
+
+/// <summary>The outcome of importing one file: a summary, or why the import was refused before anything was stored.</summary>
+public sealed record ImportResult(ImportSummary? Summary, string? Refusal)
+{
+    public bool Imported => Summary is not null;
+
+    public static ImportResult Refused(string reason) => new(null, reason);
+}

@@ -1,0 +1,104 @@
+namespace IdentityQueue.Store.Schema;
+
+// The persistence model: one class per table of SPEC §4, mapped by IdentityStoreContext. Decimal values (moduli,
+// residues, degree bounds, 64-bit seeds) are decimal text, since they can exceed every provider's integer types.
+// Times are UTC; SQLite keeps them as ISO-8601 text ('YYYY-MM-DD HH:MM:SS').
+
+/// <summary>A row of <c>catalogue</c>: one imported file (or a hand-made catalogue).</summary>
+public sealed class CatalogueRow
+{
+    public long Id { get; set; }
+    public required string Name { get; set; }
+    /// <summary>The imported file's path as given on the command line; null for a hand-made catalogue.</summary>
+    public string? Source { get; set; }
+    public DateTime ImportedAt { get; set; }
+    /// <summary>The run seed of the catalogue's candidates (0 ≤ seed &lt; 2^63), chosen at import.</summary>
+    public long Seed { get; set; }
+    /// <summary>The evidence target (bits) of the catalogue's last run; 64 until a run records another.</summary>
+    public int TargetBits { get; set; }
+    /// <summary>Counts at import: entries accepted, candidates made, rejections; null until an import has finished.</summary>
+    public int? Entries { get; set; }
+    public int? Instances { get; set; }
+    public int? Rejections { get; set; }
+}
+
+/// <summary>A row of <c>candidate</c>: one identity to screen (one instance of a family line).</summary>
+public sealed class CandidateRow
+{
+    public long Id { get; set; }
+    public long CatalogueId { get; set; }
+    public required string Label { get; set; }
+    /// <summary>The family label for an instance of a family line; null for a plain line.</summary>
+    public string? Family { get; set; }
+    /// <summary>The instance's parameters as a JSON object, <c>{"n":3}</c>; null for a plain line.</summary>
+    public string? Params { get; set; }
+    public required string Lhs { get; set; }
+    public required string Rhs { get; set; }
+    /// <summary>'Q', 'GF(7)', 'GF(2^8)'.</summary>
+    public required string Field { get; set; }
+    public DateTime CreatedAt { get; set; }
+    /// <summary>The line of the catalogue file the candidate came from; null for a hand-inserted row.</summary>
+    public int? Position { get; set; }
+}
+
+/// <summary>A row of <c>result</c>: the screening state of one candidate.</summary>
+public sealed class ResultRow
+{
+    public long CandidateId { get; set; }
+    /// <summary>One of <see cref="ResultStates"/>.</summary>
+    public required string State { get; set; }
+    /// <summary>The degree bound D as decimal text (it can exceed 2^63: exponents go up to 2^64 and multiply).</summary>
+    public string? DegreeBound { get; set; }
+    public double? HeightBoundLog2 { get; set; }
+    public int TrialsZero { get; set; }
+    public double? ErrorBoundLog2 { get; set; }
+    public long? WitnessTrialId { get; set; }
+    public bool Certified { get; set; }
+    public string? Message { get; set; }
+    public DateTime UpdatedAt { get; set; }
+    /// <summary>The worker screening the candidate now, and since when; null when no one is.</summary>
+    public string? ClaimedBy { get; set; }
+    public DateTime? ClaimedAt { get; set; }
+}
+
+/// <summary>A row of <c>trial</c>: one evaluation of lhs − rhs at a random point.</summary>
+public sealed class TrialRow
+{
+    public long Id { get; set; }
+    public long CandidateId { get; set; }
+    public int Seq { get; set; }
+    /// <summary>The prime p, decimal text (the characteristic, for an extension field).</summary>
+    public required string Modulus { get; set; }
+    public int FieldBits { get; set; }
+    /// <summary>log2 of the field size, exactly as the screen used it.</summary>
+    public double FieldSizeLog2 { get; set; }
+    /// <summary>m of GF(p^m); 1 for a prime field.</summary>
+    public int ExtensionDegree { get; set; }
+    /// <summary>The defining polynomial's coefficients, lowest power first, as a JSON array of decimal strings; null for a prime field.</summary>
+    public string? DefiningPolynomial { get; set; }
+    /// <summary>The trial's seed, decimal text (a full 64-bit value).</summary>
+    public required string PointSeed { get; set; }
+    /// <summary>'zero', 'nonzero' or 'undefined'.</summary>
+    public required string Outcome { get; set; }
+    /// <summary>The point as a JSON object: <c>{"x": "123"}</c>, or coefficient lists <c>{"x": ["1","0","3"]}</c> over an extension field.</summary>
+    public required string Point { get; set; }
+    /// <summary>The nonzero residue of lhs − rhs: decimal text, or a JSON array of decimal strings over an extension field.</summary>
+    public string? Difference { get; set; }
+    /// <summary>The matrix entry that was nonzero (<c>[1,2]</c>); null for a scalar identity.</summary>
+    public string? Entry { get; set; }
+    public double? BoundLog2 { get; set; }
+    public long ElapsedUs { get; set; }
+    public string? Worker { get; set; }
+    public DateTime CreatedAt { get; set; }
+}
+
+/// <summary>A row of <c>rejection</c>: a catalogue entry that could not be imported, and why.</summary>
+public sealed class RejectionRow
+{
+    public long Id { get; set; }
+    public long CatalogueId { get; set; }
+    public required string Source { get; set; }
+    public int Line { get; set; }
+    public required string Raw { get; set; }
+    public required string Reason { get; set; }
+}

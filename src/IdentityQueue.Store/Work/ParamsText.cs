@@ -1,0 +1,69 @@
+using System.Globalization;
+using System.Numerics;
+using System.Text;
+using System.Text.Json;
+
+namespace IdentityQueue.Store.Work;
+
+/// <summary><c>candidate.params</c>: a family instance's parameters as a JSON object of integers, <c>{"n":3,"k":1}</c>. Stateless.</summary>
+public static class ParamsText
+{
+    /// <summary>The JSON object, with the parameters in the order given (the family line's order).</summary>
+    public static string Write(IEnumerable<KeyValuePair<string, BigInteger>> parameters)
+    {
+        var text = new StringBuilder("{");
+        var first = true;
+        foreach (var (name, value) in parameters)
+        {
+            if (!first) text.Append(',');
+            first = false;
+            text.Append(JsonSerializer.Serialize(name)).Append(':').Append(value.ToString(CultureInfo.InvariantCulture));
+        }
+        return text.Append('}').ToString();
+    }
+
+    /// <summary>
+    /// Reads a params object; each value an integer (a JSON number, or a string of decimal digits for hand-written rows).
+    /// Returns null with <paramref name="error"/> set when the text is not such an object.
+    /// </summary>
+    public static IReadOnlyDictionary<string, BigInteger>? Read(string json, out string? error)
+    {
+        error = null;
+        var result = new Dictionary<string, BigInteger>(StringComparer.Ordinal);
+        try
+        {
+            using var document = JsonDocument.Parse(json);
+            if (document.RootElement.ValueKind != JsonValueKind.Object)
+            {
+                error = "params must be a JSON object such as {\"n\": 3}";
+                return null;
+            }
+            foreach (var property in document.RootElement.EnumerateObject())
+            {
+                var value = property.Value;
+                var digits = value.ValueKind switch
+                {
+                    JsonValueKind.Number => value.GetRawText(),
+                    JsonValueKind.String => value.GetString()!,
+                    _ => null,
+                };
+                if (digits is null || !BigInteger.TryParse(digits, NumberStyles.AllowLeadingSign, CultureInfo.InvariantCulture, out var integer))
+                {
+                    error = $"the parameter '{property.Name}' in params must be an integer, not {value.GetRawText()}";
+                    return null;
+                }
+                if (!result.TryAdd(property.Name, integer))
+                {
+                    error = $"the parameter '{property.Name}' is given twice in params";
+                    return null;
+                }
+            }
+        }
+        catch (JsonException e)
+        {
+            error = $"params is not valid JSON: {e.Message}";
+            return null;
+        }
+        return result;
+    }
+}

@@ -1,0 +1,57 @@
+using System.Numerics;
+using IdentityQueue.Algebra;
+using IdentityQueue.Algebra.Syntax;
+
+namespace IdentityQueue.Store.Work;
+
+/// <summary>A candidate as stored, with what its catalogue says about running it. Immutable.</summary>
+public sealed record StoredCandidate(
+    long Id,
+    long CatalogueId,
+    string Catalogue,
+    string Label,
+    string? Family,
+    string? Params,
+    string Lhs,
+    string Rhs,
+    string Field,
+    int? Position,
+    long CatalogueSeed,
+    int CatalogueTargetBits)
+{
+    /// <summary>The catalogue line this candidate stands for (without its family ranges; <see cref="Params"/> binds them).</summary>
+    public string Text => Field == "Q" ? $"{Lhs} = {Rhs}" : $"{Lhs} = {Rhs} over {Field}";
+
+    /// <summary>
+    /// Parses the stored sides and field and reads the parameters, giving an <see cref="IdentityEntry"/> (no family
+    /// ranges: the parameters are already fixed) and the parameter values to compile it with, or why that failed.
+    /// Each side is parsed on its own, so a hand-written side cannot smuggle in a label, an 'over' or a second '='.
+    /// </summary>
+    public BoundCandidate Bind(Limits? limits = null)
+    {
+        limits ??= Limits.Default;
+        var left = CatalogueParser.ParseExpression(Lhs, limits);
+        if (!left.Success) return BoundCandidate.Fail($"lhs: {left.Error}");
+        var right = CatalogueParser.ParseExpression(Rhs, limits);
+        if (!right.Success) return BoundCandidate.Fail($"rhs: {right.Error}");
+        var field = CatalogueParser.ParseField(Field, limits);
+        if (!field.Success) return BoundCandidate.Fail($"field: {field.Error}");
+        IReadOnlyDictionary<string, BigInteger> parameters = new Dictionary<string, BigInteger>(StringComparer.Ordinal);
+        if (Params is not null)
+        {
+            var read = ParamsText.Read(Params, out var error);
+            if (read is null) return BoundCandidate.Fail(error!);
+            parameters = read;
+        }
+        var entry = new IdentityEntry(Label, left.Value, right.Value, field.Value, [], Position ?? 1, Text);
+        return new BoundCandidate(entry, parameters, null);
+    }
+}
+
+/// <summary>A stored candidate ready to compile: the entry and its parameters, or the message for an <c>invalid</c> result.</summary>
+public sealed record BoundCandidate(IdentityEntry? Entry, IReadOnlyDictionary<string, BigInteger> Parameters, string? Error)
+{
+    public bool Success => Error is null;
+
+    internal static BoundCandidate Fail(string error) => new(null, new Dictionary<string, BigInteger>(), error);
+}
