@@ -11,13 +11,13 @@ public static class ImportCommand
 
     public static Command Create(TextWriter output, TextWriter error)
     {
-        var files = new Argument<string[]>("file")
+        var files = new Argument<string[]>("FILE")
         {
             Description = "Catalogue files: .idq (catalogue lines), .jsonl (one JSON object per line) or .csv (header label,lhs,rhs,over,for).",
             Arity = ArgumentArity.OneOrMore,
         };
-        var catalogue = new Option<string?>("--catalogue") { Description = "The catalogue's name (default: the file name without its extension); one file only." };
-        var seed = new Option<long?>("--seed") { Description = "The catalogue's run seed, 0 to 2^63-1 (default: a random one, stored, so runs can be repeated)." };
+        var catalogue = new Option<string?>("--catalogue") { HelpName = "NAME", Description = "The catalogue's name (default: the file name without its extension); one file only." };
+        var seed = new Option<long?>("--seed") { HelpName = "S", Description = "The catalogue's run seed, 0 to 2^63-1 (default: a random one, stored, so runs can be repeated)." };
         var store = new StoreOptions();
         var command = new Command("import", "Load catalogue files into the store. Every good entry is imported; a bad one is recorded in the\n" +
             "table 'rejection' with its line, raw text and reason, and does not stop the import. A file whose catalogue name\n" +

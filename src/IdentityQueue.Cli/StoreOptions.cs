@@ -14,6 +14,7 @@ internal sealed class StoreOptions
 
     public Option<string?> Db { get; } = new("--db")
     {
+        HelpName = "PATH",
         Description = $"The store, a SQLite file (default: ${EnvironmentVariable}, else {DefaultPath} in the working directory).",
     };
 
