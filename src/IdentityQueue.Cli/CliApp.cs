@@ -26,6 +26,15 @@ public static class CliApp
         root.Subcommands.Add(CheckCommand.Create(output, error));
         root.Subcommands.Add(InitCommand.Create(output, error));
         root.Subcommands.Add(ImportCommand.Create(output, error));
+        root.Subcommands.Add(RunCommands.Run(output, error));
+        root.Subcommands.Add(RunCommands.Worker(output, error));
+        root.Subcommands.Add(RunCommands.Enqueue(output, error));
+        root.Subcommands.Add(QueryCommands.Status(output, error));
+        root.Subcommands.Add(ShowCommands.Show(output, error));
+        root.Subcommands.Add(ShowCommands.Recheck(output, error));
+        root.Subcommands.Add(ExportCommand.Create(output, error));
+        root.Subcommands.Add(QueryCommands.Sql(output, error));
+        root.Subcommands.Add(DemoCommand.Create(output, error));
 
         var parse = root.Parse(args, new ParserConfiguration { ResponseFileTokenReplacer = null });
         if (parse.Errors.Count > 0 && parse.Action is not System.CommandLine.Help.HelpAction)

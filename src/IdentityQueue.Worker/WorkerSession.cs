@@ -66,7 +66,8 @@ public sealed class WorkerSession : IDisposable
     /// <summary>Runs the long-running worker until SIGINT/SIGTERM (the generic host's console lifetime).</summary>
     public void RunUntilStopped()
     {
-        _host.Run();
+        _host.Start();
+        _host.WaitForShutdown();
         // Stopped: in-flight chunks saved what they screened and released the rest; queued work goes back to pending.
         Store.Recover();
     }

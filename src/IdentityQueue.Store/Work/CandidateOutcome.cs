@@ -38,6 +38,7 @@ public sealed record CandidateOutcome
         Verdict.Survived => ResultStates.Survived,
         Verdict.Refuted => ResultStates.Refuted,
         Verdict.Undecided => ResultStates.Undecided,
+        Verdict.Pending => ResultStates.Pending,
         _ => ResultStates.Invalid,
     };
 }

@@ -1,0 +1,174 @@
+using System.CommandLine;
+using System.Globalization;
+using System.Text.Json;
+using IdentityQueue.Store;
+using Microsoft.Data.Sqlite;
+
+namespace IdentityQueue.Cli;
+
+/// <summary><c>idq sql</c> and <c>idq status</c>: plain SQL over the store's public tables and views.</summary>
+internal static class QueryCommands
+{
+    public static Command Sql(TextWriter output, TextWriter error)
+    {
+        var query = new Argument<string>("query") { Description = "A read-only SQL query, e.g. \"select label, error_bound_log2 from survivors\"." };
+        var db = new StoreOptions();
+        var csv = new Option<bool>("--csv") { Description = "Print CSV instead of a table." };
+        var json = new Option<bool>("--json") { Description = "Print a JSON array of objects instead of a table." };
+        var command = new Command("sql", "Run a read-only SQL query against the store and print the rows.\n\n" +
+            "Examples:\n  idq sql \"select * from survivors\"\n  idq sql \"select family, first_refuted from families where refuted > 0\" --csv\n" +
+            "  idq sql \"select label, witness_modulus, witness_point from verdicts where state = 'refuted'\" --json")
+        { query, csv, json };
+        db.AddTo(command);
+        command.SetAction(parse =>
+        {
+            QueryResult result;
+            try
+            {
+                result = ReadOnlyQuery.Run(db.Path(parse), parse.GetValue(query)!);
+            }
+            catch (SqliteException e)
+            {
+                error.WriteLine($"idq sql: {e.Message}");
+                return ExitCodes.BadInput;
+            }
+            catch (StoreUnavailableException e)
+            {
+                error.WriteLine($"idq sql: {e.Message}");
+                return ExitCodes.BadInput;
+            }
+            if (parse.GetValue(json)) WriteJson(output, result);
+            else if (parse.GetValue(csv)) WriteCsv(output, result);
+            else WriteTable(output, result);
+            return ExitCodes.Success;
+        });
+        return command;
+    }
+
+    internal static string Text(object? value) => value switch
+    {
+        null => "",
+        double d => d.ToString("R", CultureInfo.InvariantCulture),
+        IFormattable f => f.ToString(null, CultureInfo.InvariantCulture),
+        _ => value.ToString() ?? "",
+    };
+
+    internal static void WriteTable(TextWriter output, QueryResult result, int maxWidth = 60)
+    {
+        var cells = result.Rows.Select(r => r.Select(v => Clip(Text(v), maxWidth)).ToArray()).ToList();
+        var widths = result.Columns.Select((c, i) => Math.Max(c.Length, cells.Count == 0 ? 0 : cells.Max(r => r[i].Length))).ToArray();
+        output.WriteLine(string.Join("  ", result.Columns.Select((c, i) => c.PadRight(widths[i]))).TrimEnd());
+        output.WriteLine(string.Join("  ", widths.Select(w => new string('-', w))));
+        foreach (var row in cells) output.WriteLine(string.Join("  ", row.Select((v, i) => v.PadRight(widths[i]))).TrimEnd());
+        output.WriteLine($"({result.Rows.Count} row{(result.Rows.Count == 1 ? "" : "s")})");
+    }
+
+    private static string Clip(string s, int width)
+    {
+        s = s.Replace('\n', ' ');
+        return s.Length <= width ? s : s[..(width - 1)] + "…";
+    }
+
+    internal static void WriteCsv(TextWriter output, QueryResult result)
+    {
+        using var csv = CsvHelper.CsvWriter.Create(output, new CsvHelper.CsvWriterOptions(), true);
+        csv.WriteRecord([.. result.Columns]);
+        foreach (var row in result.Rows) csv.WriteRecord(row.Select(Text).ToArray());
+    }
+
+    private static void WriteJson(TextWriter output, QueryResult result)
+    {
+        using var stream = new MemoryStream();
+        using (var w = new Utf8JsonWriter(stream, new JsonWriterOptions { Indented = true }))
+        {
+            w.WriteStartArray();
+            foreach (var row in result.Rows)
+            {
+                w.WriteStartObject();
+                for (var i = 0; i < row.Length; i++)
+                {
+                    switch (row[i])
+                    {
+                        case null: w.WriteNull(result.Columns[i]); break;
+                        case long l: w.WriteNumber(result.Columns[i], l); break;
+                        case double d: w.WriteNumber(result.Columns[i], d); break;
+                        default: w.WriteString(result.Columns[i], Text(row[i])); break;
+                    }
+                }
+                w.WriteEndObject();
+            }
+            w.WriteEndArray();
+        }
+        output.WriteLine(System.Text.Encoding.UTF8.GetString(stream.ToArray()));
+    }
+
+    public static Command Status(TextWriter output, TextWriter error)
+    {
+        var db = new StoreOptions();
+        var json = new Option<bool>("--json") { Description = "Print JSON." };
+        var command = new Command("status", "Counts per state per catalogue, throughput over the last minute, and an ETA.\n\nExample:\n  idq status --json") { json };
+        db.AddTo(command);
+        command.SetAction(parse =>
+        {
+            var path = db.Path(parse);
+            try
+            {
+                using (var store = StoreConnection.OpenSqlite(path)) store.EnsureCurrent();
+                var perCatalogue = ReadOnlyQuery.Run(path, """
+                    SELECT k.name AS catalogue, r.state AS state, count(*) AS n
+                    FROM result r JOIN candidate c ON c.id = r.candidate_id JOIN catalogue k ON k.id = c.catalogue_id
+                    GROUP BY k.name, r.state ORDER BY k.name, r.state
+                    """);
+                var recent = ReadOnlyQuery.Run(path, """
+                    SELECT count(*) FROM result
+                    WHERE state IN ('refuted','survived','undecided','invalid','failed') AND updated_at >= datetime('now', '-60 seconds')
+                    """);
+                var rate = Convert.ToDouble(recent.Rows[0][0], CultureInfo.InvariantCulture) / 60.0;
+                var byCatalogue = perCatalogue.Rows.GroupBy(r => (string)r[0]!)
+                    .ToDictionary(g => g.Key, g => g.ToDictionary(r => (string)r[1]!, r => Convert.ToInt64(r[2], CultureInfo.InvariantCulture)));
+                var open = byCatalogue.Values.SelectMany(d => d).Where(kv => kv.Key is "pending" or "queued" or "screening").Sum(kv => kv.Value);
+                var eta = rate > 0 && open > 0 ? TimeSpan.FromSeconds(open / rate) : (TimeSpan?)null;
+                if (parse.GetValue(json)) WriteStatusJson(output, byCatalogue, rate, open, eta);
+                else
+                {
+                    var states = new[] { "pending", "queued", "screening", "refuted", "survived", "undecided", "invalid", "failed" };
+                    var rows = byCatalogue.Select(kv => new object?[] { kv.Key }.Concat(states.Select(s => (object?)(kv.Value.TryGetValue(s, out var n) ? n : 0))).ToArray()).ToList();
+                    WriteTable(output, new QueryResult(["catalogue", .. states], rows));
+                    output.WriteLine($"throughput {rate * 60:F0} candidates settled in the last minute; {open} open" + (eta is { } e ? $", ETA {e:hh\\:mm\\:ss}" : ""));
+                }
+                return ExitCodes.Success;
+            }
+            catch (StoreUnavailableException e)
+            {
+                error.WriteLine($"idq status: {e.Message}");
+                return ExitCodes.BadInput;
+            }
+        });
+        return command;
+    }
+
+    private static void WriteStatusJson(TextWriter output, Dictionary<string, Dictionary<string, long>> byCatalogue, double rate, long open, TimeSpan? eta)
+    {
+        using var stream = new MemoryStream();
+        using (var w = new Utf8JsonWriter(stream, new JsonWriterOptions { Indented = true }))
+        {
+            w.WriteStartObject();
+            w.WriteStartObject("catalogues");
+            foreach (var (name, states) in byCatalogue)
+            {
+                w.WriteStartObject(name);
+                foreach (var (state, n) in states) w.WriteNumber(state, n);
+                w.WriteEndObject();
+            }
+            w.WriteEndObject();
+            w.WriteStartObject("total");
+            foreach (var g in byCatalogue.Values.SelectMany(d => d).GroupBy(kv => kv.Key)) w.WriteNumber(g.Key, g.Sum(kv => kv.Value));
+            w.WriteEndObject();
+            w.WriteNumber("open", open);
+            w.WriteNumber("settledPerSecond", Math.Round(rate, 3));
+            if (eta is { } e) w.WriteNumber("etaSeconds", Math.Round(e.TotalSeconds)); else w.WriteNull("etaSeconds");
+            w.WriteEndObject();
+        }
+        output.WriteLine(System.Text.Encoding.UTF8.GetString(stream.ToArray()));
+    }
+}

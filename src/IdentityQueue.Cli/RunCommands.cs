@@ -1,0 +1,171 @@
+using System.CommandLine;
+using System.Diagnostics;
+using IdentityQueue.Algebra;
+using IdentityQueue.Store;
+using IdentityQueue.Store.Work;
+using IdentityQueue.Worker;
+using Microsoft.Extensions.DependencyInjection;
+using Spectre.Console;
+
+namespace IdentityQueue.Cli;
+
+/// <summary><c>idq run</c>, <c>idq worker</c> and <c>idq enqueue</c>: the batch, on an in-process Hangfire server.</summary>
+internal static class RunCommands
+{
+    private sealed record RunArgs(StoreOptions Db, Option<int?> Workers, Option<int?> Target, Option<int> Chunk);
+
+    private static RunArgs Arguments(Command command, bool target)
+    {
+        var args = new RunArgs(
+            new StoreOptions(),
+            new Option<int?>("--workers") { Description = "Worker threads in this process (default: the number of cores)." },
+            new Option<int?>("--target-bits") { Description = "Raise the evidence wanted to 2^-B; survivors short of it get more trials, nothing settled is redone." },
+            new Option<int>("--chunk-size") { Description = "Candidates per queue job.", DefaultValueFactory = _ => 500 });
+        args.Db.AddTo(command);
+        command.Options.Add(args.Workers);
+        if (target) command.Options.Add(args.Target);
+        command.Options.Add(args.Chunk);
+        return args;
+    }
+
+    public static Command Run(TextWriter output, TextWriter error)
+    {
+        var command = new Command("run", "The main job: enqueue everything pending, screen it with an in-process worker pool, show progress, and exit when every candidate has a final state.\n\n" +
+            "Examples:\n  idq run\n  idq run --db night.db --workers 2\n  idq run --target-bits 128   # more evidence for the survivors only");
+        var a = Arguments(command, target: true);
+        command.SetAction(parse => Execute(parse, a, output, error, RunMode.ToCompletion));
+        return command;
+    }
+
+    public static Command Worker(TextWriter output, TextWriter error)
+    {
+        var command = new Command("worker", "A long-running worker for overnight batches: screens whatever becomes pending (also rows inserted by hand) until SIGINT/SIGTERM, then stops gracefully.\n\n" +
+            "Example:\n  idq worker --db night.db --workers 2");
+        var a = Arguments(command, target: false);
+        command.SetAction(parse => Execute(parse, a, output, error, RunMode.UntilStopped));
+        return command;
+    }
+
+    public static Command Enqueue(TextWriter output, TextWriter error)
+    {
+        var command = new Command("enqueue", "Enqueue pending candidates (also rows inserted by hand) without working on them; a later 'idq run' or 'idq worker' screens them.\n\n" +
+            "Example:\n  idq enqueue --db night.db");
+        var a = Arguments(command, target: true);
+        command.SetAction(parse => Execute(parse, a, output, error, RunMode.EnqueueOnly));
+        return command;
+    }
+
+    private enum RunMode { ToCompletion, UntilStopped, EnqueueOnly }
+
+    private static int Execute(ParseResult parse, RunArgs a, TextWriter output, TextWriter error, RunMode mode)
+    {
+        var path = a.Db.Path(parse);
+        var settings = new WorkerSettings
+        {
+            Workers = parse.GetValue(a.Workers) ?? Environment.ProcessorCount,
+            ChunkSize = parse.GetValue(a.Chunk),
+        };
+        var problems = settings.Validate();
+        var target = parse.GetValue(a.Target);
+        if (target is < 1 or > 4096) problems = [.. problems, $"--target-bits must be between 1 and 4096, got {target}"];
+        if (problems.Count > 0)
+        {
+            foreach (var p in problems) error.WriteLine($"idq: {p}");
+            return ExitCodes.BadInput;
+        }
+        try
+        {
+            using (var store = StoreConnection.OpenSqlite(path))
+            {
+                store.EnsureCurrent();
+                var queue = new WorkQueue(store);
+                if (target is int bits)
+                {
+                    var reopened = queue.RaiseTarget(bits);
+                    if (reopened > 0) output.WriteLine($"target 2^-{bits}: {reopened} survivors get more trials");
+                }
+            }
+        }
+        catch (StoreUnavailableException e)
+        {
+            error.WriteLine($"idq: {e.Message}");
+            return ExitCodes.BadInput;
+        }
+
+        var interactive = mode == RunMode.ToCompletion && !Console.IsOutputRedirected && ReferenceEquals(output, Console.Out);
+        using var session = WorkerSession.Open(path, settings, longRunning: mode == RunMode.UntilStopped, quiet: mode != RunMode.UntilStopped,
+            services => services.AddSingleton<IScreeningStore>(new SqliteWorkerStore(path, settings.Limits)), out var problem);
+        if (session is null)
+        {
+            if (mode == RunMode.EnqueueOnly)
+            {
+                // A worker is running on this store: it plans pending work itself; make sure hand-inserted rows are seen.
+                using var store = StoreConnection.OpenSqlite(path);
+                var added = new CandidateStore(store).EnsureResultRows();
+                output.WriteLine($"a worker is running on {path}; it will screen the pending candidates ({added} new rows made pending)");
+                return ExitCodes.Success;
+            }
+            error.WriteLine($"idq: {problem}");
+            return ExitCodes.BadInput;
+        }
+        switch (mode)
+        {
+            case RunMode.EnqueueOnly:
+                output.WriteLine($"enqueued {session.EnqueueOnly()} candidates on {path}; 'idq run' or 'idq worker' screens them");
+                return ExitCodes.Success;
+            case RunMode.UntilStopped:
+                output.WriteLine($"worker {settings.WorkerName} on {path} with {settings.Workers} threads; Ctrl+C stops it gracefully");
+                session.RunUntilStopped();
+                return ExitCodes.Success;
+        }
+
+        var clock = Stopwatch.StartNew();
+        using var cancel = new CancellationTokenSource();
+        ConsoleCancelEventHandler onCancel = (_, e) => { e.Cancel = true; cancel.Cancel(); };
+        Console.CancelKeyPress += onCancel;
+        StateCounts final;
+        try
+        {
+            final = interactive ? RunWithProgressBar(session, cancel.Token, clock) : session.RunToCompletion(
+                c => output.WriteLine($"{clock.Elapsed:hh\\:mm\\:ss}  {Progress(c, clock)}"), TimeSpan.FromSeconds(10), cancel.Token);
+        }
+        finally
+        {
+            Console.CancelKeyPress -= onCancel;
+        }
+        output.WriteLine();
+        output.WriteLine(cancel.IsCancellationRequested ? "stopped; the rest stays pending for the next run" : "done");
+        output.WriteLine($"  {final.Settled} of {final.Total} candidates settled in {clock.Elapsed.TotalSeconds:F1} s: " +
+            $"{final.Refuted} refuted, {final.Survived} survived (very likely true), {final.Undecided} undecided, {final.Invalid} invalid, {final.Failed} failed");
+        output.WriteLine("  Screening is evidence, not proof: each survivor's error bound is only as good as its degree bound.");
+        output.WriteLine($"  idq status --db {path}    idq sql \"select * from survivors\" --db {path}");
+        return final.Failed > 0 ? ExitCodes.Found : ExitCodes.Success;
+    }
+
+    private static string Progress(StateCounts c, Stopwatch clock)
+    {
+        var rate = c.Settled / Math.Max(clock.Elapsed.TotalSeconds, 1e-3);
+        var left = c.Total - c.Settled;
+        var eta = rate > 0 && left > 0 ? TimeSpan.FromSeconds(left / rate).ToString(@"hh\:mm\:ss") : "-";
+        return $"{c.Settled}/{c.Total} settled, {c.Refuted} refuted, {c.Survived} survived, {rate:F0}/s, ETA {eta}";
+    }
+
+    private static StateCounts RunWithProgressBar(WorkerSession session, CancellationToken cancellation, Stopwatch clock)
+    {
+        StateCounts final = null!;
+        AnsiConsole.Progress()
+            .AutoClear(false)
+            .Columns(new TaskDescriptionColumn(), new ProgressBarColumn(), new PercentageColumn(), new RemainingTimeColumn())
+            .Start(ctx =>
+            {
+                var task = ctx.AddTask("screening", maxValue: 1);
+                final = session.RunToCompletion(c =>
+                {
+                    task.MaxValue = Math.Max(1, c.Total);
+                    task.Value = c.Settled;
+                    task.Description = Progress(c, clock);
+                }, TimeSpan.FromMilliseconds(250), cancellation);
+            });
+        return final;
+    }
+}

@@ -1,0 +1,131 @@
+using System.Data.Common;
+using IdentityQueue.Store.Schema;
+
+namespace IdentityQueue.Store.Work;
+
+/// <summary>A candidate claimed for screening: as stored, with its trials so far.</summary>
+public sealed record ClaimedCandidate(StoredCandidate Candidate, IReadOnlyList<Screening.TrialRecord> Trials);
+
+/// <summary>
+/// The queue side of the worker's store: stages, claims and recovery. Stage 1 is a candidate's first zero trial (the cheap
+/// field); stage 2 the rest, to the target. Like <see cref="CandidateStore"/> it uses the connection it is given and is
+/// not thread-safe.
+/// </summary>
+public sealed class WorkQueue(StoreConnection store)
+{
+    private readonly DbConnection _db = store.Connection;
+    private readonly CandidateStore _candidates = new(store);
+
+    /// <summary>Candidates per state, over the whole store.</summary>
+    public IReadOnlyDictionary<string, long> CountByState()
+    {
+        using var command = _db.Command("SELECT state, count(*) FROM result GROUP BY state");
+        var counts = new Dictionary<string, long>(StringComparer.Ordinal);
+        using var r = command.ExecuteReader();
+        while (r.Read()) counts[r.GetString(0)] = r.GetInt64(1);
+        return counts;
+    }
+
+    /// <summary>
+    /// Start-up recovery for a store held by this process alone: result rows for hand-inserted candidates, and every claim
+    /// (queued or screening) returned to pending — the process that made it is gone. Returns the claims returned.
+    /// </summary>
+    public int Recover()
+    {
+        _candidates.EnsureResultRows();
+        using var command = _db.Command($"""
+            UPDATE result SET state = '{ResultStates.Pending}', claimed_by = NULL, claimed_at = NULL, updated_at = CURRENT_TIMESTAMP
+            WHERE state IN ('{ResultStates.Queued}', '{ResultStates.Screening}')
+            """);
+        return command.ExecuteNonQuery();
+    }
+
+    /// <summary>
+    /// Reopens survivors whose evidence is short of <paramref name="targetBits"/> (a run with a higher target) and records
+    /// the target on every catalogue; nothing already settled is redone. Returns the candidates reopened.
+    /// </summary>
+    public int RaiseTarget(int targetBits)
+    {
+        using var transaction = _db.BeginTransaction();
+        using (var catalogues = _db.Command("UPDATE catalogue SET target_bits = @bits WHERE target_bits < @bits", transaction))
+        {
+            catalogues.Parameter("@bits", targetBits);
+            catalogues.ExecuteNonQuery();
+        }
+        using var reopen = _db.Command($"""
+            UPDATE result SET state = '{ResultStates.Pending}', updated_at = CURRENT_TIMESTAMP
+            WHERE state = '{ResultStates.Survived}' AND (error_bound_log2 IS NULL OR error_bound_log2 > -@bits)
+            """, transaction);
+        reopen.Parameter("@bits", targetBits);
+        var reopened = reopen.ExecuteNonQuery();
+        transaction.Commit();
+        return reopened;
+    }
+
+    /// <summary>
+    /// Takes up to <paramref name="max"/> pending candidates of the earliest stage that has any and marks them queued, in one
+    /// transaction. Returns the stage (1 or 2) and the ids, lowest first; no ids when nothing is pending.
+    /// </summary>
+    public (int Stage, IReadOnlyList<long> Ids) TakePending(int max)
+    {
+        using var transaction = _db.BeginTransaction();
+        foreach (var (stage, condition) in new[] { (1, "trials_zero = 0"), (2, "trials_zero > 0") })
+        {
+            var ids = new List<long>();
+            using (var select = _db.Command($"SELECT candidate_id FROM result WHERE state = '{ResultStates.Pending}' AND {condition} ORDER BY candidate_id LIMIT @max", transaction))
+            {
+                select.Parameter("@max", max);
+                using var r = select.ExecuteReader();
+                while (r.Read()) ids.Add(r.GetInt64(0));
+            }
+            if (ids.Count == 0) continue;
+            using var update = _db.Command($"UPDATE result SET state = '{ResultStates.Queued}', updated_at = CURRENT_TIMESTAMP WHERE candidate_id = @id", transaction);
+            var id = update.Parameter("@id");
+            update.Prepare();
+            foreach (var candidate in ids) { id.Set(candidate); update.ExecuteNonQuery(); }
+            transaction.Commit();
+            return (stage, ids);
+        }
+        transaction.Commit();
+        return (1, []);
+    }
+
+    /// <summary>Claims the candidates for <paramref name="worker"/> and loads them with their trials; settled ones are skipped.</summary>
+    public IReadOnlyList<ClaimedCandidate> Claim(IReadOnlyList<long> ids, string worker)
+    {
+        var claimed = new List<ClaimedCandidate>(ids.Count);
+        using var transaction = _db.BeginTransaction();
+        using var command = _db.Command($"""
+            UPDATE result SET state = '{ResultStates.Screening}', claimed_by = @worker, claimed_at = CURRENT_TIMESTAMP, updated_at = CURRENT_TIMESTAMP
+            WHERE candidate_id = @id AND state IN ('{ResultStates.Pending}', '{ResultStates.Queued}', '{ResultStates.Screening}')
+            """, transaction);
+        var id = command.Parameter("@id");
+        command.Parameter("@worker", worker);
+        command.Prepare();
+        var toLoad = new List<long>(ids.Count);
+        foreach (var candidate in ids)
+        {
+            id.Set(candidate);
+            if (command.ExecuteNonQuery() == 1) toLoad.Add(candidate);
+        }
+        transaction.Commit();
+        foreach (var candidate in toLoad)
+            if (_candidates.LoadCandidate(candidate) is { } stored)
+                claimed.Add(new ClaimedCandidate(stored, _candidates.LoadTrials(candidate)));
+        return claimed;
+    }
+
+    /// <summary>Returns claimed candidates to pending (a graceful stop released them unscreened).</summary>
+    public void Release(IReadOnlyList<long> ids)
+    {
+        using var transaction = _db.BeginTransaction();
+        using var command = _db.Command($"""
+            UPDATE result SET state = '{ResultStates.Pending}', claimed_by = NULL, claimed_at = NULL, updated_at = CURRENT_TIMESTAMP
+            WHERE candidate_id = @id AND state IN ('{ResultStates.Queued}', '{ResultStates.Screening}')
+            """, transaction);
+        var id = command.Parameter("@id");
+        command.Prepare();
+        foreach (var candidate in ids) { id.Set(candidate); command.ExecuteNonQuery(); }
+        transaction.Commit();
+    }
+}

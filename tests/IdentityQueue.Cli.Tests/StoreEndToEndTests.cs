@@ -1,0 +1,173 @@
+using System.Globalization;
+using Microsoft.Data.Sqlite;
+
+namespace IdentityQueue.Cli.Tests;
+
+/// <summary>
+/// The product as users meet it, on a real SQLite file: init, import, run, then plain SQL on the public views.
+/// The identities are published ones (sources beside each), with known verdicts.
+/// </summary>
+public sealed class StoreEndToEndTests : IDisposable
+{
+    private readonly string _dir = Directory.CreateTempSubdirectory("idq-e2e-").FullName;
+    private string Db => Path.Combine(_dir, "s.db");
+
+    public void Dispose()
+    {
+        SqliteConnection.ClearAllPools();
+        try { Directory.Delete(_dir, recursive: true); } catch (IOException) { }
+    }
+
+    internal static (int Code, string Out, string Err) Idq(params string[] args)
+    {
+        var output = new StringWriter();
+        var error = new StringWriter();
+        var code = CliApp.Run(args, output, error);
+        return (code, output.ToString(), error.ToString());
+    }
+
+    internal static List<object?[]> Query(string db, string sql)
+    {
+        using var c = new SqliteConnection($"Data Source={db};Mode=ReadOnly;Pooling=False");
+        c.Open();
+        using var cmd = c.CreateCommand();
+        cmd.CommandText = sql;
+        using var r = cmd.ExecuteReader();
+        var rows = new List<object?[]>();
+        while (r.Read())
+        {
+            var row = new object?[r.FieldCount];
+            for (var i = 0; i < row.Length; i++) row[i] = r.IsDBNull(i) ? null : r.GetValue(i);
+            rows.Add(row);
+        }
+        return rows;
+    }
+
+    private const string Catalogue = """
+        # Brahmagupta (628); Fibonacci, Liber Quadratorum (1225)
+        two-squares: (a^2+b^2)*(c^2+d^2) = (a*c-b*d)^2 + (a*d+b*c)^2
+        # the same with a sign flipped: difference 4abcd (from the above)
+        two-squares-flipped: (a^2+b^2)*(c^2+d^2) = (a*c+b*d)^2 + (a*d+b*c)^2
+        # Krattenthaler, Advanced Determinant Calculus (1999) (2.1) [memory]; reversed: false exactly when C(n,2) is odd
+        vdm: det(matrix(i in 1..n, j in 1..n: x[i]^(j-1))) = prod(i in 1..n: prod(j in i+1..n: x[j] - x[i])) for n in 2..6
+        vdm-reversed: det(matrix(i in 1..n, j in 1..n: x[i]^(j-1))) = prod(i in 1..n: prod(j in i+1..n: x[i] - x[j])) for n in 2..7
+        # Lidl & Niederreiter, Finite Fields, Thm 1.46 [memory]; false over Q (common practice)
+        frobenius-gf5: (x+y)^5 = x^5 + y^5 over GF(5)
+        frobenius-q: (x+y)^5 = x^5 + y^5
+        # Lander & Parkin, Bull. AMS 72 (1966) 1079
+        lander-parkin: 27^5 + 84^5 + 110^5 + 133^5 = 144^5
+        # Cayley, Phil. Trans. 148 (1858)
+        cayley-hamilton: [[a,b],[c,d]]^2 - tr([[a,b],[c,d]])*[[a,b],[c,d]] + det([[a,b],[c,d]])*id(2) = 0
+        broken: (x+1 = x
+        bad-field: x = x over GF(12)
+        """;
+
+    [Fact]
+    public void ImportRunAndQuery_GiveThePublishedVerdicts()
+    {
+        var file = Path.Combine(_dir, "reference.idq");
+        File.WriteAllText(file, Catalogue);
+        Assert.Equal(0, Idq("init", "--db", Db).Code);
+        var import = Idq("import", file, "--db", Db, "--seed", "11");
+        Assert.Equal(0, import.Code);
+        Assert.Contains("2 rejections", import.Out);
+        var run = Idq("run", "--db", Db, "--workers", "2");
+        Assert.True(run.Code == 0, run.Out + run.Err);
+
+        var states = Query(Db, "SELECT label, state FROM verdicts").ToDictionary(r => (string)r[0]!, r => (string)r[1]!);
+        Assert.Equal("survived", states["two-squares"]);
+        Assert.Equal("refuted", states["two-squares-flipped"]);
+        Assert.Equal("survived", states["frobenius-gf5"]);
+        Assert.Equal("refuted", states["frobenius-q"]);
+        Assert.Equal("survived", states["lander-parkin"]);
+        Assert.Equal("survived", states["cayley-hamilton"]);
+        foreach (var n in new[] { 2, 3, 4, 5, 6 }) Assert.Equal("survived", states[$"vdm[n={n}]"]);
+        foreach (var (n, expected) in new[] { (2, "refuted"), (3, "refuted"), (4, "survived"), (5, "survived"), (6, "refuted"), (7, "refuted") })
+            Assert.Equal(expected, states[$"vdm-reversed[n={n}]"]);
+
+        // every survivor reached the target; every refutation has a witness that is certified
+        Assert.All(Query(Db, "SELECT error_bound_log2 FROM survivors"), r => Assert.True(Convert.ToDouble(r[0], CultureInfo.InvariantCulture) <= -64));
+        Assert.All(Query(Db, "SELECT r.certified, v.witness_modulus FROM verdicts v JOIN result r ON r.candidate_id = v.candidate_id WHERE v.state = 'refuted'"),
+            r => { Assert.Equal(1L, r[0]); Assert.NotNull(r[1]); });
+
+        var rejections = Query(Db, "SELECT line, reason FROM rejection ORDER BY line");
+        Assert.Equal(2, rejections.Count);
+        Assert.Contains("column", (string)rejections[0][1]!);
+        Assert.Contains("GF(12)", (string)rejections[1][1]!);
+
+        var family = Query(Db, "SELECT instances, survived, refuted, first_refuted FROM families WHERE family = 'vdm-reversed'").Single();
+        Assert.Equal((6L, 2L, 4L), ((long)family[0]!, (long)family[1]!, (long)family[2]!));
+        Assert.Contains("\"n\":2", ((string)family[3]!).Replace(" ", ""));
+
+        Assert.Equal(0, Idq("recheck", "--all", "--db", Db).Code);
+    }
+
+    [Fact]
+    public void HandInsertedRow_IsPickedUpByTheNextRun()
+    {
+        var file = Path.Combine(_dir, "one.idq");
+        File.WriteAllText(file, "one: x + x = 2*x\n");
+        Idq("init", "--db", Db);
+        Idq("import", file, "--db", Db);
+        using (var c = new SqliteConnection($"Data Source={Db};Pooling=False"))
+        {
+            c.Open();
+            using var cmd = c.CreateCommand();
+            cmd.CommandText = "INSERT INTO candidate (catalogue_id, label, lhs, rhs) SELECT id, 'by-hand', '(x+1)^2', 'x^2 + 1' FROM catalogue";
+            cmd.ExecuteNonQuery();
+        }
+        Assert.Equal(0, Idq("run", "--db", Db).Code);
+        var states = Query(Db, "SELECT label, state FROM verdicts").ToDictionary(r => (string)r[0]!, r => (string)r[1]!);
+        Assert.Equal("survived", states["one"]);
+        Assert.Equal("refuted", states["by-hand"]);
+    }
+
+    [Fact]
+    public void HigherTarget_AddsTrialsToSurvivorsOnly()
+    {
+        var file = Path.Combine(_dir, "t.idq");
+        File.WriteAllText(file, "t: (x+y)^2 = x^2 + 2*x*y + y^2\nf: (x+y)^2 = x^2 + y^2\n");
+        Idq("init", "--db", Db);
+        Idq("import", file, "--db", Db, "--seed", "3");
+        Idq("run", "--db", Db);
+        var before = Query(Db, "SELECT candidate_id, seq, modulus, point FROM trial ORDER BY candidate_id, seq").Select(r => string.Join("|", r)).ToList();
+        Assert.Equal(0, Idq("run", "--db", Db, "--target-bits", "256").Code);
+        var after = Query(Db, "SELECT candidate_id, seq, modulus, point FROM trial ORDER BY candidate_id, seq").Select(r => string.Join("|", r)).ToList();
+        Assert.True(after.Count > before.Count);
+        Assert.All(before, t => Assert.Contains(t, after));
+        Assert.True(Convert.ToDouble(Query(Db, "SELECT error_bound_log2 FROM verdicts WHERE label = 't'").Single()[0], CultureInfo.InvariantCulture) <= -256);
+        Assert.Equal(1L, Query(Db, "SELECT count(*) FROM trial t JOIN candidate c ON c.id = t.candidate_id WHERE c.label = 'f'").Single()[0]);
+    }
+
+    [Fact]
+    public void SqlStatusShowAndExport_Work()
+    {
+        var file = Path.Combine(_dir, "s.idq");
+        File.WriteAllText(file, "t: (x+1)^2 = x^2 + 2*x + 1\nf: (x+1)^2 = x^2 + 1\n");
+        Idq("init", "--db", Db);
+        Idq("import", file, "--db", Db);
+        Idq("run", "--db", Db);
+        var sql = Idq("sql", "select label, state from verdicts order by label", "--db", Db, "--csv");
+        Assert.Equal(0, sql.Code);
+        Assert.Contains("f,refuted", sql.Out);
+        Assert.Equal(2, Idq("sql", "delete from candidate", "--db", Db).Code); // read-only
+        Assert.Contains("\"survived\": 1", Idq("status", "--db", Db, "--json").Out);
+        var show = Idq("show", "f", "--db", Db, "--json");
+        Assert.Equal(0, show.Code);
+        Assert.Contains("\"outcome\": \"nonzero\"", show.Out);
+        var export = Idq("export", "--state", "refuted", "--db", Db);
+        Assert.Single(export.Out.Split('\n', StringSplitOptions.RemoveEmptyEntries));
+        Assert.Contains("\"witness_modulus\"", export.Out);
+    }
+
+    [Fact]
+    public void SecondWorkerOnTheSameStore_IsRefused()
+    {
+        Idq("init", "--db", Db);
+        using var held = Worker.StoreLock.TryAcquire(Db, out _);
+        Assert.NotNull(held);
+        var run = Idq("run", "--db", Db);
+        Assert.Equal(2, run.Code);
+        Assert.Contains("another worker", run.Err);
+    }
+}
