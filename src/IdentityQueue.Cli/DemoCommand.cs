@@ -10,7 +10,7 @@ internal static class DemoCommand
     internal static readonly (string Title, string Sql)[] Examples =
     [
         ("survivors by family (very likely true; evidence, not proof)",
-            "SELECT coalesce(family, label) AS family, count(*) AS survivors, max(error_bound_log2) AS weakest_log2 FROM survivors GROUP BY 1 ORDER BY 1"),
+            "SELECT coalesce(family, label) AS family, count(*) AS survivors, round(max(error_bound_log2), 1) AS weakest_log2 FROM survivors GROUP BY 1 ORDER BY 1"),
         ("refutations with their witnesses",
             "SELECT label, witness_modulus, substr(witness_point, 1, 50) AS witness_point FROM verdicts WHERE state = 'refuted' ORDER BY candidate_id LIMIT 8"),
         ("families that fail only at some n",
