@@ -170,4 +170,39 @@ public sealed class StoreEndToEndTests : IDisposable
         Assert.Equal(2, run.Code);
         Assert.Contains("another worker", run.Err);
     }
+
+    [Fact]
+    public void Enqueue_MarksPendingWorkThatTheNextRunFinishes()
+    {
+        var file = Path.Combine(_dir, "e.idq");
+        File.WriteAllText(file, "e: (x+2)^2 = x^2 + 4*x + 4 for n in 1..5\n");
+        Idq("init", "--db", Db);
+        Idq("import", file, "--db", Db);
+        var enqueue = Idq("enqueue", "--db", Db);
+        Assert.Equal(0, enqueue.Code);
+        Assert.Contains("enqueued 5 candidates", enqueue.Out);
+        Assert.Equal(5L, Query(Db, "SELECT count(*) FROM result WHERE state = 'queued'").Single()[0]);
+        Assert.Equal(0, Idq("run", "--db", Db).Code);
+        Assert.Equal(5L, Query(Db, "SELECT count(*) FROM survivors").Single()[0]);
+    }
+
+    [Fact]
+    public void Demo_BuildsAStoreRunsItAndPrintsTheExampleQueries()
+    {
+        var demo = Idq("demo", "--db", Db);
+        Assert.True(demo.Code == 0, demo.Out + demo.Err);
+        Assert.Contains("families that fail only at some n", demo.Out);
+        Assert.Equal(0L, Query(Db, "SELECT count(*) FROM result WHERE state IN ('pending', 'queued', 'screening')").Single()[0]);
+        Assert.True((long)Query(Db, "SELECT count(*) FROM survivors").Single()[0]! > 100);
+        Assert.True((long)Query(Db, "SELECT count(*) FROM rejection").Single()[0]! >= 3);
+    }
+
+    [Fact]
+    public void CommandsOnAMissingStore_SayToRunInit()
+    {
+        var status = Idq("status", "--db", Db);
+        Assert.Equal(2, status.Code);
+        Assert.Contains("idq init", status.Err);
+        Assert.Equal(2, Idq("run", "--db", Db).Code);
+    }
 }
