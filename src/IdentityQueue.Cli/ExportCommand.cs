@@ -68,12 +68,9 @@ internal static class ExportCommand
                     var name = rows.Columns[i];
                     switch (row[i])
                     {
-                        case null: w.WriteNull(name); break;
                         case string s when JsonColumns.Contains(name): w.WritePropertyName(name); w.WriteRawValue(s); break;
                         case long l when name == "certified": w.WriteBoolean(name, l != 0); break;
-                        case long l: w.WriteNumber(name, l); break;
-                        case double d: w.WriteNumber(name, d); break;
-                        default: w.WriteString(name, QueryCommands.Text(row[i])); break;
+                        default: QueryCommands.WriteValue(w, name, row[i]); break;
                     }
                 }
                 w.WriteEndObject();

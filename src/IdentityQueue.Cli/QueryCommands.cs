@@ -53,6 +53,18 @@ internal static class QueryCommands
         _ => value.ToString() ?? "",
     };
 
+    /// <summary>One column value as a JSON property: null, a number, or text.</summary>
+    internal static void WriteValue(Utf8JsonWriter w, string name, object? value)
+    {
+        switch (value)
+        {
+            case null: w.WriteNull(name); break;
+            case long l: w.WriteNumber(name, l); break;
+            case double d: w.WriteNumber(name, d); break;
+            default: w.WriteString(name, Text(value)); break;
+        }
+    }
+
     internal static void WriteTable(TextWriter output, QueryResult result, int maxWidth = 60)
     {
         var cells = result.Rows.Select(r => r.Select(v => Clip(Text(v), maxWidth)).ToArray()).ToList();
@@ -85,16 +97,7 @@ internal static class QueryCommands
             foreach (var row in result.Rows)
             {
                 w.WriteStartObject();
-                for (var i = 0; i < row.Length; i++)
-                {
-                    switch (row[i])
-                    {
-                        case null: w.WriteNull(result.Columns[i]); break;
-                        case long l: w.WriteNumber(result.Columns[i], l); break;
-                        case double d: w.WriteNumber(result.Columns[i], d); break;
-                        default: w.WriteString(result.Columns[i], Text(row[i])); break;
-                    }
-                }
+                for (var i = 0; i < row.Length; i++) WriteValue(w, result.Columns[i], row[i]);
                 w.WriteEndObject();
             }
             w.WriteEndArray();

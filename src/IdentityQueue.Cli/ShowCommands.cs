@@ -94,14 +94,7 @@ internal static class ShowCommands
             w.WriteString("field", c.Field);
             w.WriteStartObject("result");
             if (row is not null)
-                for (var i = 0; i < columns.Count; i++)
-                    switch (row[i])
-                    {
-                        case null: w.WriteNull(columns[i]); break;
-                        case long l: w.WriteNumber(columns[i], l); break;
-                        case double d: w.WriteNumber(columns[i], d); break;
-                        default: w.WriteString(columns[i], QueryCommands.Text(row[i])); break;
-                    }
+                for (var i = 0; i < columns.Count; i++) QueryCommands.WriteValue(w, columns[i], row[i]);
             w.WriteEndObject();
             w.WriteStartArray("trials");
             foreach (var t in trials)
