@@ -68,7 +68,7 @@ public sealed class StoreConnection : IDisposable
             using var pragma = connection.CreateCommand();
             // WAL lets readers (idq status, idq sql) run beside the writers; busy_timeout makes a writer wait for the
             // lock instead of failing at once (SQLite documentation, "Write-Ahead Logging" and "busy_timeout").
-            pragma.CommandText = $"PRAGMA journal_mode = WAL; PRAGMA busy_timeout = {(int)BusyTimeout.TotalMilliseconds}; PRAGMA foreign_keys = ON;";
+            pragma.CommandText = $"PRAGMA journal_mode = WAL; PRAGMA synchronous = NORMAL; PRAGMA busy_timeout = {(int)BusyTimeout.TotalMilliseconds}; PRAGMA foreign_keys = ON;";
             pragma.ExecuteNonQuery();
         }
         catch (SqliteException e)

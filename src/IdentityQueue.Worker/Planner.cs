@@ -10,7 +10,7 @@ namespace IdentityQueue.Worker;
 public sealed class Planner(IScreeningStore store, IBackgroundJobClient jobs, WorkerSettings settings, ILogger<Planner> log)
 {
     /// <summary>
-    /// Enqueues more work when fewer than two chunks per worker are in flight (or everything pending, with
+    /// Enqueues more work when fewer than three chunks per worker are in flight (or everything pending, with
     /// <paramref name="all"/>); returns the candidates enqueued. When nothing is pending it first looks for candidates
     /// inserted by hand since the last look.
     /// </summary>
@@ -18,7 +18,7 @@ public sealed class Planner(IScreeningStore store, IBackgroundJobClient jobs, Wo
     {
         var counts = store.Counts();
         if (counts.Pending == 0 && counts.InFlight == 0 && store.EnsureResultRows() > 0) counts = store.Counts();
-        var room = all ? long.MaxValue : (long)settings.Workers * 2 * settings.ChunkSize - counts.InFlight;
+        var room = all ? long.MaxValue : (long)settings.Workers * 3 * settings.ChunkSize - counts.InFlight;
         if (room < settings.ChunkSize || counts.Pending == 0) return 0;
         // Checkpoint: TakePending marks the candidates queued before their jobs exist; dying in between leaves them
         // queued with no job, and start-up recovery returns them to pending.

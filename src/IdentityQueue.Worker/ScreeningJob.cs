@@ -14,7 +14,7 @@ namespace IdentityQueue.Worker;
 public sealed class ScreeningJob(IScreeningStore store, WorkerSettings settings, ILogger<ScreeningJob> log)
 {
     /// <summary>Outcomes written per transaction.</summary>
-    public const int SaveBatch = 50;
+    public const int SaveBatch = 250;
 
     [AutomaticRetry(Attempts = 5, DelaysInSeconds = [1, 5, 15, 60, 300])]
     [DisplayName("screen {1} (stage {0})")]

@@ -20,7 +20,7 @@ public sealed record WorkerSettings
     public Limits Limits { get; init; } = Limits.Default;
 
     /// <summary>How often the planner looks for work to enqueue.</summary>
-    public TimeSpan PlanInterval { get; init; } = TimeSpan.FromMilliseconds(500);
+    public TimeSpan PlanInterval { get; init; } = TimeSpan.FromMilliseconds(200);
 
     /// <summary>A message for each invalid setting; empty when all are fine.</summary>
     public IReadOnlyList<string> Validate()

@@ -88,39 +88,48 @@ public sealed class CandidateStore(StoreConnection store)
     /// <summary>One candidate with its catalogue's seed and target, or null when there is no such candidate.</summary>
     public StoredCandidate? LoadCandidate(long candidateId)
     {
-        using var command = _db.Command("""
-            SELECT c.id, c.catalogue_id, k.name, c.label, c.family, c.params, c.lhs, c.rhs, c.field, c.position, k.seed, k.target_bits
-            FROM candidate c JOIN catalogue k ON k.id = c.catalogue_id
-            WHERE c.id = @id
-            """);
+        using var command = _db.Command(CandidateColumns + " WHERE c.id = @id");
         command.Parameter("@id", candidateId);
         using var r = command.ExecuteReader();
-        if (!r.Read()) return null;
-        return new StoredCandidate(r.GetInt64(0), r.GetInt64(1), r.GetString(2), r.GetString(3), r.NullableString(4), r.NullableString(5),
-            r.GetString(6), r.GetString(7), r.GetString(8), r.NullableInt(9), r.GetInt64(10), r.GetInt32(11));
+        return r.Read() ? ReadCandidate(r) : null;
     }
+
+    /// <summary>The select of <see cref="ReadCandidate"/>'s columns; add a WHERE clause.</summary>
+    internal const string CandidateColumns = """
+        SELECT c.id, c.catalogue_id, k.name, c.label, c.family, c.params, c.lhs, c.rhs, c.field, c.position, k.seed, k.target_bits
+        FROM candidate c JOIN catalogue k ON k.id = c.catalogue_id
+        """;
+
+    internal static StoredCandidate ReadCandidate(DbDataReader r) =>
+        new(r.GetInt64(0), r.GetInt64(1), r.GetString(2), r.GetString(3), r.NullableString(4), r.NullableString(5),
+            r.GetString(6), r.GetString(7), r.GetString(8), r.NullableInt(9), r.GetInt64(10), r.GetInt32(11));
 
     /// <summary>The stored trials of a candidate in seq order, as the screener takes them for prior evidence.</summary>
     public IReadOnlyList<TrialRecord> LoadTrials(long candidateId)
     {
-        using var command = _db.Command("""
-            SELECT seq, modulus, extension_degree, defining_polynomial, field_size_log2, point_seed, outcome, point,
-                   difference, entry, bound_log2, elapsed_us
-            FROM trial WHERE candidate_id = @id ORDER BY seq
-            """);
+        using var command = _db.Command(TrialColumns + " WHERE candidate_id = @id ORDER BY seq");
         command.Parameter("@id", candidateId);
         var trials = new List<TrialRecord>();
         using var r = command.ExecuteReader();
-        while (r.Read())
-        {
-            var polynomial = r.NullableString(3);
-            var field = new TrialField(BigInteger.Parse(r.GetString(1)), r.GetInt32(2), polynomial is null ? null : TrialText.Array(polynomial), r.GetDouble(4));
-            var difference = r.NullableString(8);
-            trials.Add(new TrialRecord(r.GetInt32(0), field, ulong.Parse(r.GetString(5)), TrialText.Outcome(r.GetString(6)),
-                TrialText.Point(r.GetString(7)), difference is null ? null : TrialText.Residue(difference), r.NullableString(9),
-                r.NullableDouble(10), r.GetInt64(11)));
-        }
+        while (r.Read()) trials.Add(ReadTrial(r));
         return trials;
+    }
+
+    /// <summary>The select of <see cref="ReadTrial"/>'s columns (candidate_id last); add a WHERE clause.</summary>
+    internal const string TrialColumns = """
+        SELECT seq, modulus, extension_degree, defining_polynomial, field_size_log2, point_seed, outcome, point,
+               difference, entry, bound_log2, elapsed_us, candidate_id
+        FROM trial
+        """;
+
+    internal static TrialRecord ReadTrial(DbDataReader r)
+    {
+        var polynomial = r.NullableString(3);
+        var field = new TrialField(BigInteger.Parse(r.GetString(1)), r.GetInt32(2), polynomial is null ? null : TrialText.Array(polynomial), r.GetDouble(4));
+        var difference = r.NullableString(8);
+        return new TrialRecord(r.GetInt32(0), field, ulong.Parse(r.GetString(5)), TrialText.Outcome(r.GetString(6)),
+            TrialText.Point(r.GetString(7)), difference is null ? null : TrialText.Residue(difference), r.NullableString(9),
+            r.NullableDouble(10), r.GetInt64(11));
     }
 
     /// <summary>Stores a screen result: its new trials and the result row, in one transaction. See <see cref="Save"/>.</summary>

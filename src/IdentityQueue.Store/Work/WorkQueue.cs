@@ -108,10 +108,29 @@ public sealed class WorkQueue(StoreConnection store)
             id.Set(candidate);
             if (command.ExecuteNonQuery() == 1) toLoad.Add(candidate);
         }
+        // Two reads for the whole chunk: the candidates, then their trials in (candidate, seq) order.
+        var idList = "[" + string.Join(',', toLoad) + "]";
+        var stored = new List<StoredCandidate>(toLoad.Count);
+        using (var read = _db.Command(CandidateStore.CandidateColumns + " WHERE c.id IN (SELECT value FROM json_each(@ids)) ORDER BY c.id", transaction))
+        {
+            read.Parameter("@ids", idList);
+            using var r = read.ExecuteReader();
+            while (r.Read()) stored.Add(CandidateStore.ReadCandidate(r));
+        }
+        var trials = new Dictionary<long, List<Screening.TrialRecord>>();
+        using (var read = _db.Command(CandidateStore.TrialColumns + " WHERE candidate_id IN (SELECT value FROM json_each(@ids)) ORDER BY candidate_id, seq", transaction))
+        {
+            read.Parameter("@ids", idList);
+            using var r = read.ExecuteReader();
+            while (r.Read())
+            {
+                var candidate = r.GetInt64(12);
+                if (!trials.TryGetValue(candidate, out var list)) trials[candidate] = list = [];
+                list.Add(CandidateStore.ReadTrial(r));
+            }
+        }
         transaction.Commit();
-        foreach (var candidate in toLoad)
-            if (_candidates.LoadCandidate(candidate) is { } stored)
-                claimed.Add(new ClaimedCandidate(stored, _candidates.LoadTrials(candidate)));
+        foreach (var s in stored) claimed.Add(new ClaimedCandidate(s, trials.TryGetValue(s.Id, out var t) ? t : []));
         return claimed;
     }
 
