@@ -79,10 +79,9 @@ public sealed class WorkQueue(StoreConnection store)
                 while (r.Read()) ids.Add(r.GetInt64(0));
             }
             if (ids.Count == 0) continue;
-            using var update = _db.Command($"UPDATE result SET state = '{ResultStates.Queued}', updated_at = CURRENT_TIMESTAMP WHERE candidate_id = @id", transaction);
-            var id = update.Parameter("@id");
-            update.Prepare();
-            foreach (var candidate in ids) { id.Set(candidate); update.ExecuteNonQuery(); }
+            using var update = _db.Command($"UPDATE result SET state = '{ResultStates.Queued}', updated_at = CURRENT_TIMESTAMP WHERE candidate_id IN (SELECT value FROM json_each(@ids))", transaction);
+            update.Parameter("@ids", "[" + string.Join(',', ids) + "]");
+            update.ExecuteNonQuery();
             transaction.Commit();
             return (stage, ids);
         }
@@ -95,19 +94,18 @@ public sealed class WorkQueue(StoreConnection store)
     {
         var claimed = new List<ClaimedCandidate>(ids.Count);
         using var transaction = _db.BeginTransaction();
+        // One statement claims the chunk and says which candidates were still open.
         using var command = _db.Command($"""
             UPDATE result SET state = '{ResultStates.Screening}', claimed_by = @worker, claimed_at = CURRENT_TIMESTAMP, updated_at = CURRENT_TIMESTAMP
-            WHERE candidate_id = @id AND state IN ('{ResultStates.Pending}', '{ResultStates.Queued}', '{ResultStates.Screening}')
+            WHERE candidate_id IN (SELECT value FROM json_each(@ids))
+              AND state IN ('{ResultStates.Pending}', '{ResultStates.Queued}', '{ResultStates.Screening}')
+            RETURNING candidate_id
             """, transaction);
-        var id = command.Parameter("@id");
+        command.Parameter("@ids", "[" + string.Join(',', ids) + "]");
         command.Parameter("@worker", worker);
-        command.Prepare();
         var toLoad = new List<long>(ids.Count);
-        foreach (var candidate in ids)
-        {
-            id.Set(candidate);
-            if (command.ExecuteNonQuery() == 1) toLoad.Add(candidate);
-        }
+        using (var r = command.ExecuteReader())
+            while (r.Read()) toLoad.Add(r.GetInt64(0));
         // Two reads for the whole chunk: the candidates, then their trials in (candidate, seq) order.
         var idList = "[" + string.Join(',', toLoad) + "]";
         var stored = new List<StoredCandidate>(toLoad.Count);
