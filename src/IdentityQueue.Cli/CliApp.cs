@@ -24,6 +24,7 @@ public static class CliApp
             "A refuted identity comes with a witness anyone can re-check; a survivor is very likely true, with a\n" +
             "quantified error bound that is only as good as the degree bound behind it. Screening is evidence, not proof.");
         root.Subcommands.Add(CheckCommand.Create(output, error));
+        root.Subcommands.Add(BenchCommand.Create(output, error));
 
         var parse = root.Parse(args, new ParserConfiguration { ResponseFileTokenReplacer = null });
         if (parse.Errors.Count > 0 && parse.Action is not System.CommandLine.Help.HelpAction)
