@@ -1,5 +1,6 @@
 using System.Numerics;
 using System.Runtime.InteropServices;
+using System.Runtime.Intrinsics;
 using IdentityQueue.Algebra.Compile;
 using IdentityQueue.Algebra.Fields;
 
@@ -40,6 +41,7 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
     private readonly T[] _matrix;
     private readonly T[] _permanent;
     private readonly bool _constantsDefined;
+    private readonly bool _oddCharacteristic;
     private readonly LaneKernel31 _kernel31;
     private readonly ulong _p62, _q62;
     private readonly uint _p31, _q31;
@@ -65,6 +67,7 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
         _matrix = new T[program.MaxMatrixEntries];
         _permanent = new T[program.MaxPermanentOrder == 0 ? 0 : (program.MaxPermanentOrder + 3) * blockSize];
         _kernel31 = Lanes31.Supported(kernel31);
+        _oddCharacteristic = field.Characteristic != 2;
         if (typeof(TField) == typeof(PrimeField62))
         {
             var f = (PrimeField62)(object)field;
@@ -131,7 +134,12 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
         }
         Array.Clear(_undefined);
         if (typeof(TField) == typeof(PrimeField62) && typeof(T) == typeof(Residue62)) Run62(points);
-        else if (typeof(TField) == typeof(PrimeField31) && typeof(T) == typeof(Residue31)) Run31(points);
+        else if (typeof(TField) == typeof(PrimeField31) && typeof(T) == typeof(Residue31))
+        {
+            if (_kernel31 == LaneKernel31.Avx512 && b % Vector512<uint>.Count == 0) Run31Avx512(points);
+            else if (_kernel31 == LaneKernel31.Avx2 && b % Vector256<uint>.Count == 0) Run31Avx2(points);
+            else Run31(points);
+        }
         else RunGeneric(points);
 
         var registers = _registers.AsSpan();
@@ -262,6 +270,146 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
         }
     }
 
+    /// <summary>The 31-bit rung when the block is a whole number of 512-bit vectors: the lane loops inlined, one vector per step.</summary>
+    private void Run31Avx512(ReadOnlySpan<T> points)
+    {
+        var w = _b / Vector512<uint>.Count;
+        var p = Vector512.Create(_p31);
+        var q = Vector512.Create(_q31);
+        var r = MemoryMarshal.Cast<T, Vector512<uint>>(_registers.AsSpan());
+        var v = MemoryMarshal.Cast<T, Vector512<uint>>(points[..(_program.Program.Variables.Length * _b)]);
+        foreach (var ins in _program.Instructions)
+        {
+            var d = r.Slice(ins.Dest * w, w);
+            switch (ins.Op)
+            {
+                case BlockOpCode.Variable: v.Slice(ins.A * w, w).CopyTo(d); break;
+                case BlockOpCode.Add:
+                {
+                    var x = r.Slice(ins.A * w, d.Length);
+                    var y = r.Slice(ins.B * w, d.Length);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.AddMod(x[j], y[j], p);
+                    break;
+                }
+                case BlockOpCode.Subtract:
+                {
+                    var x = r.Slice(ins.A * w, d.Length);
+                    var y = r.Slice(ins.B * w, d.Length);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.SubMod(x[j], y[j], p);
+                    break;
+                }
+                case BlockOpCode.Multiply:
+                {
+                    var x = r.Slice(ins.A * w, d.Length);
+                    var y = r.Slice(ins.B * w, d.Length);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.Multiply(x[j], y[j], p, q);
+                    break;
+                }
+                case BlockOpCode.Negate:
+                {
+                    var x = r.Slice(ins.A * w, d.Length);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.SubMod(Vector512<uint>.Zero, x[j], p);
+                    break;
+                }
+                case BlockOpCode.MultiplyAdd:
+                {
+                    var x = r.Slice(ins.A * w, d.Length);
+                    var y = r.Slice(ins.B * w, d.Length);
+                    var z = r.Slice(ins.C * w, d.Length);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.AddMod(Lanes31.Multiply(x[j], y[j], p, q), z[j], p);
+                    break;
+                }
+                case BlockOpCode.MultiplySubtract:
+                {
+                    var x = r.Slice(ins.A * w, d.Length);
+                    var y = r.Slice(ins.B * w, d.Length);
+                    var z = r.Slice(ins.C * w, d.Length);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.SubMod(Lanes31.Multiply(x[j], y[j], p, q), z[j], p);
+                    break;
+                }
+                case BlockOpCode.NegativeMultiplyAdd:
+                {
+                    var x = r.Slice(ins.A * w, d.Length);
+                    var y = r.Slice(ins.B * w, d.Length);
+                    var z = r.Slice(ins.C * w, d.Length);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.SubMod(z[j], Lanes31.Multiply(x[j], y[j], p, q), p);
+                    break;
+                }
+                default: RunOther(ins); break;
+            }
+        }
+    }
+
+    /// <summary>The 31-bit rung when the block is a whole number of 256-bit vectors: the lane loops inlined, one vector per step.</summary>
+    private void Run31Avx2(ReadOnlySpan<T> points)
+    {
+        var w = _b / Vector256<uint>.Count;
+        var p = Vector256.Create(_p31);
+        var q = Vector256.Create(_q31);
+        var r = MemoryMarshal.Cast<T, Vector256<uint>>(_registers.AsSpan());
+        var v = MemoryMarshal.Cast<T, Vector256<uint>>(points[..(_program.Program.Variables.Length * _b)]);
+        foreach (var ins in _program.Instructions)
+        {
+            var d = r.Slice(ins.Dest * w, w);
+            switch (ins.Op)
+            {
+                case BlockOpCode.Variable: v.Slice(ins.A * w, w).CopyTo(d); break;
+                case BlockOpCode.Add:
+                {
+                    var x = r.Slice(ins.A * w, d.Length);
+                    var y = r.Slice(ins.B * w, d.Length);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.AddMod(x[j], y[j], p);
+                    break;
+                }
+                case BlockOpCode.Subtract:
+                {
+                    var x = r.Slice(ins.A * w, d.Length);
+                    var y = r.Slice(ins.B * w, d.Length);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.SubMod(x[j], y[j], p);
+                    break;
+                }
+                case BlockOpCode.Multiply:
+                {
+                    var x = r.Slice(ins.A * w, d.Length);
+                    var y = r.Slice(ins.B * w, d.Length);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.Multiply(x[j], y[j], p, q);
+                    break;
+                }
+                case BlockOpCode.Negate:
+                {
+                    var x = r.Slice(ins.A * w, d.Length);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.SubMod(Vector256<uint>.Zero, x[j], p);
+                    break;
+                }
+                case BlockOpCode.MultiplyAdd:
+                {
+                    var x = r.Slice(ins.A * w, d.Length);
+                    var y = r.Slice(ins.B * w, d.Length);
+                    var z = r.Slice(ins.C * w, d.Length);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.AddMod(Lanes31.Multiply(x[j], y[j], p, q), z[j], p);
+                    break;
+                }
+                case BlockOpCode.MultiplySubtract:
+                {
+                    var x = r.Slice(ins.A * w, d.Length);
+                    var y = r.Slice(ins.B * w, d.Length);
+                    var z = r.Slice(ins.C * w, d.Length);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.SubMod(Lanes31.Multiply(x[j], y[j], p, q), z[j], p);
+                    break;
+                }
+                case BlockOpCode.NegativeMultiplyAdd:
+                {
+                    var x = r.Slice(ins.A * w, d.Length);
+                    var y = r.Slice(ins.B * w, d.Length);
+                    var z = r.Slice(ins.C * w, d.Length);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.SubMod(z[j], Lanes31.Multiply(x[j], y[j], p, q), p);
+                    break;
+                }
+                default: RunOther(ins); break;
+            }
+        }
+    }
+
     /// <summary>Inversion, powers and the matrix functions (the same code on every rung).</summary>
     private void RunOther(BlockInstruction ins)
     {
@@ -347,9 +495,10 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
     }
 
     /// <summary>
-    /// Ryser's formula on all lanes together: the subsets in Gray-code order are the same for every lane, so each step
-    /// updates the row sums of every lane by one column and multiplies them lane by lane. The parity of the subset size
-    /// alternates along the Gray code, so the terms go to two accumulators: perm = (−1)^n (even − odd).
+    /// Permanents on all lanes together: the sign patterns of Glynn's formula (odd characteristic) or the subsets of Ryser's
+    /// formula, in Gray-code order, are the same for every lane, so each step updates the sums of every lane by one row or
+    /// column and multiplies them lane by lane (see <see cref="MatrixKernels.Permanent{TField, T}(TField, ReadOnlySpan{T}, int)"/>).
+    /// The sign alternates along the Gray code, so the terms go to two accumulators.
     /// </summary>
     private void Permanent(BlockInstruction ins)
     {
@@ -365,33 +514,72 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
         var product = scratch.Slice(n * b, b);
         var even = scratch.Slice((n + 1) * b, b);
         var odd = scratch.Slice((n + 2) * b, b);
-        sums.Fill(f.Zero);
         even.Fill(f.Zero);
         odd.Fill(f.Zero);
-        var inSet = 0UL;
-        var count = 1UL << n;
-        for (var g = 1UL; g < count; g++)
+        var glynn = n >= MatrixKernels.GlynnMinOrder && _oddCharacteristic;
+        ulong steps;
+        if (glynn)
         {
-            var j = BitOperations.TrailingZeroCount(g);
-            var leaving = (inSet >> j & 1) != 0;
-            inSet ^= 1UL << j;
-            for (var i = 0; i < n; i++)
+            // column sums with every δ_i = +1; the first term
+            for (var j = 0; j < n; j++)
             {
-                var s = sums.Slice(i * b, b);
-                var column = r.Slice(slots[i * n + j] * b, b);
-                if (leaving) for (var l = 0; l < b; l++) s[l] = f.Subtract(s[l], column[l]);
-                else for (var l = 0; l < b; l++) s[l] = f.Add(s[l], column[l]);
+                var s = sums.Slice(j * b, b);
+                r.Slice(slots[j] * b, b).CopyTo(s);
+                for (var i = 1; i < n; i++)
+                {
+                    var entry = r.Slice(slots[i * n + j] * b, b);
+                    for (var l = 0; l < b; l++) s[l] = f.Add(s[l], entry[l]);
+                }
             }
-            sums[..b].CopyTo(product);
-            for (var i = 1; i < n; i++)
+            LaneProduct(sums, product, n);
+            product.CopyTo(even);
+            steps = 1UL << (n - 1);
+        }
+        else
+        {
+            sums.Fill(f.Zero);
+            steps = 1UL << n;
+        }
+        var flipped = 0UL;
+        for (var g = 1UL; g < steps; g++)
+        {
+            var k = BitOperations.TrailingZeroCount(g);
+            var back = (flipped >> k & 1) != 0;
+            flipped ^= 1UL << k;
+            for (var j = 0; j < n; j++)
             {
-                var s = sums.Slice(i * b, b);
-                for (var l = 0; l < b; l++) product[l] = f.Multiply(product[l], s[l]);
+                // Glynn: row k+1 moves every column sum by ∓2·a; Ryser: column k enters or leaves every row sum.
+                var s = sums.Slice(j * b, b);
+                var entry = r.Slice((glynn ? slots[(k + 1) * n + j] : slots[j * n + k]) * b, b);
+                if (glynn && back) for (var l = 0; l < b; l++) s[l] = f.Add(f.Add(s[l], entry[l]), entry[l]);
+                else if (glynn) for (var l = 0; l < b; l++) s[l] = f.Subtract(f.Subtract(s[l], entry[l]), entry[l]);
+                else if (back) for (var l = 0; l < b; l++) s[l] = f.Subtract(s[l], entry[l]);
+                else for (var l = 0; l < b; l++) s[l] = f.Add(s[l], entry[l]);
             }
+            LaneProduct(sums, product, n);
             var total = (g & 1) == 0 ? even : odd;
             for (var l = 0; l < b; l++) total[l] = f.Add(total[l], product[l]);
         }
-        if ((n & 1) == 0) for (var l = 0; l < b; l++) d[l] = f.Subtract(even[l], odd[l]);
+        if (glynn)
+        {
+            // perm = 2^−(n−1) (even − odd)
+            f.TryInvert(f.FromInteger(BigInteger.One << (n - 1)), out var scale);
+            for (var l = 0; l < b; l++) d[l] = f.Multiply(f.Subtract(even[l], odd[l]), scale);
+        }
+        else if ((n & 1) == 0) for (var l = 0; l < b; l++) d[l] = f.Subtract(even[l], odd[l]);
         else for (var l = 0; l < b; l++) d[l] = f.Subtract(odd[l], even[l]);
+    }
+
+    /// <summary>product[l] ← Π_j sums[j][l], lane by lane (the lanes are the independent chains).</summary>
+    private void LaneProduct(Span<T> sums, Span<T> product, int n)
+    {
+        var f = _field;
+        var b = _b;
+        sums[..b].CopyTo(product);
+        for (var j = 1; j < n; j++)
+        {
+            var s = sums.Slice(j * b, b);
+            for (var l = 0; l < b; l++) product[l] = f.Multiply(product[l], s[l]);
+        }
     }
 }

@@ -72,7 +72,7 @@ internal static class Lanes31
     // ---- AVX-512 ----
 
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
-    private static Vector512<uint> Multiply(Vector512<uint> a, Vector512<uint> b, Vector512<uint> p, Vector512<uint> pInverse)
+    internal static Vector512<uint> Multiply(Vector512<uint> a, Vector512<uint> b, Vector512<uint> p, Vector512<uint> pInverse)
     {
         var tEven = Avx512F.Multiply(a, b);
         var tOdd = Avx512F.Multiply(Avx512F.ShiftRightLogical(a.AsUInt64(), 32).AsUInt32(), Avx512F.ShiftRightLogical(b.AsUInt64(), 32).AsUInt32());
@@ -83,14 +83,14 @@ internal static class Lanes31
     }
 
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
-    private static Vector512<uint> AddMod(Vector512<uint> a, Vector512<uint> b, Vector512<uint> p)
+    internal static Vector512<uint> AddMod(Vector512<uint> a, Vector512<uint> b, Vector512<uint> p)
     {
         var s = Avx512F.Add(a, b);
         return Avx512F.Min(s, Avx512F.Subtract(s, p));
     }
 
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
-    private static Vector512<uint> SubMod(Vector512<uint> a, Vector512<uint> b, Vector512<uint> p)
+    internal static Vector512<uint> SubMod(Vector512<uint> a, Vector512<uint> b, Vector512<uint> p)
     {
         var d = Avx512F.Subtract(a, b);
         return Avx512F.Min(d, Avx512F.Add(d, p));
@@ -99,7 +99,7 @@ internal static class Lanes31
     // ---- AVX2 ----
 
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
-    private static Vector256<uint> Multiply(Vector256<uint> a, Vector256<uint> b, Vector256<uint> p, Vector256<uint> pInverse)
+    internal static Vector256<uint> Multiply(Vector256<uint> a, Vector256<uint> b, Vector256<uint> p, Vector256<uint> pInverse)
     {
         var tEven = Avx2.Multiply(a, b);
         var tOdd = Avx2.Multiply(Avx2.ShiftRightLogical(a.AsUInt64(), 32).AsUInt32(), Avx2.ShiftRightLogical(b.AsUInt64(), 32).AsUInt32());
@@ -110,14 +110,14 @@ internal static class Lanes31
     }
 
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
-    private static Vector256<uint> AddMod(Vector256<uint> a, Vector256<uint> b, Vector256<uint> p)
+    internal static Vector256<uint> AddMod(Vector256<uint> a, Vector256<uint> b, Vector256<uint> p)
     {
         var s = Avx2.Add(a, b);
         return Avx2.Min(s, Avx2.Subtract(s, p));
     }
 
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
-    private static Vector256<uint> SubMod(Vector256<uint> a, Vector256<uint> b, Vector256<uint> p)
+    internal static Vector256<uint> SubMod(Vector256<uint> a, Vector256<uint> b, Vector256<uint> p)
     {
         var d = Avx2.Subtract(a, b);
         return Avx2.Min(d, Avx2.Add(d, p));

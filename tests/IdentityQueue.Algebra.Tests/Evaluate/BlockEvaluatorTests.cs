@@ -267,6 +267,16 @@ public class BlockEvaluatorTests
     }
 
     [Fact]
+    public void MatrixFunctions_CharacteristicTwo()
+    {
+        // Glynn's permanent divides by 2^(n−1): in characteristic 2 the lanes run Ryser's formula instead.
+        var r = new Xoshiro256(37);
+        var field = ExtensionField<SmallPrimeField, SmallResidue>.Create(SmallPrimeField.Create(2), 5, ref r);
+        AgreeOnMatrices<ExtensionField<SmallPrimeField, SmallResidue>, ExtElement<SmallResidue>>(field, 37, 6);
+        AgreeOnMatrices<SmallPrimeField, SmallResidue>(SmallPrimeField.Create(2), 38, 16);
+    }
+
+    [Fact]
     public void MatrixFunctions_SmallPrimeWithManySingularLanes() => AgreeOnMatrices<SmallPrimeField, SmallResidue>(SmallPrimeField.Create(3), 36, 24);
 
     // ---- the block program ----

@@ -1,0 +1,189 @@
+using System.Buffers;
+using System.Runtime.CompilerServices;
+using System.Runtime.InteropServices;
+using IdentityQueue.Algebra.Fields;
+
+namespace IdentityQueue.Algebra.Evaluate;
+
+public static partial class MatrixKernels
+{
+    /// <summary>Columns per panel of the blocked 62-bit elimination: 8 products of residues sum to less than 2p·2^64.</summary>
+    internal const int Panel62 = 8;
+
+    /// <summary>From this order on the 62-bit determinant is eliminated by panels; below it the generic elimination is faster.</summary>
+    internal const int PanelMinOrder62 = 24;
+
+    /// <summary>
+    /// Determinant of a matrix of raw Montgomery representatives mod a 62-bit prime, overwriting <paramref name="a"/>; the
+    /// result is a Montgomery representative. Right-looking blocked LU elimination (any nonzero pivot): each panel of
+    /// <see cref="Panel62"/> columns is factorised on its own (multipliers stored in place), its pivot rows are updated by
+    /// forward substitution, and the trailing matrix gets the rank-8 update A ← A − L·U with delayed reduction: the eight
+    /// 124-bit products of an entry are summed in 128 bits and reduced once (Montgomery, after one conditional subtraction of
+    /// p from the high word, since the sum is below 2p·2^64), instead of once per product. The last
+    /// <see cref="DivisionFreeOrder"/> columns go division-free as in the generic code.
+    /// </summary>
+    internal static ulong Determinant62(PrimeField62 f, Span<ulong> a, int n)
+    {
+        var residues = MemoryMarshal.Cast<ulong, Residue62>(a);
+        if (n < PanelMinOrder62) return PrimeField62.ToMontgomery(DeterminantByElimination(f, residues, n, DivisionFreeOrder));
+
+        unchecked
+        {
+            var (p, q) = (f.Modulus, f.ModulusInverse);
+            var det = PrimeField62.ToMontgomery(f.One);
+            var negative = false;
+            var head = n - DivisionFreeOrder;
+            ulong[]? rented = null;
+            var transposed = n <= 256 ? stackalloc ulong[Panel62 * 256] : (rented = ArrayPool<ulong>.Shared.Rent(Panel62 * n));
+            Span<ulong> triangle = stackalloc ulong[Panel62 * Panel62];
+            try
+            {
+                for (var k0 = 0; k0 < head; k0 += Panel62)
+                {
+                    var kb = Math.Min(Panel62, head - k0);
+                    var c1 = k0 + kb;
+
+                    // 1. The panel: columns k0 .. c1−1, every row from k0 down; multipliers stay in place.
+                    for (var k = k0; k < c1; k++)
+                    {
+                        var pivot = k;
+                        while (pivot < n && a[pivot * n + k] == 0) pivot++;
+                        if (pivot == n) return 0;
+                        if (pivot != k)
+                        {
+                            Swap(a.Slice(k * n + k0, n - k0), a.Slice(pivot * n + k0, n - k0));
+                            negative = !negative;
+                        }
+                        var pk = a[k * n + k];
+                        det = Lanes62.Multiply(det, pk, p, q);
+                        f.TryInvert(PrimeField62.FromMontgomery(pk), out var inverseResidue);
+                        var inverse = PrimeField62.ToMontgomery(inverseResidue);
+                        var pivotRow = a.Slice(k * n + k + 1, c1 - k - 1);
+                        for (var i = k + 1; i < n; i++)
+                        {
+                            var l = Lanes62.Multiply(a[i * n + k], inverse, p, q);
+                            a[i * n + k] = l;
+                            if (l == 0) continue;
+                            var row = a.Slice(i * n + k + 1, pivotRow.Length);
+                            for (var j = 0; j < row.Length; j++) row[j] = SubMod62(row[j], Lanes62.Multiply(l, pivotRow[j], p, q), p);
+                        }
+                    }
+
+                    var w = n - c1;
+                    // 2. U, transposed: for each column j right of the panel, its kb pivot-row entries side by side.
+                    var u = transposed[..(w * kb)];
+                    for (var s = 0; s < kb; s++)
+                    {
+                        var source = a.Slice((k0 + s) * n + c1, w);
+                        for (var j = 0; j < w; j++) u[j * kb + s] = source[j];
+                    }
+
+                    // 3. The pivot rows right of the panel need the panel's own multipliers (unit lower triangular): forward
+                    //    substitution on each column of U, u[t] −= Σ_{s<t} L[k0+t][k0+s]·u[s]. The pivot rows themselves are
+                    //    not needed again, so U stays in the scratch only.
+                    for (var t = 1; t < kb; t++)
+                        for (var s = 0; s < t; s++) triangle[t * Panel62 + s] = a[(k0 + t) * n + k0 + s];
+                    for (var j = 0; j < w; j++)
+                    {
+                        var uj = u.Slice(j * kb, kb);
+                        for (var t = 1; t < uj.Length; t++)
+                        {
+                            var lt = triangle.Slice(t * Panel62, t);
+                            ulong x0 = 0, x1 = 0, hi = 0;
+                            for (var s = 0; s < lt.Length; s++) Accumulate(lt[s], uj[s], ref x0, ref x1, ref hi);
+                            uj[t] = SubMod62(uj[t], Reduce(x0, x1, hi, p, q), p);
+                        }
+                    }
+
+                    // 4. The trailing matrix: A[i][j] −= Σ_s L[i][k0+s]·U[s][j], one reduction per entry.
+                    for (var i = c1; i < n; i++)
+                    {
+                        var row = a.Slice(i * n, n);
+                        var dst = row.Slice(c1, w);
+                        if (kb == Panel62)
+                        {
+                            var l = row.Slice(k0, Panel62);
+                            ulong l0 = l[0], l1 = l[1], l2 = l[2], l3 = l[3], l4 = l[4], l5 = l[5], l6 = l[6], l7 = l[7];
+                            for (var j = 0; j < dst.Length; j++)
+                            {
+                                var uj = u.Slice(j * Panel62, Panel62);
+                                ulong x0 = 0, x1 = 0, hi = 0;
+                                Accumulate(l0, uj[0], ref x0, ref x1, ref hi);
+                                Accumulate(l1, uj[1], ref x0, ref x1, ref hi);
+                                Accumulate(l2, uj[2], ref x0, ref x1, ref hi);
+                                Accumulate(l3, uj[3], ref x0, ref x1, ref hi);
+                                Accumulate(l4, uj[4], ref x0, ref x1, ref hi);
+                                Accumulate(l5, uj[5], ref x0, ref x1, ref hi);
+                                Accumulate(l6, uj[6], ref x0, ref x1, ref hi);
+                                Accumulate(l7, uj[7], ref x0, ref x1, ref hi);
+                                dst[j] = SubMod62(dst[j], Reduce(x0, x1, hi, p, q), p);
+                            }
+                        }
+                        else
+                        {
+                            var l = row.Slice(k0, kb);
+                            for (var j = 0; j < dst.Length; j++)
+                            {
+                                var uj = u.Slice(j * kb, kb);
+                                ulong x0 = 0, x1 = 0, hi = 0;
+                                for (var s = 0; s < kb; s++) Accumulate(l[s], uj[s], ref x0, ref x1, ref hi);
+                                dst[j] = SubMod62(dst[j], Reduce(x0, x1, hi, p, q), p);
+                            }
+                        }
+                    }
+                }
+                var tail = DivisionFreeTail(f, residues, n, Math.Max(head, 0), ref negative);
+                det = Lanes62.Multiply(det, PrimeField62.ToMontgomery(tail), p, q);
+                return negative && det != 0 ? p - det : det;
+            }
+            finally
+            {
+                if (rented is not null) ArrayPool<ulong>.Shared.Return(rented);
+            }
+        }
+    }
+
+    /// <summary>
+    /// Adds x·y to a 128-bit sum kept carry-free as hi·2^64 + x1·2^32 + x0: the low word of each product goes in two 32-bit
+    /// halves, so that up to 2^32 products sum without a carry test (cheaper than compare-and-add on every product).
+    /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    private static void Accumulate(ulong x, ulong y, ref ulong x0, ref ulong x1, ref ulong hi)
+    {
+        unchecked
+        {
+            var l = x * y;
+            hi += Lanes62.High(x, y);
+            x0 += (uint)l;
+            x1 += l >> 32;
+        }
+    }
+
+    /// <summary>
+    /// The sum of <see cref="Accumulate"/> times 2^-64 mod p, for a sum below 2p·2^64: carry the halves into (hi, lo), one
+    /// conditional subtraction brings hi below p, then Montgomery reduction.
+    /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    private static ulong Reduce(ulong x0, ulong x1, ulong hi, ulong p, ulong q)
+    {
+        unchecked
+        {
+            var mid = (x0 >> 32) + x1;
+            var lo = (x0 & 0xFFFF_FFFFUL) | (mid << 32);
+            hi += (mid >> 32) - p;
+            hi += p & (ulong)((long)hi >> 63);
+            var d = hi - Lanes62.High(lo * q, p);
+            return d + (p & (ulong)((long)d >> 63));
+        }
+    }
+
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    private static ulong SubMod62(ulong a, ulong b, ulong p)
+    {
+        unchecked
+        {
+            var d = a - b;
+            return d + (p & (ulong)((long)d >> 63));
+        }
+    }
+}
