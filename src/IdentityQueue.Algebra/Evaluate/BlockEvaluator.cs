@@ -42,18 +42,19 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
     private readonly T[] _permanent;
     private readonly bool _constantsDefined;
     private readonly bool _oddCharacteristic;
-    private readonly LaneKernel31 _kernel31;
+    private readonly LaneKernel _kernel31;
+    private readonly LaneKernel _kernel62;
     private readonly ulong _p62, _q62;
     private readonly uint _p31, _q31;
 
     /// <summary>An evaluator of <paramref name="program"/> over blocks of <paramref name="blockSize"/> points (1 to <see cref="BlockEvaluator.MaxBlockSize"/>).</summary>
     public BlockEvaluator(TField field, BlockProgram program, int blockSize = BlockEvaluator.DefaultBlockSize)
-        : this(field, program, blockSize, Lanes31.Best)
+        : this(field, program, blockSize, LaneKernel.Avx512)
     {
     }
 
-    /// <summary>As the public constructor, with the 31-bit kernel forced (falls back to what the CPU supports).</summary>
-    internal BlockEvaluator(TField field, BlockProgram program, int blockSize, LaneKernel31 kernel31)
+    /// <summary>As the public constructor, with the widest lane kernel allowed (each rung falls back to what the CPU supports).</summary>
+    internal BlockEvaluator(TField field, BlockProgram program, int blockSize, LaneKernel kernel)
     {
         ArgumentNullException.ThrowIfNull(program);
         ArgumentOutOfRangeException.ThrowIfLessThan(blockSize, 1);
@@ -66,7 +67,8 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
         _laneScratch = new T[blockSize];
         _matrix = new T[program.MaxMatrixEntries];
         _permanent = new T[program.MaxPermanentOrder == 0 ? 0 : (program.MaxPermanentOrder + 3) * blockSize];
-        _kernel31 = Lanes31.Supported(kernel31);
+        _kernel31 = Lanes31.Supported(kernel);
+        _kernel62 = Lanes62.Supported(kernel);
         _oddCharacteristic = field.Characteristic != 2;
         if (typeof(TField) == typeof(PrimeField62))
         {
@@ -100,11 +102,13 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
 
     /// <summary>Which kernels run: the rung and, for the 31-bit rung, the vector instructions.</summary>
     public string Kernel =>
-        typeof(TField) == typeof(PrimeField62) ? "62-bit Montgomery, scalar lanes"
+        typeof(TField) == typeof(PrimeField62) ? _kernel62 == LaneKernel.Avx512
+            ? "62-bit Montgomery, AVX-512F/DQ (8 lanes per instruction)"
+            : "62-bit Montgomery, scalar lanes"
         : typeof(TField) == typeof(PrimeField31) ? _kernel31 switch
         {
-            LaneKernel31.Avx512 => "31-bit Montgomery, AVX-512F (16 lanes per instruction)",
-            LaneKernel31.Avx2 => "31-bit Montgomery, AVX2 (8 lanes per instruction)",
+            LaneKernel.Avx512 => "31-bit Montgomery, AVX-512F (16 lanes per instruction)",
+            LaneKernel.Avx2 => "31-bit Montgomery, AVX2 (8 lanes per instruction)",
             _ => "31-bit Montgomery, scalar lanes",
         }
         : $"generic ({typeof(TField).Name})";
@@ -133,11 +137,15 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
             return 0;
         }
         Array.Clear(_undefined);
-        if (typeof(TField) == typeof(PrimeField62) && typeof(T) == typeof(Residue62)) Run62(points);
+        if (typeof(TField) == typeof(PrimeField62) && typeof(T) == typeof(Residue62))
+        {
+            if (_kernel62 == LaneKernel.Avx512 && b % Vector512<ulong>.Count == 0) Run62Avx512(points);
+            else Run62(points);
+        }
         else if (typeof(TField) == typeof(PrimeField31) && typeof(T) == typeof(Residue31))
         {
-            if (_kernel31 == LaneKernel31.Avx512 && b % Vector512<uint>.Count == 0) Run31Avx512(points);
-            else if (_kernel31 == LaneKernel31.Avx2 && b % Vector256<uint>.Count == 0) Run31Avx2(points);
+            if (_kernel31 == LaneKernel.Avx512 && b % Vector512<uint>.Count == 0) Run31Avx512(points);
+            else if (_kernel31 == LaneKernel.Avx2 && b % Vector256<uint>.Count == 0) Run31Avx2(points);
             else Run31(points);
         }
         else RunGeneric(points);
@@ -265,6 +273,77 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
                 case BlockOpCode.MultiplyAdd: Lanes31.MultiplyAdd(k, r.Slice(ins.A * b, b), r.Slice(ins.B * b, b), r.Slice(ins.C * b, b), d, p, q); break;
                 case BlockOpCode.MultiplySubtract: Lanes31.MultiplySubtract(k, r.Slice(ins.A * b, b), r.Slice(ins.B * b, b), r.Slice(ins.C * b, b), d, p, q); break;
                 case BlockOpCode.NegativeMultiplyAdd: Lanes31.NegativeMultiplyAdd(k, r.Slice(ins.A * b, b), r.Slice(ins.B * b, b), r.Slice(ins.C * b, b), d, p, q); break;
+                default: RunOther(ins); break;
+            }
+        }
+    }
+
+    /// <summary>The 62-bit rung when the block is a whole number of 512-bit vectors: the lane loops inlined, one vector per step.</summary>
+    private void Run62Avx512(ReadOnlySpan<T> points)
+    {
+        var w = _b / Vector512<ulong>.Count;
+        var p = Vector512.Create(_p62);
+        var pHigh = Vector512.Create(_p62 >> 32);
+        var q = Vector512.Create(_q62);
+        var r = MemoryMarshal.Cast<T, Vector512<ulong>>(_registers.AsSpan());
+        var v = MemoryMarshal.Cast<T, Vector512<ulong>>(points[..(_program.Program.Variables.Length * _b)]);
+        foreach (var ins in _program.Instructions)
+        {
+            var d = r.Slice(ins.Dest * w, w);
+            switch (ins.Op)
+            {
+                case BlockOpCode.Variable: v.Slice(ins.A * w, w).CopyTo(d); break;
+                case BlockOpCode.Add:
+                {
+                    var x = r.Slice(ins.A * w, d.Length);
+                    var y = r.Slice(ins.B * w, d.Length);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes62.AddMod(x[j], y[j], p);
+                    break;
+                }
+                case BlockOpCode.Subtract:
+                {
+                    var x = r.Slice(ins.A * w, d.Length);
+                    var y = r.Slice(ins.B * w, d.Length);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes62.SubMod(x[j], y[j], p);
+                    break;
+                }
+                case BlockOpCode.Multiply:
+                {
+                    var x = r.Slice(ins.A * w, d.Length);
+                    var y = r.Slice(ins.B * w, d.Length);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes62.Multiply(x[j], y[j], p, pHigh, q);
+                    break;
+                }
+                case BlockOpCode.Negate:
+                {
+                    var x = r.Slice(ins.A * w, d.Length);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes62.SubMod(Vector512<ulong>.Zero, x[j], p);
+                    break;
+                }
+                case BlockOpCode.MultiplyAdd:
+                {
+                    var x = r.Slice(ins.A * w, d.Length);
+                    var y = r.Slice(ins.B * w, d.Length);
+                    var z = r.Slice(ins.C * w, d.Length);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes62.AddMod(Lanes62.Multiply(x[j], y[j], p, pHigh, q), z[j], p);
+                    break;
+                }
+                case BlockOpCode.MultiplySubtract:
+                {
+                    var x = r.Slice(ins.A * w, d.Length);
+                    var y = r.Slice(ins.B * w, d.Length);
+                    var z = r.Slice(ins.C * w, d.Length);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes62.SubMod(Lanes62.Multiply(x[j], y[j], p, pHigh, q), z[j], p);
+                    break;
+                }
+                case BlockOpCode.NegativeMultiplyAdd:
+                {
+                    var x = r.Slice(ins.A * w, d.Length);
+                    var y = r.Slice(ins.B * w, d.Length);
+                    var z = r.Slice(ins.C * w, d.Length);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes62.SubMod(z[j], Lanes62.Multiply(x[j], y[j], p, pHigh, q), p);
+                    break;
+                }
                 default: RunOther(ins); break;
             }
         }

@@ -5,17 +5,6 @@ using System.Runtime.Intrinsics.X86;
 
 namespace IdentityQueue.Algebra.Evaluate;
 
-/// <summary>Which instructions the 31-bit lane kernels use.</summary>
-internal enum LaneKernel31
-{
-    /// <summary>One lane at a time (any CPU); gives the same results as the vector kernels.</summary>
-    Scalar,
-    /// <summary>8 lanes per instruction with <see cref="Avx2"/>.</summary>
-    Avx2,
-    /// <summary>16 lanes per instruction with <see cref="Avx512F"/>.</summary>
-    Avx512,
-}
-
 /// <summary>
 /// Element-wise kernels on the raw Montgomery representatives of <see cref="Fields.PrimeField31"/> (R = 2^32, values in
 /// [0, p), p &lt; 2^31). The vector kernels multiply the even and the odd 32-bit lanes separately with the unsigned
@@ -27,12 +16,12 @@ internal enum LaneKernel31
 internal static class Lanes31
 {
     /// <summary>The widest kernel this CPU runs.</summary>
-    public static LaneKernel31 Best => Avx512F.IsSupported ? LaneKernel31.Avx512 : Avx2.IsSupported ? LaneKernel31.Avx2 : LaneKernel31.Scalar;
+    public static LaneKernel Best => Avx512F.IsSupported ? LaneKernel.Avx512 : Avx2.IsSupported ? LaneKernel.Avx2 : LaneKernel.Scalar;
 
     /// <summary><paramref name="requested"/> if this CPU supports it, else the best supported kernel below it.</summary>
-    public static LaneKernel31 Supported(LaneKernel31 requested) =>
-        requested == LaneKernel31.Avx512 && !Avx512F.IsSupported ? Supported(LaneKernel31.Avx2)
-        : requested == LaneKernel31.Avx2 && !Avx2.IsSupported ? LaneKernel31.Scalar
+    public static LaneKernel Supported(LaneKernel requested) =>
+        requested == LaneKernel.Avx512 && !Avx512F.IsSupported ? Supported(LaneKernel.Avx2)
+        : requested == LaneKernel.Avx2 && !Avx2.IsSupported ? LaneKernel.Scalar
         : requested;
 
     // ---- scalar ----
@@ -125,10 +114,10 @@ internal static class Lanes31
 
     // ---- kernels: the vector part, then a scalar tail ----
 
-    public static void Add(LaneKernel31 kernel, ReadOnlySpan<uint> a, ReadOnlySpan<uint> b, Span<uint> d, uint p)
+    public static void Add(LaneKernel kernel, ReadOnlySpan<uint> a, ReadOnlySpan<uint> b, Span<uint> d, uint p)
     {
         var done = 0;
-        if (kernel == LaneKernel31.Avx512 && Avx512F.IsSupported)
+        if (kernel == LaneKernel.Avx512 && Avx512F.IsSupported)
         {
             var vp = Vector512.Create(p);
             var va = V512(a, d.Length);
@@ -137,7 +126,7 @@ internal static class Lanes31
             for (var i = 0; i < vd.Length; i++) vd[i] = AddMod(va[i], vb[i], vp);
             done = vd.Length * Vector512<uint>.Count;
         }
-        else if (kernel == LaneKernel31.Avx2 && Avx2.IsSupported)
+        else if (kernel == LaneKernel.Avx2 && Avx2.IsSupported)
         {
             var vp = Vector256.Create(p);
             var va = V256(a, d.Length);
@@ -149,10 +138,10 @@ internal static class Lanes31
         for (var i = done; i < d.Length; i++) d[i] = AddMod(a[i], b[i], p);
     }
 
-    public static void Subtract(LaneKernel31 kernel, ReadOnlySpan<uint> a, ReadOnlySpan<uint> b, Span<uint> d, uint p)
+    public static void Subtract(LaneKernel kernel, ReadOnlySpan<uint> a, ReadOnlySpan<uint> b, Span<uint> d, uint p)
     {
         var done = 0;
-        if (kernel == LaneKernel31.Avx512 && Avx512F.IsSupported)
+        if (kernel == LaneKernel.Avx512 && Avx512F.IsSupported)
         {
             var vp = Vector512.Create(p);
             var va = V512(a, d.Length);
@@ -161,7 +150,7 @@ internal static class Lanes31
             for (var i = 0; i < vd.Length; i++) vd[i] = SubMod(va[i], vb[i], vp);
             done = vd.Length * Vector512<uint>.Count;
         }
-        else if (kernel == LaneKernel31.Avx2 && Avx2.IsSupported)
+        else if (kernel == LaneKernel.Avx2 && Avx2.IsSupported)
         {
             var vp = Vector256.Create(p);
             var va = V256(a, d.Length);
@@ -173,10 +162,10 @@ internal static class Lanes31
         for (var i = done; i < d.Length; i++) d[i] = SubMod(a[i], b[i], p);
     }
 
-    public static void Negate(LaneKernel31 kernel, ReadOnlySpan<uint> a, Span<uint> d, uint p)
+    public static void Negate(LaneKernel kernel, ReadOnlySpan<uint> a, Span<uint> d, uint p)
     {
         var done = 0;
-        if (kernel == LaneKernel31.Avx512 && Avx512F.IsSupported)
+        if (kernel == LaneKernel.Avx512 && Avx512F.IsSupported)
         {
             var vp = Vector512.Create(p);
             var va = V512(a, d.Length);
@@ -184,7 +173,7 @@ internal static class Lanes31
             for (var i = 0; i < vd.Length; i++) vd[i] = SubMod(Vector512<uint>.Zero, va[i], vp);
             done = vd.Length * Vector512<uint>.Count;
         }
-        else if (kernel == LaneKernel31.Avx2 && Avx2.IsSupported)
+        else if (kernel == LaneKernel.Avx2 && Avx2.IsSupported)
         {
             var vp = Vector256.Create(p);
             var va = V256(a, d.Length);
@@ -195,10 +184,10 @@ internal static class Lanes31
         for (var i = done; i < d.Length; i++) d[i] = SubMod(0, a[i], p);
     }
 
-    public static void Multiply(LaneKernel31 kernel, ReadOnlySpan<uint> a, ReadOnlySpan<uint> b, Span<uint> d, uint p, uint pInverse)
+    public static void Multiply(LaneKernel kernel, ReadOnlySpan<uint> a, ReadOnlySpan<uint> b, Span<uint> d, uint p, uint pInverse)
     {
         var done = 0;
-        if (kernel == LaneKernel31.Avx512 && Avx512F.IsSupported)
+        if (kernel == LaneKernel.Avx512 && Avx512F.IsSupported)
         {
             var vp = Vector512.Create(p);
             var vq = Vector512.Create(pInverse);
@@ -208,7 +197,7 @@ internal static class Lanes31
             for (var i = 0; i < vd.Length; i++) vd[i] = Multiply(va[i], vb[i], vp, vq);
             done = vd.Length * Vector512<uint>.Count;
         }
-        else if (kernel == LaneKernel31.Avx2 && Avx2.IsSupported)
+        else if (kernel == LaneKernel.Avx2 && Avx2.IsSupported)
         {
             var vp = Vector256.Create(p);
             var vq = Vector256.Create(pInverse);
@@ -222,10 +211,10 @@ internal static class Lanes31
     }
 
     /// <summary>d ← a·b + c.</summary>
-    public static void MultiplyAdd(LaneKernel31 kernel, ReadOnlySpan<uint> a, ReadOnlySpan<uint> b, ReadOnlySpan<uint> c, Span<uint> d, uint p, uint pInverse)
+    public static void MultiplyAdd(LaneKernel kernel, ReadOnlySpan<uint> a, ReadOnlySpan<uint> b, ReadOnlySpan<uint> c, Span<uint> d, uint p, uint pInverse)
     {
         var done = 0;
-        if (kernel == LaneKernel31.Avx512 && Avx512F.IsSupported)
+        if (kernel == LaneKernel.Avx512 && Avx512F.IsSupported)
         {
             var vp = Vector512.Create(p);
             var vq = Vector512.Create(pInverse);
@@ -236,7 +225,7 @@ internal static class Lanes31
             for (var i = 0; i < vd.Length; i++) vd[i] = AddMod(Multiply(va[i], vb[i], vp, vq), vc[i], vp);
             done = vd.Length * Vector512<uint>.Count;
         }
-        else if (kernel == LaneKernel31.Avx2 && Avx2.IsSupported)
+        else if (kernel == LaneKernel.Avx2 && Avx2.IsSupported)
         {
             var vp = Vector256.Create(p);
             var vq = Vector256.Create(pInverse);
@@ -251,10 +240,10 @@ internal static class Lanes31
     }
 
     /// <summary>d ← a·b − c.</summary>
-    public static void MultiplySubtract(LaneKernel31 kernel, ReadOnlySpan<uint> a, ReadOnlySpan<uint> b, ReadOnlySpan<uint> c, Span<uint> d, uint p, uint pInverse)
+    public static void MultiplySubtract(LaneKernel kernel, ReadOnlySpan<uint> a, ReadOnlySpan<uint> b, ReadOnlySpan<uint> c, Span<uint> d, uint p, uint pInverse)
     {
         var done = 0;
-        if (kernel == LaneKernel31.Avx512 && Avx512F.IsSupported)
+        if (kernel == LaneKernel.Avx512 && Avx512F.IsSupported)
         {
             var vp = Vector512.Create(p);
             var vq = Vector512.Create(pInverse);
@@ -265,7 +254,7 @@ internal static class Lanes31
             for (var i = 0; i < vd.Length; i++) vd[i] = SubMod(Multiply(va[i], vb[i], vp, vq), vc[i], vp);
             done = vd.Length * Vector512<uint>.Count;
         }
-        else if (kernel == LaneKernel31.Avx2 && Avx2.IsSupported)
+        else if (kernel == LaneKernel.Avx2 && Avx2.IsSupported)
         {
             var vp = Vector256.Create(p);
             var vq = Vector256.Create(pInverse);
@@ -280,10 +269,10 @@ internal static class Lanes31
     }
 
     /// <summary>d ← c − a·b.</summary>
-    public static void NegativeMultiplyAdd(LaneKernel31 kernel, ReadOnlySpan<uint> a, ReadOnlySpan<uint> b, ReadOnlySpan<uint> c, Span<uint> d, uint p, uint pInverse)
+    public static void NegativeMultiplyAdd(LaneKernel kernel, ReadOnlySpan<uint> a, ReadOnlySpan<uint> b, ReadOnlySpan<uint> c, Span<uint> d, uint p, uint pInverse)
     {
         var done = 0;
-        if (kernel == LaneKernel31.Avx512 && Avx512F.IsSupported)
+        if (kernel == LaneKernel.Avx512 && Avx512F.IsSupported)
         {
             var vp = Vector512.Create(p);
             var vq = Vector512.Create(pInverse);
@@ -294,7 +283,7 @@ internal static class Lanes31
             for (var i = 0; i < vd.Length; i++) vd[i] = SubMod(vc[i], Multiply(va[i], vb[i], vp, vq), vp);
             done = vd.Length * Vector512<uint>.Count;
         }
-        else if (kernel == LaneKernel31.Avx2 && Avx2.IsSupported)
+        else if (kernel == LaneKernel.Avx2 && Avx2.IsSupported)
         {
             var vp = Vector256.Create(p);
             var vq = Vector256.Create(pInverse);

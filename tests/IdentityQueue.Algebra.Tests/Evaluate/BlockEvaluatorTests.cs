@@ -23,7 +23,7 @@ public class BlockEvaluatorTests
     /// denominators such as x − y or x vanish on some lanes and not on others. Returns the number of defined lanes.
     /// </summary>
     internal static int Agree<TField, T>(TField field, StraightLineProgram program, int blockSize, ref Xoshiro256 random,
-        bool fuse = true, LaneKernel31 kernel = LaneKernel31.Avx512, string? what = null)
+        bool fuse = true, LaneKernel kernel = LaneKernel.Avx512, string? what = null)
         where TField : struct, IField<T> where T : struct
     {
         var variables = program.Variables.Length;
@@ -358,27 +358,26 @@ public class BlockEvaluatorTests
         Assert.Throws<ArgumentException>(() => evaluator.Evaluate(new Residue62[8], new Residue62[4], new bool[3]));
     }
 
-    // ---- the 31-bit vector kernels against the scalar fallback ----
+    // ---- the vector kernels against the scalar fallback ----
 
-    [Fact]
-    public void VectorKernels31_GiveTheSameResultsAsTheScalarFallback()
+    private static void VectorKernelsAgreeWithScalar<TField, T>(TField field, ulong seed)
+        where TField : struct, IField<T> where T : struct
     {
-        var r = new Xoshiro256(80);
-        var field = PrimeField31.CreateRandom(ref r);
-        var programs = RandomPrograms(80, 30, division: true).Select(p => p.Program)
+        var r = new Xoshiro256(seed);
+        var programs = RandomPrograms(seed, 30, division: true).Select(p => p.Program)
             .Concat(MatrixIdentities().Select(Compile))
-            .Append(SyntheticPrograms.RandomMultiplyAdd(16, 500, 81));
+            .Append(SyntheticPrograms.RandomMultiplyAdd(16, 500, seed + 1));
         foreach (var program in programs)
         {
             foreach (var blockSize in new[] { 64, 40, 13 })
             {
-                var points = new Residue31[program.Variables.Length * blockSize];
+                var points = new T[program.Variables.Length * blockSize];
                 for (var i = 0; i < points.Length; i++) points[i] = field.Sample(ref r);
                 if (points.Length > 0) points[^1] = field.Zero;
-                var results = new[] { LaneKernel31.Scalar, LaneKernel31.Avx2, LaneKernel31.Avx512 }.Select(kernel =>
+                var results = new[] { LaneKernel.Scalar, LaneKernel.Avx2, LaneKernel.Avx512 }.Select(kernel =>
                 {
-                    var evaluator = new BlockEvaluator<PrimeField31, Residue31>(field, BlockProgram.Prepare(program), blockSize, kernel);
-                    var outputs = new Residue31[program.Outputs.Length * blockSize];
+                    var evaluator = new BlockEvaluator<TField, T>(field, BlockProgram.Prepare(program), blockSize, kernel);
+                    var outputs = new T[program.Outputs.Length * blockSize];
                     var defined = new bool[blockSize];
                     evaluator.Evaluate(points, outputs, defined);
                     return (outputs, defined);
@@ -393,30 +392,55 @@ public class BlockEvaluatorTests
     }
 
     [Fact]
-    public void VectorKernels31_EdgeValues()
+    public void VectorKernels31_GiveTheSameResultsAsTheScalarFallback()
     {
-        // p − 1, 0, 1 and values near 2^31 in every combination, through each kernel, against the field's own arithmetic.
+        var r = new Xoshiro256(80);
+        VectorKernelsAgreeWithScalar<PrimeField31, Residue31>(PrimeField31.CreateRandom(ref r), 80);
+    }
+
+    [Fact]
+    public void VectorKernels62_GiveTheSameResultsAsTheScalarFallback()
+    {
+        var r = new Xoshiro256(85);
+        VectorKernelsAgreeWithScalar<PrimeField62, Residue62>(PrimeField62.CreateRandom(ref r), 85);
+    }
+
+    /// <summary>x·y + z − w·x − (y − z) − (−w) through each kernel, against the field's own arithmetic, on edge values.</summary>
+    private static void EdgeValues<TField, T>(TField field, T[] edges, ref Xoshiro256 r)
+        where TField : struct, IField<T> where T : struct
+    {
+        var program = Compile("x*y + z - w*x - (y - z) - (-w) = 0");
+        const int b = 48;
+        foreach (var kernel in new[] { LaneKernel.Scalar, LaneKernel.Avx2, LaneKernel.Avx512 })
+        {
+            var points = new T[4 * b];
+            for (var i = 0; i < points.Length; i++) points[i] = i % 3 == 0 ? field.Sample(ref r) : edges[(int)r.NextBelow((ulong)edges.Length)];
+            var block = new BlockEvaluator<TField, T>(field, BlockProgram.Prepare(program), b, kernel);
+            var outputs = new T[b];
+            Assert.Equal(b, block.Evaluate(points, outputs, new bool[b]));
+            for (var l = 0; l < b; l++)
+            {
+                var (x, y, z, w) = (points[l], points[b + l], points[2 * b + l], points[3 * b + l]);
+                var expected = field.Add(field.Subtract(field.Subtract(field.Add(field.Multiply(x, y), z), field.Multiply(w, x)), field.Subtract(y, z)), w);
+                Assert.True(field.AreEqual(expected, outputs[l]), $"{kernel}, lane {l}");
+            }
+        }
+    }
+
+    [Fact]
+    public void VectorKernels_EdgeValues()
+    {
+        // p − 1, 0, 1, p/2 and 2 in every combination, with primes at the top of each rung and small ones.
         var r = new Xoshiro256(90);
         foreach (var p in new uint[] { 2147483647, 2147483629, 1073741827, 65537 })
         {
-            var field = PrimeField31.Create(p);
-            var program = Compile("x*y + z - w*x - (y - z) - (-w) = 0");
-            var edges = new[] { field.Zero, field.One, field.FromUInt32(p - 1), field.FromUInt32(p / 2), field.FromUInt32(2) };
-            const int b = 48;
-            foreach (var kernel in new[] { LaneKernel31.Scalar, LaneKernel31.Avx2, LaneKernel31.Avx512 })
-            {
-                var points = new Residue31[4 * b];
-                for (var i = 0; i < points.Length; i++) points[i] = i % 3 == 0 ? field.Sample(ref r) : edges[(int)r.NextBelow((ulong)edges.Length)];
-                var block = new BlockEvaluator<PrimeField31, Residue31>(field, BlockProgram.Prepare(program), b, kernel);
-                var outputs = new Residue31[b];
-                Assert.Equal(b, block.Evaluate(points, outputs, new bool[b]));
-                for (var l = 0; l < b; l++)
-                {
-                    var (x, y, z, w) = (points[l], points[b + l], points[2 * b + l], points[3 * b + l]);
-                    var expected = field.Add(field.Subtract(field.Subtract(field.Add(field.Multiply(x, y), z), field.Multiply(w, x)), field.Subtract(y, z)), w);
-                    Assert.Equal(expected, outputs[l]);
-                }
-            }
+            var f = PrimeField31.Create(p);
+            EdgeValues<PrimeField31, Residue31>(f, [f.Zero, f.One, f.FromUInt32(p - 1), f.FromUInt32(p / 2), f.FromUInt32(2)], ref r);
+        }
+        foreach (var p in new ulong[] { 4611686018427387847, 2305843009213693951, 4294967311, 65537 })
+        {
+            var f = PrimeField62.Create(p);
+            EdgeValues<PrimeField62, Residue62>(f, [f.Zero, f.One, f.FromUInt64(p - 1), f.FromUInt64(p / 2), f.FromUInt64(2), f.FromUInt64(1UL << 32)], ref r);
         }
     }
 
@@ -426,7 +450,8 @@ public class BlockEvaluatorTests
         var program = BlockProgram.Prepare(Compile("x = x"));
         var r = new Xoshiro256(95);
         Assert.Contains("62-bit", new BlockEvaluator<PrimeField62, Residue62>(PrimeField62.CreateRandom(ref r), program).Kernel);
-        Assert.Contains("scalar", new BlockEvaluator<PrimeField31, Residue31>(PrimeField31.CreateRandom(ref r), program, 64, LaneKernel31.Scalar).Kernel);
+        Assert.Contains("scalar", new BlockEvaluator<PrimeField31, Residue31>(PrimeField31.CreateRandom(ref r), program, 64, LaneKernel.Scalar).Kernel);
+        Assert.Contains("scalar", new BlockEvaluator<PrimeField62, Residue62>(PrimeField62.CreateRandom(ref r), program, 64, LaneKernel.Scalar).Kernel);
         Assert.Contains("generic", new BlockEvaluator<PrimeField127, Residue127>(PrimeField127.CreateRandom(ref r), program).Kernel);
     }
 }
