@@ -245,7 +245,7 @@ public static class BenchCommand
         o.WriteLine($"  determinant 20×20, 62-bit prime                  {r.Det20Ms,14:F4} ms");
         o.WriteLine($"  determinant 100×100, 62-bit prime                {r.Det100Ms,14:F3} ms");
         o.WriteLine($"  determinant 200×200, 62-bit prime                {r.Det200Ms,14:F3} ms");
-        o.WriteLine($"  permanent 20×20 (Ryser), 62-bit prime            {r.Perm20Ms,14:F2} ms");
+        o.WriteLine($"  permanent 20×20 (Glynn), 62-bit prime            {r.Perm20Ms,14:F2} ms");
         o.WriteLine();
         o.WriteLine($"  blocks of {r.BlockSize} points; 62-bit: {r.Kernel62}; 31-bit: {r.Kernel31}");
         o.WriteLine($"  CPU: {RuntimeInformation.ProcessArchitecture}, {string.Join(" ", VectorSupport().Where(v => v.Supported).Select(v => v.Name))}; {RuntimeInformation.FrameworkDescription}");

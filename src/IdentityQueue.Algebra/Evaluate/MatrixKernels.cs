@@ -36,7 +36,7 @@ public static partial class MatrixKernels
         if (typeof(TField) == typeof(PrimeField62) && typeof(T) == typeof(Residue62))
         {
             var field = (PrimeField62)(object)f;
-            return (T)(object)PrimeField62.FromMontgomery(Determinant62(field, MemoryMarshal.Cast<T, ulong>(a), n));
+            return (T)(object)PrimeField62.FromMontgomery(Determinant62(field, MemoryMarshal.Cast<T, ulong>(a), n, avx512: true));
         }
         return DeterminantByElimination(f, a, n, DivisionFreeOrder);
     }

@@ -1,3 +1,4 @@
+using System.Runtime.InteropServices;
 using IdentityQueue.Algebra.Evaluate;
 using IdentityQueue.Algebra.Fields;
 
@@ -57,6 +58,12 @@ public class MatrixKernelPathTests
                 var fast = MatrixKernels.Determinant(f, (T[])m.Clone(), n);
                 Assert.True(f.AreEqual(plain, divisionFree), $"division-free, n={n}, {kind}");
                 Assert.True(f.AreEqual(plain, fast), $"default path, n={n}, {kind}");
+                if (f is PrimeField62 f62)
+                {
+                    // the blocked elimination without vectors, whatever the CPU
+                    var scalar = MatrixKernels.Determinant62(f62, MemoryMarshal.Cast<T, ulong>(((T[])m.Clone()).AsSpan()), n, avx512: false);
+                    Assert.True(PrimeField62.ToMontgomery((Residue62)(object)plain) == scalar, $"scalar blocked path, n={n}, {kind}");
+                }
                 if (kind is "repeated row" or "zero column") Assert.True(f.IsZero(fast), $"singular, n={n}");
             }
     }
@@ -89,6 +96,8 @@ public class MatrixKernelPathTests
         var first = MatrixKernels.Determinant(f, (Residue62[])m.Clone(), 300);
         Assert.Equal(first, MatrixKernels.Determinant(f, (Residue62[])m.Clone(), 300));
         Assert.Equal(first, MatrixKernels.DeterminantByElimination(f, (Residue62[])m.Clone(), 300, 0));
+        var scalar = MatrixKernels.Determinant62(f, MemoryMarshal.Cast<Residue62, ulong>(((Residue62[])m.Clone()).AsSpan()), 300, avx512: false);
+        Assert.Equal(PrimeField62.ToMontgomery(first), scalar);
     }
 
     [Fact]
