@@ -604,11 +604,7 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
             {
                 var s = sums.Slice(j * b, b);
                 r.Slice(slots[j] * b, b).CopyTo(s);
-                for (var i = 1; i < n; i++)
-                {
-                    var entry = r.Slice(slots[i * n + j] * b, b);
-                    for (var l = 0; l < b; l++) s[l] = f.Add(s[l], entry[l]);
-                }
+                for (var i = 1; i < n; i++) LaneAdd(s, r.Slice(slots[i * n + j] * b, b));
             }
             LaneProduct(sums, product, n);
             product.CopyTo(even);
@@ -630,14 +626,15 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
                 // Glynn: row k+1 moves every column sum by ∓2·a; Ryser: column k enters or leaves every row sum.
                 var s = sums.Slice(j * b, b);
                 var entry = r.Slice((glynn ? slots[(k + 1) * n + j] : slots[j * n + k]) * b, b);
-                if (glynn && back) for (var l = 0; l < b; l++) s[l] = f.Add(f.Add(s[l], entry[l]), entry[l]);
-                else if (glynn) for (var l = 0; l < b; l++) s[l] = f.Subtract(f.Subtract(s[l], entry[l]), entry[l]);
-                else if (back) for (var l = 0; l < b; l++) s[l] = f.Subtract(s[l], entry[l]);
-                else for (var l = 0; l < b; l++) s[l] = f.Add(s[l], entry[l]);
+                var up = glynn ? back : !back; // Glynn: δ back to +1 adds 2·a; Ryser: a column entering adds it
+                for (var twice = glynn ? 2 : 1; twice > 0; twice--)
+                {
+                    if (up) LaneAdd(s, entry);
+                    else LaneSubtract(s, entry);
+                }
             }
             LaneProduct(sums, product, n);
-            var total = (g & 1) == 0 ? even : odd;
-            for (var l = 0; l < b; l++) total[l] = f.Add(total[l], product[l]);
+            LaneAdd((g & 1) == 0 ? even : odd, product);
         }
         if (glynn)
         {
@@ -655,10 +652,39 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
         var f = _field;
         var b = _b;
         sums[..b].CopyTo(product);
-        for (var j = 1; j < n; j++)
-        {
-            var s = sums.Slice(j * b, b);
-            for (var l = 0; l < b; l++) product[l] = f.Multiply(product[l], s[l]);
-        }
+        for (var j = 1; j < n; j++) LaneMultiply(product, sums.Slice(j * b, b));
+    }
+
+    /// <summary>s ← s + x lane by lane, with the rung's lane kernels where there are some.</summary>
+    private void LaneAdd(Span<T> s, ReadOnlySpan<T> x)
+    {
+        if (typeof(TField) == typeof(PrimeField62) && typeof(T) == typeof(Residue62))
+            Lanes62.Add(_kernel62, MemoryMarshal.Cast<T, ulong>(s), MemoryMarshal.Cast<T, ulong>(x), MemoryMarshal.Cast<T, ulong>(s), _p62);
+        else if (typeof(TField) == typeof(PrimeField31) && typeof(T) == typeof(Residue31))
+            Lanes31.Add(_kernel31, MemoryMarshal.Cast<T, uint>(s), MemoryMarshal.Cast<T, uint>(x), MemoryMarshal.Cast<T, uint>(s), _p31);
+        else
+            for (var l = 0; l < s.Length; l++) s[l] = _field.Add(s[l], x[l]);
+    }
+
+    /// <summary>s ← s − x lane by lane.</summary>
+    private void LaneSubtract(Span<T> s, ReadOnlySpan<T> x)
+    {
+        if (typeof(TField) == typeof(PrimeField62) && typeof(T) == typeof(Residue62))
+            Lanes62.Subtract(_kernel62, MemoryMarshal.Cast<T, ulong>(s), MemoryMarshal.Cast<T, ulong>(x), MemoryMarshal.Cast<T, ulong>(s), _p62);
+        else if (typeof(TField) == typeof(PrimeField31) && typeof(T) == typeof(Residue31))
+            Lanes31.Subtract(_kernel31, MemoryMarshal.Cast<T, uint>(s), MemoryMarshal.Cast<T, uint>(x), MemoryMarshal.Cast<T, uint>(s), _p31);
+        else
+            for (var l = 0; l < s.Length; l++) s[l] = _field.Subtract(s[l], x[l]);
+    }
+
+    /// <summary>s ← s·x lane by lane.</summary>
+    private void LaneMultiply(Span<T> s, ReadOnlySpan<T> x)
+    {
+        if (typeof(TField) == typeof(PrimeField62) && typeof(T) == typeof(Residue62))
+            Lanes62.Multiply(_kernel62, MemoryMarshal.Cast<T, ulong>(s), MemoryMarshal.Cast<T, ulong>(x), MemoryMarshal.Cast<T, ulong>(s), _p62, _q62);
+        else if (typeof(TField) == typeof(PrimeField31) && typeof(T) == typeof(Residue31))
+            Lanes31.Multiply(_kernel31, MemoryMarshal.Cast<T, uint>(s), MemoryMarshal.Cast<T, uint>(x), MemoryMarshal.Cast<T, uint>(s), _p31, _q31);
+        else
+            for (var l = 0; l < s.Length; l++) s[l] = _field.Multiply(s[l], x[l]);
     }
 }

@@ -1,4 +1,5 @@
 using System.Runtime.CompilerServices;
+using System.Runtime.InteropServices;
 using System.Runtime.Intrinsics;
 using System.Runtime.Intrinsics.X86;
 
@@ -103,7 +104,61 @@ internal static class Lanes62
         }
     }
 
-    public static void Fill(Span<ulong> d, ulong value) => d.Fill(value);
+    /// <summary>d ← a + b, on whole AVX-512 vectors where <paramref name="kernel"/> allows, then lane by lane.</summary>
+    public static void Add(LaneKernel kernel, ReadOnlySpan<ulong> a, ReadOnlySpan<ulong> b, Span<ulong> d, ulong p)
+    {
+        var done = 0;
+        if (kernel == LaneKernel.Avx512 && Avx512F.IsSupported)
+        {
+            var vp = Vector512.Create(p);
+            var vd = V512(d);
+            var va = V512(a, d.Length);
+            var vb = V512(b, d.Length);
+            for (var i = 0; i < vd.Length; i++) vd[i] = AddMod(va[i], vb[i], vp);
+            done = vd.Length * Vector512<ulong>.Count;
+        }
+        Add(a[done..d.Length], b[done..d.Length], d[done..], p);
+    }
+
+    /// <summary>d ← a − b, on whole AVX-512 vectors where <paramref name="kernel"/> allows, then lane by lane.</summary>
+    public static void Subtract(LaneKernel kernel, ReadOnlySpan<ulong> a, ReadOnlySpan<ulong> b, Span<ulong> d, ulong p)
+    {
+        var done = 0;
+        if (kernel == LaneKernel.Avx512 && Avx512F.IsSupported)
+        {
+            var vp = Vector512.Create(p);
+            var vd = V512(d);
+            var va = V512(a, d.Length);
+            var vb = V512(b, d.Length);
+            for (var i = 0; i < vd.Length; i++) vd[i] = SubMod(va[i], vb[i], vp);
+            done = vd.Length * Vector512<ulong>.Count;
+        }
+        Subtract(a[done..d.Length], b[done..d.Length], d[done..], p);
+    }
+
+    /// <summary>d ← a·b, on whole AVX-512 vectors where <paramref name="kernel"/> allows, then lane by lane.</summary>
+    public static void Multiply(LaneKernel kernel, ReadOnlySpan<ulong> a, ReadOnlySpan<ulong> b, Span<ulong> d, ulong p, ulong pInverse)
+    {
+        var done = 0;
+        if (kernel == LaneKernel.Avx512 && Avx512F.IsSupported && Avx512DQ.IsSupported)
+        {
+            var vp = Vector512.Create(p);
+            var vpHigh = Vector512.Create(p >> 32);
+            var vq = Vector512.Create(pInverse);
+            var vd = V512(d);
+            var va = V512(a, d.Length);
+            var vb = V512(b, d.Length);
+            for (var i = 0; i < vd.Length; i++) vd[i] = Multiply(va[i], vb[i], vp, vpHigh, vq);
+            done = vd.Length * Vector512<ulong>.Count;
+        }
+        Multiply(a[done..d.Length], b[done..d.Length], d[done..], p, pInverse);
+    }
+
+    private static ReadOnlySpan<Vector512<ulong>> V512(ReadOnlySpan<ulong> s, int length) =>
+        MemoryMarshal.Cast<ulong, Vector512<ulong>>(s[..(length - length % Vector512<ulong>.Count)]);
+
+    private static Span<Vector512<ulong>> V512(Span<ulong> s) =>
+        MemoryMarshal.Cast<ulong, Vector512<ulong>>(s[..(s.Length - s.Length % Vector512<ulong>.Count)]);
 
     public static void Add(ReadOnlySpan<ulong> a, ReadOnlySpan<ulong> b, Span<ulong> d, ulong p)
     {

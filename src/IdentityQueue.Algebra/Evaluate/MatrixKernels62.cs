@@ -1,4 +1,5 @@
 using System.Buffers;
+using System.Numerics;
 using System.Runtime.CompilerServices;
 using System.Runtime.InteropServices;
 using System.Runtime.Intrinsics;
@@ -259,6 +260,94 @@ public static partial class MatrixKernels
         hi = Avx512F.Min(hi, Avx512F.Subtract(hi, p));
         var d = Avx512F.Subtract(hi, Lanes62.High(Avx512DQ.MultiplyLow(lo, q), p, pHigh));
         return Avx512F.Min(d, Avx512F.Add(d, p));
+    }
+
+    /// <summary>
+    /// Glynn's formula mod a 62-bit prime on AVX-512 (<paramref name="a"/> raw Montgomery representatives, 4 ≤ n ≤ 32): the
+    /// 8 lanes take the 8 sign patterns of the last three rows, and the Gray code runs over the rows 1 … n−4, the same flips
+    /// on every lane, so each step moves n vectors of column sums by a broadcast ∓2·a_ij and multiplies them lane by lane
+    /// (in four chains). Lane k's terms carry the extra sign (−1)^popcount(k). Returns a Montgomery representative.
+    /// </summary>
+    internal static ulong Glynn62Avx512(PrimeField62 f, ReadOnlySpan<ulong> a, int n)
+    {
+        unchecked
+        {
+            var (p, q) = (f.Modulus, f.ModulusInverse);
+            var vp = Vector512.Create(p);
+            var vpHigh = Vector512.Create(p >> 32);
+            var vq = Vector512.Create(q);
+            Span<ulong> twice = stackalloc ulong[32 * 32];
+            for (var i = 0; i < n * n; i++) twice[i] = AddMod62(a[i], a[i], p);
+            Span<Vector512<ulong>> sums = stackalloc Vector512<ulong>[32];
+            Span<ulong> lanes = stackalloc ulong[Vector512<ulong>.Count];
+            for (var j = 0; j < n; j++)
+            {
+                var common = a[j];
+                for (var i = 1; i < n - 3; i++) common = AddMod62(common, a[i * n + j], p);
+                for (var k = 0; k < lanes.Length; k++)
+                {
+                    var x = common;
+                    for (var t = 0; t < 3; t++)
+                    {
+                        var entry = a[(n - 3 + t) * n + j];
+                        x = (k >> t & 1) != 0 ? SubMod62(x, entry, p) : AddMod62(x, entry, p);
+                    }
+                    lanes[k] = x;
+                }
+                sums[j] = Vector512.Create<ulong>(lanes);
+            }
+            var s = sums[..n];
+            var even = ProductAvx512(s, vp, vpHigh, vq);
+            var odd = Vector512<ulong>.Zero;
+            var minus = 0UL;
+            var count = 1UL << (n - 4);
+            for (var g = 1UL; g < count; g++)
+            {
+                var bit = BitOperations.TrailingZeroCount(g);
+                var row = twice.Slice((bit + 1) * n, n);
+                if ((minus >> bit & 1) != 0)
+                    for (var j = 0; j < s.Length; j++) s[j] = Lanes62.AddMod(s[j], Vector512.Create(row[j]), vp);
+                else
+                    for (var j = 0; j < s.Length; j++) s[j] = Lanes62.SubMod(s[j], Vector512.Create(row[j]), vp);
+                minus ^= 1UL << bit;
+                var product = ProductAvx512(s, vp, vpHigh, vq);
+                if ((g & 1) == 0) even = Lanes62.AddMod(even, product, vp);
+                else odd = Lanes62.AddMod(odd, product, vp);
+            }
+            var difference = Lanes62.SubMod(even, odd, vp);
+            var total = 0UL;
+            for (var k = 0; k < Vector512<ulong>.Count; k++)
+                total = BitOperations.PopCount((uint)k) % 2 == 0 ? AddMod62(total, difference[k], p) : SubMod62(total, difference[k], p);
+            f.TryInvert(f.FromUInt64(1UL << (n - 1)), out var scale);
+            return Lanes62.Multiply(total, PrimeField62.ToMontgomery(scale), p, q);
+        }
+    }
+
+    /// <summary>Π s_j lane by lane, in four interleaved chains (s has at least 4 vectors).</summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    private static Vector512<ulong> ProductAvx512(ReadOnlySpan<Vector512<ulong>> s, Vector512<ulong> p, Vector512<ulong> pHigh, Vector512<ulong> q)
+    {
+        Vector512<ulong> p0 = s[0], p1 = s[1], p2 = s[2], p3 = s[3];
+        var k = 4;
+        for (; k + 3 < s.Length; k += 4)
+        {
+            p0 = Lanes62.Multiply(p0, s[k], p, pHigh, q);
+            p1 = Lanes62.Multiply(p1, s[k + 1], p, pHigh, q);
+            p2 = Lanes62.Multiply(p2, s[k + 2], p, pHigh, q);
+            p3 = Lanes62.Multiply(p3, s[k + 3], p, pHigh, q);
+        }
+        for (; k < s.Length; k++) p0 = Lanes62.Multiply(p0, s[k], p, pHigh, q);
+        return Lanes62.Multiply(Lanes62.Multiply(p0, p1, p, pHigh, q), Lanes62.Multiply(p2, p3, p, pHigh, q), p, pHigh, q);
+    }
+
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    private static ulong AddMod62(ulong a, ulong b, ulong p)
+    {
+        unchecked
+        {
+            var d = a + b - p;
+            return d + (p & (ulong)((long)d >> 63));
+        }
     }
 
     /// <summary>
