@@ -550,8 +550,8 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
         a.CopyTo(d);
         foreach (var bit in plan.Bits)
         {
-            for (var i = 0; i < d.Length; i++) d[i] = f.Multiply(d[i], d[i]);
-            if (bit) for (var i = 0; i < d.Length; i++) d[i] = f.Multiply(d[i], a[i]);
+            LaneMultiply(d, d);
+            if (bit) LaneMultiply(d, a);
         }
     }
 
