@@ -256,8 +256,8 @@ public static partial class MatrixKernels
     }
 
     /// <summary>
-    /// Glynn: perm(A) = 2^−(n−1) Σ_δ (Π_k δ_k) Π_j Σ_i δ_i a_ij over δ ∈ {±1}^n with δ_0 = 1 (D. G. Glynn, European J.
-    /// Combin. 31 (2010)). Each Gray-code step flips one δ_i, moving every column sum by ±2·a_ij, and flips the sign.
+    /// Glynn: perm(A) = 2^−(n−1) Σ_δ (Π_k δ_k) Π_j Σ_i δ_i a_ij over δ ∈ {±1}^n with δ_0 = 1 (Glynn, 2010).
+    /// Each Gray-code step flips one δ_i, moving every column sum by ±2·a_ij, and flips the sign.
     /// Needs 2 to be invertible (odd characteristic).
     /// </summary>
     internal static T Glynn<TField, T>(TField f, ReadOnlySpan<T> a, int n, Span<T> sums)
