@@ -42,7 +42,7 @@ public class EvaluatorBenchmarks
     }
 
     /// <summary>Horner-like chains t = t·x_i + x_j in 8 interleaved accumulators, summed at the end.</summary>
-    private static string BuildChain(int steps, ref Xoshiro256 random)
+    internal static string BuildChain(int steps, ref Xoshiro256 random)
     {
         var chains = new string[8];
         for (var c = 0; c < 8; c++) chains[c] = $"x[{c}]";

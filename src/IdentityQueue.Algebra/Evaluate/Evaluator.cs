@@ -1,3 +1,5 @@
+using System.Buffers;
+using System.Runtime.CompilerServices;
 using IdentityQueue.Algebra.Compile;
 using IdentityQueue.Algebra.Fields;
 
@@ -36,7 +38,25 @@ public static class Evaluator
         where TField : struct, IField<T> where T : struct
     {
         var instructions = program.Instructions;
-        T[]? scratch = null;
+        T[]? scratch = null; // for matrix functions: rented, so that repeated evaluations do not allocate
+        try
+        {
+            return Run(field, program, constants, point, registers, instructions, ref scratch);
+        }
+        finally
+        {
+            if (scratch is not null) Return(scratch);
+        }
+    }
+
+    /// <summary>Gives a rented scratch back, cleared when its elements hold references (so that the pool keeps none alive).</summary>
+    private static void Return<T>(T[] scratch) =>
+        ArrayPool<T>.Shared.Return(scratch, clearArray: RuntimeHelpers.IsReferenceOrContainsReferences<T>());
+
+    private static bool Run<TField, T>(TField field, StraightLineProgram program, ReadOnlySpan<T> constants, ReadOnlySpan<T> point,
+        Span<T> registers, Instruction[] instructions, ref T[]? scratch)
+        where TField : struct, IField<T> where T : struct
+    {
         for (var i = 0; i < instructions.Length; i++)
         {
             var ins = instructions[i];
@@ -56,7 +76,11 @@ public static class Evaluator
                 default:
                 {
                     var n = ins.B;
-                    if (scratch is null || scratch.Length < n * n) scratch = new T[n * n];
+                    if (scratch is null || scratch.Length < n * n)
+                    {
+                        if (scratch is not null) Return(scratch);
+                        scratch = ArrayPool<T>.Shared.Rent(n * n);
+                    }
                     var m = scratch.AsSpan(0, n * n);
                     var ops = program.Operands.AsSpan(ins.A, n * n);
                     for (var k = 0; k < m.Length; k++) m[k] = registers[ops[k]];

@@ -57,6 +57,15 @@ public readonly struct PrimeField31 : IField<Residue31>
 
     public uint Modulus => _p;
 
+    /// <summary>p^-1 mod 2^32, for lane kernels that run the Montgomery product on raw representatives.</summary>
+    internal uint ModulusInverse => _pInverse;
+
+    /// <summary>The element whose Montgomery representative is <paramref name="montgomery"/> (in [0, p)).</summary>
+    internal static Residue31 FromMontgomery(uint montgomery) => new(montgomery);
+
+    /// <summary>The Montgomery representative of <paramref name="a"/>, in [0, p).</summary>
+    internal static uint ToMontgomery(Residue31 a) => a.Value;
+
     public Residue31 Zero => default;
     public Residue31 One => new(_r1);
 

@@ -57,6 +57,18 @@ public readonly struct PrimeField62 : IField<Residue62>
 
     public ulong Modulus => _p;
 
+    /// <summary>p^-1 mod 2^64, for lane kernels that run the Montgomery product on raw representatives.</summary>
+    internal ulong ModulusInverse => _pInverse;
+
+    /// <summary>R^2 mod p (R = 2^64): a Montgomery product with it converts a plain residue into Montgomery form.</summary>
+    internal ulong MontgomerySquare => _r2;
+
+    /// <summary>The element whose Montgomery representative is <paramref name="montgomery"/> (in [0, p)).</summary>
+    internal static Residue62 FromMontgomery(ulong montgomery) => new(montgomery);
+
+    /// <summary>The Montgomery representative of <paramref name="a"/>, in [0, p).</summary>
+    internal static ulong ToMontgomery(Residue62 a) => a.Value;
+
     public Residue62 Zero => default;
     public Residue62 One => new(_r1);
 
