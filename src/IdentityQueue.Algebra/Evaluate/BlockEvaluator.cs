@@ -36,7 +36,6 @@ public static class BlockEvaluator
 /// </summary>
 public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> where T : struct
 {
-    private readonly TField _field;
     private readonly BlockProgram _program;
     private readonly int _b;
     private readonly T[] _registers;
@@ -44,12 +43,14 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
     private readonly T[] _laneScratch;
     private readonly T[] _matrix;
     private readonly T[] _permanent;
-    private readonly bool _constantsDefined;
-    private readonly bool _oddCharacteristic;
     private readonly LaneKernel _kernel31;
     private readonly LaneKernel _kernel62;
-    private readonly ulong _p62, _q62;
-    private readonly uint _p31, _q31;
+    // the field and what is derived from it (replaced by UseField)
+    private TField _field;
+    private bool _constantsDefined;
+    private bool _oddCharacteristic;
+    private ulong _p62, _q62;
+    private uint _p31, _q31;
 
     /// <summary>An evaluator of <paramref name="program"/> over blocks of <paramref name="blockSize"/> points (1 to <see cref="BlockEvaluator.MaxBlockSize"/>).</summary>
     public BlockEvaluator(TField field, BlockProgram program, int blockSize = BlockEvaluator.DefaultBlockSize)
@@ -73,6 +74,16 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
         _permanent = new T[program.MaxPermanentOrder == 0 ? 0 : (program.MaxPermanentOrder + 3) * blockSize];
         _kernel31 = Lanes31.Supported(kernel);
         _kernel62 = Lanes62.Supported(kernel);
+        UseField(field);
+    }
+
+    /// <summary>
+    /// Switches to another field of the same type (say, a fresh random prime for the next trial), keeping the buffers:
+    /// prepares the program's constants in it and returns <see cref="ConstantsDefined"/>.
+    /// </summary>
+    public bool UseField(TField field)
+    {
+        _field = field;
         _oddCharacteristic = field.Characteristic != 2;
         if (typeof(TField) == typeof(PrimeField62))
         {
@@ -84,15 +95,16 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
             var f = (PrimeField31)(object)field;
             (_p31, _q31) = (f.Modulus, f.ModulusInverse);
         }
-        _constantsDefined = Evaluator.TryPrepareConstants<TField, T>(field, program.Program, out var constants);
+        _constantsDefined = Evaluator.TryPrepareConstants<TField, T>(field, _program.Program, out var constants);
         if (_constantsDefined)
         {
             for (var c = 0; c < constants.Length; c++)
             {
-                var slot = program.ConstantSlots[c];
-                if (slot >= 0) _registers.AsSpan(slot * blockSize, blockSize).Fill(constants[c]);
+                var slot = _program.ConstantSlots[c];
+                if (slot >= 0) _registers.AsSpan(slot * _b, _b).Fill(constants[c]);
             }
         }
+        return _constantsDefined;
     }
 
     public TField Field => _field;

@@ -345,6 +345,31 @@ public class BlockEvaluatorTests
     }
 
     [Fact]
+    public void UseField_GivesWhatAFreshEvaluatorGives()
+    {
+        var r = new Xoshiro256(65);
+        foreach (var (program, text) in RandomPrograms(65, 15, division: true))
+        {
+            var block = BlockProgram.Prepare(program);
+            var reused = new BlockEvaluator<PrimeField62, Residue62>(PrimeField62.CreateRandom(ref r), block, 8);
+            for (var trial = 0; trial < 3; trial++)
+            {
+                var field = PrimeField62.CreateRandom(ref r);
+                var fresh = new BlockEvaluator<PrimeField62, Residue62>(field, block, 8);
+                Assert.Equal(fresh.ConstantsDefined, reused.UseField(field));
+                var points = new Residue62[program.Variables.Length * 8];
+                for (var i = 0; i < points.Length; i++) points[i] = field.Sample(ref r);
+                var (outputs1, defined1) = (new Residue62[program.Outputs.Length * 8], new bool[8]);
+                var (outputs2, defined2) = (new Residue62[program.Outputs.Length * 8], new bool[8]);
+                fresh.Evaluate(points, outputs1, defined1);
+                reused.Evaluate(points, outputs2, defined2);
+                Assert.Equal(defined1, defined2);
+                Assert.True(outputs1.AsSpan().SequenceEqual(outputs2), text);
+            }
+        }
+    }
+
+    [Fact]
     public void BadArguments_AreRejected()
     {
         var program = BlockProgram.Prepare(Compile("x*y = y*x"));
