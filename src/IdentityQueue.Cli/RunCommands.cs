@@ -20,7 +20,7 @@ internal static class RunCommands
             new StoreOptions(),
             new Option<int?>("--workers") { Description = "Worker threads in this process (default: the number of cores)." },
             new Option<int?>("--target-bits") { Description = "Raise the evidence wanted to 2^-B; survivors short of it get more trials, nothing settled is redone." },
-            new Option<int>("--chunk-size") { Description = "Candidates per queue job.", DefaultValueFactory = _ => 500 });
+            new Option<int>("--chunk-size") { Description = "Candidates per queue job.", DefaultValueFactory = _ => 1000 });
         args.Db.AddTo(command);
         command.Options.Add(args.Workers);
         if (target) command.Options.Add(args.Target);

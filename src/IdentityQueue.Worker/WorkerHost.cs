@@ -43,7 +43,7 @@ public static class WorkerHost
             .SetDataCompatibilityLevel(CompatibilityLevel.Version_180)
             .UseSimpleAssemblyNameTypeSerializer()
             .UseRecommendedSerializerSettings()
-            .UseSQLiteStorage(plan.QueuePath, new SQLiteStorageOptions { QueuePollInterval = TimeSpan.FromMilliseconds(200) }));
+            .UseSQLiteStorage(plan.QueuePath, new SQLiteStorageOptions { QueuePollInterval = TimeSpan.FromMilliseconds(25) }));
         builder.Services.AddHangfireServer(o =>
         {
             o.WorkerCount = settings.Workers;

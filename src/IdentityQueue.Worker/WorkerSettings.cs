@@ -9,7 +9,7 @@ public sealed record WorkerSettings
     public int Workers { get; init; } = Environment.ProcessorCount;
 
     /// <summary>Candidates per job: a job must carry enough work to pay for the queue's own cost (about 15–20 ms a job).</summary>
-    public int ChunkSize { get; init; } = 500;
+    public int ChunkSize { get; init; } = 1000;
 
     /// <summary>Error bound wanted, as −log2; a store's candidates may override it (catalogue.target_bits).</summary>
     public int TargetBits { get; init; } = 64;
