@@ -34,27 +34,12 @@ public static class Evidence
             var dividingPrimes = Math.Floor(bounds.HeightLog2 / (b - 1));
             if (dividingPrimes > 0) primeLog = Math.Log2(dividingPrimes) - Primality.PrimeCountInRangeLog2(b);
         }
-        var total = LogSum(degreeLog, primeLog);
+        var total = BoundAnalysis.LogAdd(degreeLog, primeLog);
         if (double.IsNegativeInfinity(total)) return FloorLog2;
         if (total >= -1) return null;
         return Math.Max(FloorLog2, total + 1e-9);
     }
 
-    private static double LogSum(double a, double b)
-    {
-        if (double.IsNegativeInfinity(a)) return b;
-        if (double.IsNegativeInfinity(b)) return a;
-        var hi = Math.Max(a, b);
-        return hi + Math.Log2(1 + Math.Pow(2, Math.Min(a, b) - hi));
-    }
-
-    /// <summary>log2 of a positive integer, rounded up slightly.</summary>
-    public static double BigLog2(BigInteger v)
-    {
-        if (v.Sign <= 0) return double.NegativeInfinity;
-        var bits = v.GetBitLength();
-        if (bits <= 52) return Math.Log2((double)v) + 1e-12;
-        var shift = (int)(bits - 52);
-        return Math.Log2((double)(v >> shift) + 1) + shift + 1e-12;
-    }
+    /// <summary>log2 of a positive integer, rounded up slightly (−∞ for 0).</summary>
+    public static double BigLog2(BigInteger v) => BoundAnalysis.Log2Up(v);
 }

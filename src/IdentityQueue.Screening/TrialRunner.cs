@@ -53,23 +53,29 @@ public static class TrialRunner
         var pointValues = new PointValue[point.Length];
         for (var i = 0; i < point.Length; i++) pointValues[i] = new PointValue(program.Variables[i], field.ToCoefficients(point[i]));
 
-        if (!Evaluator.TryPrepareConstants<TField, T>(field, program, out var constants))
-            return Undefined();
+        var difference = EvaluateDifference<TField, T>(field, program, point);
+        if (!difference.Defined)
+            return new TrialRecord(seq, trialField, pointSeed, TrialOutcome.Undefined, pointValues, null, null, null, Elapsed(clock));
+        if (difference.Refutes)
+            return new TrialRecord(seq, trialField, pointSeed, TrialOutcome.Nonzero, pointValues, difference.Difference, difference.Entry, null, Elapsed(clock));
+        var bound = Evidence.TrialBoundLog2(identity.Bounds, field.SizeLog2, identity.Field.IsRationals ? (int)field.Characteristic.GetBitLength() : null);
+        return new TrialRecord(seq, trialField, pointSeed, TrialOutcome.Zero, pointValues, null, null, bound ?? 0, Elapsed(clock));
+    }
+
+    /// <summary>lhs − rhs at a point: undefined, zero (every output vanishes), or the first nonzero output and its entry name.</summary>
+    internal static RecheckResult EvaluateDifference<TField, T>(TField field, StraightLineProgram program, T[] point)
+        where TField : struct, IField<T> where T : struct
+    {
+        if (!Evaluator.TryPrepareConstants<TField, T>(field, program, out var constants)) return new RecheckResult(false, null, null);
         var registers = new T[program.Length];
-        if (!Evaluator.Evaluate<TField, T>(field, program, constants, point, registers))
-            return Undefined();
+        if (!Evaluator.Evaluate<TField, T>(field, program, constants, point, registers)) return new RecheckResult(false, null, null);
         for (var o = 0; o < program.Outputs.Length; o++)
         {
             var value = registers[program.Outputs[o]];
             if (!field.IsZero(value))
-                return new TrialRecord(seq, trialField, pointSeed, TrialOutcome.Nonzero, pointValues, field.ToCoefficients(value),
-                    program.OutputNames.Length > 0 ? program.OutputNames[o] : null, null, Elapsed(clock));
+                return new RecheckResult(true, field.ToCoefficients(value), program.OutputNames.Length > 0 ? program.OutputNames[o] : null);
         }
-        var bound = Evidence.TrialBoundLog2(identity.Bounds, field.SizeLog2, identity.Field.IsRationals ? (int)field.Characteristic.GetBitLength() : null);
-        return new TrialRecord(seq, trialField, pointSeed, TrialOutcome.Zero, pointValues, null, null, bound ?? 0, Elapsed(clock));
-
-        TrialRecord Undefined() =>
-            new(seq, trialField, pointSeed, TrialOutcome.Undefined, pointValues, null, null, null, Elapsed(clock));
+        return new RecheckResult(true, null, null);
     }
 
     private static long Elapsed(Stopwatch clock) => (long)(clock.Elapsed.TotalMicroseconds);

@@ -41,16 +41,7 @@ public static class WitnessChecker
                 throw new ArgumentException($"the witness gives no value for the variable '{program.Variables[i]}'");
             values[i] = field.FromCoefficients(coordinates);
         }
-        if (!Evaluator.TryPrepareConstants<TField, T>(field, program, out var constants)) return new RecheckResult(false, null, null);
-        var registers = new T[program.Length];
-        if (!Evaluator.Evaluate<TField, T>(field, program, constants, values, registers)) return new RecheckResult(false, null, null);
-        for (var o = 0; o < program.Outputs.Length; o++)
-        {
-            var v = registers[program.Outputs[o]];
-            if (!field.IsZero(v))
-                return new RecheckResult(true, field.ToCoefficients(v), program.OutputNames.Length > 0 ? program.OutputNames[o] : null);
-        }
-        return new RecheckResult(true, null, null);
+        return TrialRunner.EvaluateDifference<TField, T>(field, program, values);
     }
 
     /// <summary>

@@ -157,7 +157,7 @@ public static class BoundAnalysis
     }
 
     /// <summary>An upper bound on log2(2^a + 2^b).</summary>
-    internal static double LogAdd(double a, double b)
+    public static double LogAdd(double a, double b)
     {
         if (a == double.NegativeInfinity) return b;
         if (b == double.NegativeInfinity) return a;
@@ -166,9 +166,10 @@ public static class BoundAnalysis
         return hi + Math.Log2(1 + Math.Pow(2, lo - hi)) + 1e-9;
     }
 
-    /// <summary>An upper bound on log2(v) for v ≥ 1.</summary>
-    internal static double Log2Up(BigInteger v)
+    /// <summary>An upper bound on log2(v), slightly rounded up; −∞ for v ≤ 0.</summary>
+    public static double Log2Up(BigInteger v)
     {
+        if (v.Sign <= 0) return double.NegativeInfinity;
         if (v.IsOne) return 0;
         var bits = v.GetBitLength();
         if (bits <= 52) return Math.Log2((double)v) + 1e-12;
