@@ -52,7 +52,7 @@ internal static class DemoCommand
                 output.WriteLine();
                 output.WriteLine($"-- {title}");
                 output.WriteLine($"idq sql --db {path} \"{sql}\"");
-                QueryCommands.WriteTable(output, ReadOnlyQuery.Run(path, sql), maxWidth: 50);
+                QueryCommands.WriteTable(output, ReadOnlyQuery.Run(StoreLocation.Sqlite(path), sql), maxWidth: 50);
             }
             return ExitCodes.Success;
         });

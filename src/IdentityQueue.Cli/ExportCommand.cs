@@ -43,7 +43,7 @@ internal static class ExportCommand
                 return ExitCodes.BadInput;
             }
             var where = states.Length == 0 ? "" : $" WHERE r.state IN ({string.Join(",", states.Select(s => $"'{s}'"))})";
-            var rows = ReadOnlyQuery.Run(store.Path(parse), Query + where + " ORDER BY c.id");
+            var rows = ReadOnlyQuery.Run(store.Location(parse), Query + where + " ORDER BY c.id");
             using var file = parse.GetValue(outFile) is { } path ? new StreamWriter(path) : null;
             var writer = (TextWriter?)file ?? output;
             if (parse.GetValue(format) == "csv") QueryCommands.WriteCsv(writer, rows); else WriteJsonLines(writer, rows);

@@ -9,25 +9,39 @@ public static class InitCommand
     public static Command Create(TextWriter output, TextWriter error)
     {
         var store = new StoreOptions();
-        var command = new Command("init", "Create the store, or upgrade it by applying the migrations it lacks. Running it again does nothing.\n\n" +
-            "Example:\n  idq init --db results.db");
+        var command = new Command("init", "Create the store, or upgrade it by applying the migrations it lacks. Running it again does nothing.\n" +
+            "On PostgreSQL it also creates the queue's tables (schema 'hangfire'); run it once before any worker starts.\n\n" +
+            "Examples:\n  idq init --db results.db\n  idq init --postgres \"Host=db1;Database=idq;Username=idq;Password=secret\"");
         store.AddTo(command);
-        command.SetAction(parse => Execute(store.Path(parse), output, error));
+        command.SetAction(parse =>
+        {
+            if (store.Conflict(parse) is { } conflict)
+            {
+                error.WriteLine($"idq init: {conflict}");
+                return ExitCodes.BadInput;
+            }
+            return Execute(store.Location(parse), output, error);
+        });
         return command;
     }
 
-    internal static int Execute(string path, TextWriter output, TextWriter error)
+    internal static int Execute(string path, TextWriter output, TextWriter error) => Execute(StoreLocation.Sqlite(path), output, error);
+
+    internal static int Execute(StoreLocation location, TextWriter output, TextWriter error)
     {
+        var path = location.Display;
         try
         {
-            var existed = File.Exists(path);
-            using var store = StoreConnection.OpenSqlite(path, create: true);
+            var existed = location.IsPostgreSql || File.Exists(location.Target);
+            using var store = StoreConnection.Open(location, create: true);
             var before = store.CheckVersion();
             if (before.IsNewer)
             {
                 error.WriteLine($"idq init: {before.Message}");
                 return ExitCodes.BadInput;
             }
+            // Hangfire's own tables (idempotent; its installer takes a lock so a second init waits for the first).
+            if (location.IsPostgreSql) Worker.WorkerHost.InstallQueueSchema(StoreConnection.DataSource(location.Target));
             if (before.IsCurrent)
             {
                 output.WriteLine($"store {path} is up to date (migration {before.Latest})");
@@ -42,6 +56,11 @@ public static class InitCommand
         catch (StoreUnavailableException e)
         {
             error.WriteLine($"idq init: {e.Message}");
+            return ExitCodes.BadInput;
+        }
+        catch (Npgsql.NpgsqlException e)
+        {
+            error.WriteLine($"idq init: the PostgreSQL store {path} could not be initialised: {e.Message}");
             return ExitCodes.BadInput;
         }
     }

@@ -2,7 +2,8 @@ using System.CommandLine;
 using System.Globalization;
 using System.Text.Json;
 using IdentityQueue.Store;
-using Microsoft.Data.Sqlite;
+using IdentityQueue.Store.Work;
+using IdentityQueue.Worker;
 
 namespace IdentityQueue.Cli;
 
@@ -22,12 +23,17 @@ internal static class QueryCommands
         db.AddTo(command);
         command.SetAction(parse =>
         {
+            if (db.Conflict(parse) is { } conflict)
+            {
+                error.WriteLine($"idq sql: {conflict}");
+                return ExitCodes.BadInput;
+            }
             QueryResult result;
             try
             {
-                result = ReadOnlyQuery.Run(db.Path(parse), parse.GetValue(query)!);
+                result = ReadOnlyQuery.Run(db.Location(parse), parse.GetValue(query)!);
             }
-            catch (SqliteException e)
+            catch (System.Data.Common.DbException e)
             {
                 error.WriteLine($"idq sql: {e.Message}");
                 return ExitCodes.BadInput;
@@ -113,31 +119,34 @@ internal static class QueryCommands
         db.AddTo(command);
         command.SetAction(parse =>
         {
-            var path = db.Path(parse);
+            using var store = db.OpenCurrent(parse, "status", error);
+            if (store is null) return ExitCodes.BadInput;
+            var path = store.Location;
             try
             {
-                using (var store = StoreConnection.OpenSqlite(path)) store.EnsureCurrent();
                 var perCatalogue = ReadOnlyQuery.Run(path, """
                     SELECT k.name AS catalogue, r.state AS state, count(*) AS n
                     FROM result r JOIN candidate c ON c.id = r.candidate_id JOIN catalogue k ON k.id = c.catalogue_id
                     GROUP BY k.name, r.state ORDER BY k.name, r.state
                     """);
-                var recent = ReadOnlyQuery.Run(path, """
+                var recent = ReadOnlyQuery.Run(path, $"""
                     SELECT count(*) FROM result
-                    WHERE state IN ('refuted','survived','undecided','invalid','failed') AND updated_at >= datetime('now', '-60 seconds')
+                    WHERE state IN ('refuted','survived','undecided','invalid','failed') AND updated_at >= {store.SecondsAgo(60)}
                     """);
+                var workers = new WorkerRegistry(store).List(new WorkerSettings().DeadAfter);
                 var rate = Convert.ToDouble(recent.Rows[0][0], CultureInfo.InvariantCulture) / 60.0;
                 var byCatalogue = perCatalogue.Rows.GroupBy(r => (string)r[0]!)
                     .ToDictionary(g => g.Key, g => g.ToDictionary(r => (string)r[1]!, r => Convert.ToInt64(r[2], CultureInfo.InvariantCulture)));
                 var open = byCatalogue.Values.SelectMany(d => d).Where(kv => kv.Key is "pending" or "queued" or "screening").Sum(kv => kv.Value);
                 var eta = rate > 0 && open > 0 ? TimeSpan.FromSeconds(open / rate) : (TimeSpan?)null;
-                if (parse.GetValue(json)) WriteStatusJson(output, byCatalogue, rate, open, eta);
+                if (parse.GetValue(json)) WriteStatusJson(output, byCatalogue, rate, open, eta, workers);
                 else
                 {
                     var states = new[] { "pending", "queued", "screening", "refuted", "survived", "undecided", "invalid", "failed" };
                     var rows = byCatalogue.Select(kv => new object?[] { kv.Key }.Concat(states.Select(s => (object?)(kv.Value.TryGetValue(s, out var n) ? n : 0))).ToArray()).ToList();
                     WriteTable(output, new QueryResult(["catalogue", .. states], rows));
                     output.WriteLine($"throughput {rate * 60:F0} candidates settled in the last minute; {open} open" + (eta is { } e ? $", ETA {e:hh\\:mm\\:ss}" : ""));
+                    WriteWorkers(output, workers);
                 }
                 return ExitCodes.Success;
             }
@@ -150,7 +159,34 @@ internal static class QueryCommands
         return command;
     }
 
-    private static void WriteStatusJson(TextWriter output, Dictionary<string, Dictionary<string, long>> byCatalogue, double rate, long open, TimeSpan? eta)
+    /// <summary>The worker processes that have not signed off: live ones, and silent ones (presumed dead) so that they are noticed.</summary>
+    private static void WriteWorkers(TextWriter output, IReadOnlyList<WorkerInfo> workers)
+    {
+        if (workers.Count == 0)
+        {
+            output.WriteLine("no worker is running");
+            return;
+        }
+        output.WriteLine();
+        var now = DateTime.UtcNow;
+        WriteTable(output, new QueryResult(["worker", "host", "pid", "threads", "chunks done", "candidates done", "last heartbeat", "state"],
+            workers.Select(w => new object?[]
+            {
+                w.Name, w.Host, w.Pid, w.Threads, w.ChunksDone, w.CandidatesDone,
+                $"{Math.Max(0, (now - AsUtc(w.HeartbeatAt)).TotalSeconds):F0} s ago", w.Live ? "alive" : "silent (presumed dead)",
+            }).ToList()));
+    }
+
+    /// <summary>SQLite gives back its UTC text timestamps as unspecified-kind values; PostgreSQL as UTC or local.</summary>
+    private static DateTime AsUtc(DateTime t) => t.Kind switch
+    {
+        DateTimeKind.Utc => t,
+        DateTimeKind.Local => t.ToUniversalTime(),
+        _ => DateTime.SpecifyKind(t, DateTimeKind.Utc),
+    };
+
+    private static void WriteStatusJson(TextWriter output, Dictionary<string, Dictionary<string, long>> byCatalogue, double rate, long open, TimeSpan? eta,
+        IReadOnlyList<WorkerInfo> workers)
     {
         using var stream = new MemoryStream();
         using (var w = new Utf8JsonWriter(stream, new JsonWriterOptions { Indented = true }))
@@ -170,6 +206,21 @@ internal static class QueryCommands
             w.WriteNumber("open", open);
             w.WriteNumber("settledPerSecond", Math.Round(rate, 3));
             if (eta is { } e) w.WriteNumber("etaSeconds", Math.Round(e.TotalSeconds)); else w.WriteNull("etaSeconds");
+            w.WriteStartArray("workers");
+            foreach (var worker in workers)
+            {
+                w.WriteStartObject();
+                w.WriteString("name", worker.Name);
+                w.WriteString("host", worker.Host);
+                w.WriteNumber("pid", worker.Pid);
+                w.WriteNumber("threads", worker.Threads);
+                w.WriteNumber("chunksDone", worker.ChunksDone);
+                w.WriteNumber("candidatesDone", worker.CandidatesDone);
+                w.WriteString("lastHeartbeat", AsUtc(worker.HeartbeatAt).ToString("O", CultureInfo.InvariantCulture));
+                w.WriteBoolean("alive", worker.Live);
+                w.WriteEndObject();
+            }
+            w.WriteEndArray();
             w.WriteEndObject();
         }
         output.WriteLine(System.Text.Encoding.UTF8.GetString(stream.ToArray()));

@@ -5,6 +5,7 @@ using IdentityQueue.Store;
 using IdentityQueue.Store.Work;
 using IdentityQueue.Worker;
 using Microsoft.Extensions.DependencyInjection;
+using Microsoft.Extensions.Logging;
 using Spectre.Console;
 
 namespace IdentityQueue.Cli;
@@ -12,7 +13,7 @@ namespace IdentityQueue.Cli;
 /// <summary><c>idq run</c>, <c>idq worker</c> and <c>idq enqueue</c>: the batch, on an in-process Hangfire server.</summary>
 internal static class RunCommands
 {
-    private sealed record RunArgs(StoreOptions Db, Option<int?> Workers, Option<int?> Target, Option<int> Chunk);
+    private sealed record RunArgs(StoreOptions Db, Option<int?> Workers, Option<int?> Target, Option<int> Chunk, Option<int?> Invisibility);
 
     private static RunArgs Arguments(Command command, bool target)
     {
@@ -20,11 +21,17 @@ internal static class RunCommands
             new StoreOptions(),
             new Option<int?>("--workers") { Description = "Worker threads in this process (default: the number of cores)." },
             new Option<int?>("--target-bits") { Description = "Raise the evidence wanted to 2^-B; survivors short of it get more trials, nothing settled is redone." },
-            new Option<int>("--chunk-size") { Description = "Candidates per queue job.", DefaultValueFactory = _ => 1000 });
+            new Option<int>("--chunk-size") { Description = "Candidates per queue job.", DefaultValueFactory = _ => 1000 },
+            new Option<int?>("--invisibility-timeout")
+            {
+                HelpName = "SECONDS",
+                Description = "PostgreSQL only: a chunk whose worker died goes back to the queue this long after the worker's last sign of life (default 120).",
+            });
         args.Db.AddTo(command);
         command.Options.Add(args.Workers);
         if (target) command.Options.Add(args.Target);
         command.Options.Add(args.Chunk);
+        command.Options.Add(args.Invisibility);
         return args;
     }
 
@@ -59,12 +66,19 @@ internal static class RunCommands
 
     private static int Execute(ParseResult parse, RunArgs a, TextWriter output, TextWriter error, RunMode mode)
     {
-        var path = a.Db.Path(parse);
+        if (a.Db.Conflict(parse) is { } conflict)
+        {
+            error.WriteLine($"idq: {conflict}");
+            return ExitCodes.BadInput;
+        }
+        var location = a.Db.Location(parse);
+        var path = location.Display;
         var settings = new WorkerSettings
         {
             Workers = parse.GetValue(a.Workers) ?? Environment.ProcessorCount,
             ChunkSize = parse.GetValue(a.Chunk),
         };
+        if (parse.GetValue(a.Invisibility) is int seconds) settings = settings with { InvisibilityTimeout = TimeSpan.FromSeconds(seconds) };
         var problems = settings.Validate();
         var target = parse.GetValue(a.Target);
         if (target is < 1 or > 4096) problems = [.. problems, $"--target-bits must be between 1 and 4096, got {target}"];
@@ -75,15 +89,13 @@ internal static class RunCommands
         }
         try
         {
-            using (var store = StoreConnection.OpenSqlite(path))
+            using var store = StoreConnection.Open(location);
+            store.EnsureCurrent();
+            var queue = new WorkQueue(store);
+            if (target is int bits)
             {
-                store.EnsureCurrent();
-                var queue = new WorkQueue(store);
-                if (target is int bits)
-                {
-                    var reopened = queue.RaiseTarget(bits);
-                    if (reopened > 0) output.WriteLine($"target 2^-{bits}: {reopened} survivors get more trials");
-                }
+                var reopened = queue.RaiseTarget(bits);
+                if (reopened > 0) output.WriteLine($"target 2^-{bits}: {reopened} survivors get more trials");
             }
         }
         catch (StoreUnavailableException e)
@@ -93,14 +105,19 @@ internal static class RunCommands
         }
 
         var interactive = mode == RunMode.ToCompletion && !Console.IsOutputRedirected && ReferenceEquals(output, Console.Out);
-        using var session = WorkerSession.Open(path, settings, longRunning: mode == RunMode.UntilStopped, quiet: mode != RunMode.UntilStopped,
-            services => services.AddSingleton<IScreeningStore>(new SqliteWorkerStore(path, settings.Limits)), out var problem);
+        void AddStore(IServiceCollection services) => services.AddSingleton<IScreeningStore>(provider =>
+            new StoreWorkerBinding(location, settings.Limits, provider.GetRequiredService<ILoggerFactory>().CreateLogger("IdentityQueue.Store")));
+        string? problem = null;
+        using var session = location.IsPostgreSql
+            ? WorkerSession.OpenShared(QueueStorage.Shared(StoreConnection.DataSource(location.Target)), SharedLogPath,
+                settings, longRunning: mode == RunMode.UntilStopped, quiet: mode != RunMode.UntilStopped, AddStore)
+            : WorkerSession.Open(location.Target, settings, longRunning: mode == RunMode.UntilStopped, quiet: mode != RunMode.UntilStopped, AddStore, out problem);
         if (session is null)
         {
             if (mode == RunMode.EnqueueOnly)
             {
                 // A worker is running on this store: it plans pending work itself; make sure hand-inserted rows are seen.
-                using var store = StoreConnection.OpenSqlite(path);
+                using var store = StoreConnection.Open(location);
                 var added = new CandidateStore(store).EnsureResultRows();
                 output.WriteLine($"a worker is running on {path}; it will screen the pending candidates ({added} new rows made pending)");
                 return ExitCodes.Success;
@@ -138,9 +155,12 @@ internal static class RunCommands
         output.WriteLine($"  {final.Settled} of {final.Total} candidates settled in {clock.Elapsed.TotalSeconds:F1} s: " +
             $"{final.Refuted} refuted, {final.Survived} survived (very likely true), {final.Undecided} undecided, {final.Invalid} invalid, {final.Failed} failed");
         output.WriteLine("  Screening is evidence, not proof: each survivor's error bound is only as good as its degree bound.");
-        output.WriteLine($"  idq status --db {path}    idq sql \"select * from survivors\" --db {path}");
+        output.WriteLine($"  idq status {location.Option}    idq sql \"select * from survivors\" {location.Option}");
         return final.Failed > 0 ? ExitCodes.Found : ExitCodes.Success;
     }
+
+    /// <summary>The log of worker processes on a PostgreSQL store: in the working directory, shared by the processes there.</summary>
+    internal const string SharedLogPath = "idq-worker.log.jsonl";
 
     private static string Progress(StateCounts c, Stopwatch clock)
     {

@@ -22,7 +22,7 @@ internal static class ShowCommands
         {
             using var connection = store.OpenCurrent(parse, "show", error);
             if (connection is null) return ExitCodes.BadInput;
-            var path = store.Path(parse);
+            var path = store.Location(parse);
             var text = parse.GetValue(key)!;
             var idQuery = long.TryParse(text, NumberStyles.None, CultureInfo.InvariantCulture, out var id)
                 ? $"SELECT id FROM candidate WHERE id = {id}"
@@ -146,7 +146,7 @@ internal static class ShowCommands
                 error.WriteLine("idq recheck: give candidate ids or --all");
                 return ExitCodes.BadInput;
             }
-            var path = store.Path(parse);
+            var path = store.Location(parse);
             var targets = given.Length > 0 ? given.ToList()
                 : ReadOnlyQuery.Run(path, "SELECT candidate_id FROM result WHERE state = 'refuted' ORDER BY candidate_id")
                     .Rows.Select(r => Convert.ToInt64(r[0], CultureInfo.InvariantCulture)).ToList();

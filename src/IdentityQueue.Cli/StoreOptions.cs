@@ -4,13 +4,15 @@ using IdentityQueue.Store;
 namespace IdentityQueue.Cli;
 
 /// <summary>
-/// <c>--db PATH</c>, shared by every store command (SPEC §2): the SQLite file, else <c>IDQ_DB</c>, else
-/// <c>identityqueue.db</c> in the working directory. One instance per command.
+/// The store options shared by every store command (SPEC §2): <c>--postgres CONNSTRING</c> (else <c>IDQ_POSTGRES</c>) for
+/// a PostgreSQL store shared by many workers, otherwise <c>--db PATH</c> (else <c>IDQ_DB</c>, else
+/// <c>identityqueue.db</c> in the working directory) for a SQLite file. One instance per command.
 /// </summary>
 internal sealed class StoreOptions
 {
     public const string DefaultPath = "identityqueue.db";
     public const string EnvironmentVariable = "IDQ_DB";
+    public const string PostgresEnvironmentVariable = "IDQ_POSTGRES";
 
     public Option<string?> Db { get; } = new("--db")
     {
@@ -18,27 +20,50 @@ internal sealed class StoreOptions
         Description = $"The store, a SQLite file (default: ${EnvironmentVariable}, else {DefaultPath} in the working directory).",
     };
 
-    public void AddTo(Command command) => command.Options.Add(Db);
-
-    public string Path(ParseResult parse)
+    public Option<string?> Postgres { get; } = new("--postgres")
     {
-        var given = parse.GetValue(Db);
-        if (!string.IsNullOrEmpty(given)) return given;
-        var fromEnvironment = Environment.GetEnvironmentVariable(EnvironmentVariable);
-        return string.IsNullOrEmpty(fromEnvironment) ? DefaultPath : fromEnvironment;
+        HelpName = "CONNSTRING",
+        Description = $"A PostgreSQL store instead, shared by any number of workers (default: ${PostgresEnvironmentVariable}), e.g. \"Host=db1;Database=idq;Username=idq;Password=…\".",
+    };
+
+    public void AddTo(Command command)
+    {
+        command.Options.Add(Db);
+        command.Options.Add(Postgres);
     }
 
     /// <summary>
+    /// The store the options select: --postgres, then --db, then $IDQ_POSTGRES, then $IDQ_DB, then the default file. An
+    /// explicit option beats an environment variable, so --db works in a shell that exports IDQ_POSTGRES.
+    /// </summary>
+    public StoreLocation Location(ParseResult parse)
+    {
+        if (parse.GetValue(Postgres) is { Length: > 0 } postgres) return StoreLocation.PostgreSql(postgres);
+        if (parse.GetValue(Db) is { Length: > 0 } db) return StoreLocation.Sqlite(db);
+        if (Environment.GetEnvironmentVariable(PostgresEnvironmentVariable) is { Length: > 0 } fromEnvPostgres) return StoreLocation.PostgreSql(fromEnvPostgres);
+        var fromEnvironment = Environment.GetEnvironmentVariable(EnvironmentVariable);
+        return StoreLocation.Sqlite(string.IsNullOrEmpty(fromEnvironment) ? DefaultPath : fromEnvironment);
+    }
+
+    /// <summary>Null, after writing the problem to <paramref name="error"/>, when both --db and --postgres are given.</summary>
+    public string? Conflict(ParseResult parse) =>
+        parse.GetValue(Postgres) is { Length: > 0 } && parse.GetValue(Db) is { Length: > 0 } ? "give either --db or --postgres, not both" : null;
+
+    /// <summary>
     /// Opens the store for a command that needs it initialised and at this build's migration. Null, after writing
-    /// why to <paramref name="error"/> (missing, unreadable, or to be upgraded with <c>idq init</c>), when it cannot.
+    /// why to <paramref name="error"/> (missing, unreachable, or to be upgraded with <c>idq init</c>), when it cannot.
     /// </summary>
     public StoreConnection? OpenCurrent(ParseResult parse, string command, TextWriter error)
     {
-        var path = Path(parse);
+        if (Conflict(parse) is { } conflict)
+        {
+            error.WriteLine($"idq {command}: {conflict}");
+            return null;
+        }
         StoreConnection? store = null;
         try
         {
-            store = StoreConnection.OpenSqlite(path);
+            store = StoreConnection.Open(Location(parse));
             store.EnsureCurrent();
             return store;
         }

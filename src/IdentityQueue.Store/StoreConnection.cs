@@ -1,7 +1,9 @@
+using System.Collections.Concurrent;
 using System.Data.Common;
 using IdentityQueue.Store.Schema;
 using Microsoft.Data.Sqlite;
 using Microsoft.EntityFrameworkCore;
+using Npgsql;
 
 namespace IdentityQueue.Store;
 
@@ -17,32 +19,81 @@ public sealed class StoreUnavailableException(string message, Exception? inner =
 public sealed record StoreVersion(bool IsCurrent, bool IsNewer, string? Applied, string Latest, string? Message);
 
 /// <summary>
-/// One open connection to a store: a SQLite file in WAL journal mode with a busy timeout and foreign keys on.
-/// Opening is cheap; a connection is not thread-safe, so each worker thread opens its own. Owns the connection.
+/// One open connection to a store: a SQLite file in WAL journal mode with a busy timeout and foreign keys on, or a
+/// PostgreSQL connection from the process's one <see cref="NpgsqlDataSource"/> for that database. Opening is cheap
+/// (PostgreSQL connections come from the data source's pool); a connection is not thread-safe, so each worker thread
+/// opens its own. Owns the connection.
 /// </summary>
 public sealed class StoreConnection : IDisposable
 {
     /// <summary>The assembly holding the SQLite migrations; it must be deployed beside the application.</summary>
     public const string SqliteMigrationsAssembly = "IdentityQueue.Migrations.Sqlite";
 
+    /// <summary>The assembly holding the PostgreSQL migrations; it must be deployed beside the application.</summary>
+    public const string PostgreSqlMigrationsAssembly = "IdentityQueue.Migrations.PostgreSql";
+
     /// <summary>How long a statement waits for another connection's write lock before failing.</summary>
     public static readonly TimeSpan BusyTimeout = TimeSpan.FromSeconds(10);
 
-    private readonly SqliteConnection _connection;
+    private static readonly ConcurrentDictionary<string, NpgsqlDataSource> DataSources = new(StringComparer.Ordinal);
+
+    private readonly DbConnection _connection;
     private readonly DbContextOptions<IdentityStoreContext> _options;
 
-    private StoreConnection(string path, SqliteConnection connection)
+    private StoreConnection(StoreLocation location, DbConnection connection)
     {
-        Path = path;
+        Location = location;
         _connection = connection;
-        _options = ContextOptions(connection);
+        _options = location.IsPostgreSql ? PostgreSqlContextOptions(connection) : ContextOptions(connection);
     }
 
-    /// <summary>The store's file path as given.</summary>
-    public string Path { get; }
+    /// <summary>Where the store is.</summary>
+    public StoreLocation Location { get; }
+
+    /// <summary>The store as given, safe to print: a file path, or a PostgreSQL address without credentials.</summary>
+    public string Path => Location.Display;
+
+    /// <summary>Whether this is a PostgreSQL store (SQL that differs between the two asks this).</summary>
+    public bool IsPostgreSql => Location.IsPostgreSql;
 
     /// <summary>The open connection, for commands the EF model does not express (bulk inserts, upserts).</summary>
     public DbConnection Connection => _connection;
+
+    /// <summary>Opens the store at <paramref name="location"/>; see <see cref="OpenSqlite"/> and <see cref="OpenPostgreSql"/>.</summary>
+    public static StoreConnection Open(StoreLocation location, bool create = false) =>
+        location.IsPostgreSql ? OpenPostgreSql(location.Target) : OpenSqlite(location.Target, create);
+
+    /// <summary>
+    /// The process's data source for a PostgreSQL connection string: one per database and process, shared by the store's
+    /// connections and the queue's (Hangfire's), so that one pool serves them all. Its size is the connection string's
+    /// <c>Maximum Pool Size</c> (Npgsql's default 100).
+    /// </summary>
+    public static NpgsqlDataSource DataSource(string connectionString) =>
+        DataSources.GetOrAdd(connectionString, static c => NpgsqlDataSource.Create(c));
+
+    /// <summary>Opens a connection to the PostgreSQL store; a server that cannot be reached is a <see cref="StoreUnavailableException"/>.</summary>
+    public static StoreConnection OpenPostgreSql(string connectionString)
+    {
+        ArgumentException.ThrowIfNullOrEmpty(connectionString);
+        var location = StoreLocation.PostgreSql(connectionString);
+        NpgsqlDataSource source;
+        try
+        {
+            source = DataSource(connectionString);
+        }
+        catch (ArgumentException e)
+        {
+            throw new StoreUnavailableException($"the PostgreSQL connection string is not valid: {e.Message}", e);
+        }
+        try
+        {
+            return new StoreConnection(location, source.OpenConnection());
+        }
+        catch (Exception e) when (e is NpgsqlException or System.Net.Sockets.SocketException or TimeoutException)
+        {
+            throw new StoreUnavailableException($"cannot connect to the PostgreSQL store {location.Display}: {e.Message}", e);
+        }
+    }
 
     /// <summary>
     /// Opens the SQLite store at <paramref name="path"/>. With <paramref name="create"/> a missing file is created
@@ -76,13 +127,16 @@ public sealed class StoreConnection : IDisposable
             connection.Dispose();
             throw new StoreUnavailableException($"cannot open the store '{path}': {e.Message}", e);
         }
-        return new StoreConnection(path, connection);
+        return new StoreConnection(StoreLocation.Sqlite(path), connection);
     }
 
     /// <summary>A new EF context on this connection (the caller disposes it; the connection stays open).</summary>
     public IdentityStoreContext CreateContext() => new(_options);
 
-    /// <summary>Applies every migration not yet applied (idempotent; concurrent callers are serialised by EF's migration lock).</summary>
+    /// <summary>
+    /// Applies every migration not yet applied. Idempotent; concurrent callers are serialised by EF's migration lock, but
+    /// <c>idq init</c> is meant to run once before any worker starts.
+    /// </summary>
     public void Migrate()
     {
         using var context = CreateContext();
@@ -95,28 +149,29 @@ public sealed class StoreConnection : IDisposable
         using var context = CreateContext();
         var known = context.Database.GetMigrations().ToList();
         if (known.Count == 0)
-            throw new InvalidOperationException($"no migrations found: the assembly {SqliteMigrationsAssembly} is not deployed with the application");
+            throw new InvalidOperationException($"no migrations found: the assembly {(IsPostgreSql ? PostgreSqlMigrationsAssembly : SqliteMigrationsAssembly)} is not deployed with the application");
         var latest = known[^1];
         List<string> applied;
         try
         {
             applied = context.Database.GetAppliedMigrations().ToList();
         }
-        catch (SqliteException e)
+        catch (DbException e)
         {
             throw new StoreUnavailableException($"cannot read the store '{Path}': {e.Message}", e);
         }
+        var init = $"idq init {Location.Option}";
         var last = applied.Count == 0 ? null : applied[^1];
         var unknown = applied.Except(known, StringComparer.Ordinal).ToList();
         if (unknown.Count > 0)
             return new StoreVersion(false, true, last, latest,
                 $"the store '{Path}' was upgraded by a newer idq (migration {unknown[^1]}); use that version of idq");
         if (applied.Count == 0)
-            return new StoreVersion(false, false, null, latest, $"'{Path}' is not an initialised store: run 'idq init --db {Path}'");
+            return new StoreVersion(false, false, null, latest, $"'{Path}' is not an initialised store: run '{init}'");
         var pending = known.Except(applied, StringComparer.Ordinal).Count();
         if (pending > 0)
             return new StoreVersion(false, false, last, latest,
-                $"the store '{Path}' is at migration {last}, {pending} behind this idq ({latest}): run 'idq init --db {Path}' to upgrade it");
+                $"the store '{Path}' is at migration {last}, {pending} behind this idq ({latest}): run '{init}' to upgrade it");
         return new StoreVersion(true, false, last, latest, null);
     }
 
@@ -132,6 +187,29 @@ public sealed class StoreConnection : IDisposable
         new DbContextOptionsBuilder<IdentityStoreContext>()
             .UseSqlite(connection, sqlite => sqlite.MigrationsAssembly(SqliteMigrationsAssembly))
             .Options;
+
+    /// <summary>The EF options for a PostgreSQL connection, with the migrations in <see cref="PostgreSqlMigrationsAssembly"/>.</summary>
+    public static DbContextOptions<IdentityStoreContext> PostgreSqlContextOptions(DbConnection connection) =>
+        new DbContextOptionsBuilder<IdentityStoreContext>()
+            .UseNpgsql(connection, npgsql => npgsql.MigrationsAssembly(PostgreSqlMigrationsAssembly))
+            .Options;
+
+    // ---- The few places where the two SQL dialects differ. ----
+
+    /// <summary>
+    /// A condition "<paramref name="column"/> is one of the ids in <paramref name="parameter"/>", whose value is
+    /// <see cref="IdList"/>: SQLite reads a JSON array with json_each, PostgreSQL takes a bigint[] with = ANY.
+    /// </summary>
+    internal string IdIn(string column, string parameter) =>
+        IsPostgreSql ? $"{column} = ANY({parameter})" : $"{column} IN (SELECT value FROM json_each({parameter}))";
+
+    /// <summary>The parameter value for <see cref="IdIn"/>.</summary>
+    internal object IdList(IEnumerable<long> ids) =>
+        IsPostgreSql ? ids.ToArray() : "[" + string.Join(',', ids) + "]";
+
+    /// <summary>SQL for "now minus <paramref name="seconds"/> seconds", comparable with the store's timestamps.</summary>
+    public string SecondsAgo(int seconds) =>
+        IsPostgreSql ? $"(now() - interval '{seconds} seconds')" : $"datetime('now', '-{seconds} seconds')";
 
     public void Dispose() => _connection.Dispose();
 }

@@ -35,6 +35,41 @@ public interface IScreeningStore
 
     /// <summary>Counts of candidates by state.</summary>
     StateCounts Counts();
+
+    /// <summary>
+    /// Recovery for a store shared by several worker processes: returns to pending only the work of workers whose
+    /// heartbeat is older than <paramref name="deadAfter"/>, and candidates queued longer than
+    /// <paramref name="queuedStaleAfter"/> (orphans of a planner that died). Returns how many were returned.
+    /// </summary>
+    int RecoverShared(TimeSpan deadAfter, TimeSpan queuedStaleAfter);
+
+    /// <summary>Returns what <paramref name="worker"/> still has claimed to pending (it is stopping).</summary>
+    int ReleaseClaimsOf(string worker);
+
+    /// <summary>Registers this worker process (host:pid and thread count) in the store's worker table.</summary>
+    void RegisterWorker(string name, int threads);
+
+    /// <summary>Beats the worker's heartbeat with its counters; with <paramref name="stopped"/>, signs it off.</summary>
+    void Heartbeat(string name, long chunksDone, long candidatesDone, bool stopped = false);
+
+    /// <summary>Worker threads of all live worker processes on the store (at least this one's once registered).</summary>
+    int LiveThreads(TimeSpan deadAfter);
+}
+
+/// <summary>What this process has done, for its heartbeat. Thread-safe.</summary>
+public sealed class WorkerStats
+{
+    private long _chunks, _candidates;
+
+    public long ChunksDone => Interlocked.Read(ref _chunks);
+
+    public long CandidatesDone => Interlocked.Read(ref _candidates);
+
+    public void ChunkDone(int candidates)
+    {
+        Interlocked.Increment(ref _chunks);
+        Interlocked.Add(ref _candidates, candidates);
+    }
 }
 
 /// <summary>Candidates taken for one stage.</summary>

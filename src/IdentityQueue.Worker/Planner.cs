@@ -7,8 +7,10 @@ namespace IdentityQueue.Worker;
 /// Keeps the queue fed: takes pending candidates of the earliest stage from the store and enqueues them in chunks, so
 /// that every candidate's cheap first trial runs before survivors move on to larger fields. Thread-safe through the store.
 /// </summary>
-public sealed class Planner(IScreeningStore store, IBackgroundJobClient jobs, WorkerSettings settings, ILogger<Planner> log)
+public sealed class Planner(IScreeningStore store, IBackgroundJobClient jobs, WorkerSettings settings, HostPlan plan, ILogger<Planner> log)
 {
+    private readonly bool _shared = plan.Queue.IsShared;
+
     /// <summary>
     /// Enqueues more work when fewer than three chunks per worker are in flight (or everything pending, with
     /// <paramref name="all"/>); returns the candidates enqueued. When nothing is pending it first looks for candidates
@@ -18,7 +20,9 @@ public sealed class Planner(IScreeningStore store, IBackgroundJobClient jobs, Wo
     {
         var counts = store.Counts();
         if (counts.Pending == 0 && counts.InFlight == 0 && store.EnsureResultRows() > 0) counts = store.Counts();
-        var room = all ? long.MaxValue : (long)settings.Workers * 3 * settings.ChunkSize - counts.InFlight;
+        // On a shared store every live worker process counts: the queue is theirs together.
+        var threads = _shared ? Math.Max(settings.Workers, store.LiveThreads(settings.DeadAfter)) : settings.Workers;
+        var room = all ? long.MaxValue : (long)threads * 3 * settings.ChunkSize - counts.InFlight;
         if (room < settings.ChunkSize || counts.Pending == 0) return 0;
         // Checkpoint: TakePending marks the candidates queued before their jobs exist; dying in between leaves them
         // queued with no job, and start-up recovery returns them to pending.

@@ -11,7 +11,7 @@ namespace IdentityQueue.Worker;
 /// halfway (at-least-once delivery): settled candidates are skipped, trials are keyed (candidate, seq) with points derived
 /// from the catalogue's seed, so a second run recomputes exactly what the first stored and stores nothing twice.
 /// </summary>
-public sealed class ScreeningJob(IScreeningStore store, WorkerSettings settings, ILogger<ScreeningJob> log)
+public sealed class ScreeningJob(IScreeningStore store, WorkerSettings settings, WorkerStats stats, ILogger<ScreeningJob> log)
 {
     /// <summary>Outcomes written per transaction.</summary>
     public const int SaveBatch = 250;
@@ -43,6 +43,7 @@ public sealed class ScreeningJob(IScreeningStore store, WorkerSettings settings,
             // at the next start, and are screened again with the same seeds, giving the same trials.
         }
         store.Save(outcomes, settings.WorkerName);
+        stats.ChunkDone(claimed.Count);
     }
 
     /// <summary>Screens one candidate; a deterministic failure of this candidate is its outcome, never the chunk's.</summary>

@@ -1,28 +1,34 @@
-
 using Microsoft.Extensions.DependencyInjection;
 using Microsoft.Extensions.Hosting;
 
 namespace IdentityQueue.Worker;
 
 /// <summary>
-/// One worker process on one SQLite store: holds the store's worker lock, recovers work claimed by a dead process,
-/// rebuilds the queue from the store, and runs the Hangfire server until the batch is settled (<see cref="RunToCompletion"/>)
-/// or until it is told to stop (<see cref="RunUntilStopped"/>). Not thread-safe; one per process.
+/// One worker process on one store. On a SQLite store it holds the store's worker lock, returns work claimed by a dead
+/// process to pending and rebuilds the queue from the store; on a shared (PostgreSQL) store any number of processes run
+/// side by side, and only the work of workers whose heartbeat stopped is returned. It runs the Hangfire server until the
+/// batch is settled (<see cref="RunToCompletion"/>) or until it is told to stop (<see cref="RunUntilStopped"/>).
+/// Not thread-safe; one per process.
 /// </summary>
 public sealed class WorkerSession : IDisposable
 {
-    private readonly StoreLock _lock;
+    private readonly StoreLock? _lock;
     private readonly IHost _host;
+    private readonly bool _shared;
 
-    private WorkerSession(StoreLock storeLock, IHost host)
+    private WorkerSession(StoreLock? storeLock, IHost host, bool shared)
     {
         _lock = storeLock;
         _host = host;
+        _shared = shared;
     }
 
     public IScreeningStore Store => _host.Services.GetRequiredService<IScreeningStore>();
 
-    /// <summary>Opens a session, or gives the reason it cannot (another worker holds the store).</summary>
+    /// <summary>
+    /// Opens a session on a SQLite store at <paramref name="storePath"/> (queue and log files beside it), or gives the
+    /// reason it cannot (another worker holds the store).
+    /// </summary>
     public static WorkerSession? Open(string storePath, WorkerSettings settings, bool longRunning, bool quiet,
         Action<IServiceCollection> addStore, out string? problem)
     {
@@ -32,12 +38,26 @@ public sealed class WorkerSession : IDisposable
         // We hold the store alone: whatever the queue file holds belongs to a dead process. The store is the truth;
         // the queue is rebuilt from it, and claims of the dead process go back to pending.
         WorkerHost.ResetQueue(queuePath);
-        var plan = new HostPlan(queuePath, storePath + ".log.jsonl",
-            quiet ? Serilog.Events.LogEventLevel.Warning : Serilog.Events.LogEventLevel.Information, RunPlannerService: longRunning);
-        var host = WorkerHost.Build(settings, plan, addStore);
+        var host = WorkerHost.Build(settings, Plan(QueueStorage.Sqlite(queuePath), storePath + ".log.jsonl", longRunning, quiet), addStore);
         host.Services.GetRequiredService<IScreeningStore>().Recover();
-        return new WorkerSession(storeLock, host);
+        return new WorkerSession(storeLock, host, shared: false);
     }
+
+    /// <summary>
+    /// Opens a session on a shared store whose queue is <paramref name="queue"/> (PostgreSQL): no lock, and recovery
+    /// touches only the work of dead workers. The log goes to <paramref name="logPath"/> (shared by processes on one machine).
+    /// </summary>
+    public static WorkerSession OpenShared(QueueStorage queue, string logPath, WorkerSettings settings, bool longRunning, bool quiet,
+        Action<IServiceCollection> addStore)
+    {
+        if (!queue.IsShared) throw new ArgumentException("not a shared queue", nameof(queue));
+        var host = WorkerHost.Build(settings, Plan(queue, logPath, longRunning, quiet), addStore);
+        host.Services.GetRequiredService<IScreeningStore>().RecoverShared(settings.DeadAfter, settings.QueuedStaleAfter);
+        return new WorkerSession(null, host, shared: true);
+    }
+
+    private static HostPlan Plan(QueueStorage queue, string logPath, bool longRunning, bool quiet) =>
+        new(queue, logPath, quiet ? Serilog.Events.LogEventLevel.Warning : Serilog.Events.LogEventLevel.Information, RunPlannerService: longRunning);
 
     /// <summary>Runs until every candidate has a final state, reporting progress; returns the final counts.</summary>
     public StateCounts RunToCompletion(Action<StateCounts> progress, TimeSpan reportEvery, CancellationToken cancellation)
@@ -50,14 +70,25 @@ public sealed class WorkerSession : IDisposable
         StateCounts counts;
         while (true)
         {
-            planner.Plan();
-            counts = store.Counts();
+            try
+            {
+                planner.Plan();
+                counts = store.Counts();
+            }
+            catch (Exception e) when (_shared && e is not OutOfMemoryException)
+            {
+                // The database is away (the store's own retries gave up for now): wait and look again.
+                Console.Error.WriteLine($"idq: the store is unreachable ({e.Message}); retrying");
+                cancellation.WaitHandle.WaitOne(settings.HeartbeatInterval);
+                if (cancellation.IsCancellationRequested) break;
+                continue;
+            }
             if (DateTime.UtcNow - lastReport >= reportEvery) { progress(counts); lastReport = DateTime.UtcNow; }
             if (counts.Pending + counts.InFlight == 0 || cancellation.IsCancellationRequested) break;
             cancellation.WaitHandle.WaitOne(settings.PlanInterval);
         }
         _host.StopAsync(TimeSpan.FromSeconds(60)).GetAwaiter().GetResult();
-        store.Recover();
+        AfterStop(settings);
         counts = store.Counts();
         progress(counts);
         return counts;
@@ -68,8 +99,18 @@ public sealed class WorkerSession : IDisposable
     {
         _host.Start();
         _host.WaitForShutdown();
-        // Stopped: in-flight chunks saved what they screened and released the rest; queued work goes back to pending.
-        Store.Recover();
+        AfterStop(_host.Services.GetRequiredService<WorkerSettings>());
+    }
+
+    /// <summary>
+    /// Stopped: in-flight chunks saved what they screened and released the rest. On a SQLite store, queued work goes back to
+    /// pending (the queue file is rebuilt at the next start); on a shared store queued chunks stay in the queue for the
+    /// other workers, and only this worker's leftover claims are returned.
+    /// </summary>
+    private void AfterStop(WorkerSettings settings)
+    {
+        if (_shared) Store.ReleaseClaimsOf(settings.WorkerName);
+        else Store.Recover();
     }
 
     /// <summary>Enqueues the pending work without running it (<c>idq enqueue</c>); returns the candidates enqueued.</summary>
@@ -85,7 +126,6 @@ public sealed class WorkerSession : IDisposable
     public void Dispose()
     {
         (_host as IDisposable)?.Dispose();
-        _lock.Dispose();
+        _lock?.Dispose();
     }
-
 }

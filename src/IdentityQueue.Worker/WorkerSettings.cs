@@ -22,6 +22,24 @@ public sealed record WorkerSettings
     /// <summary>How often the planner looks for work to enqueue.</summary>
     public TimeSpan PlanInterval { get; init; } = TimeSpan.FromMilliseconds(200);
 
+    /// <summary>How often the worker writes its heartbeat (and, on a shared store, looks for dead workers' claims).</summary>
+    public TimeSpan HeartbeatInterval { get; init; } = TimeSpan.FromSeconds(5);
+
+    /// <summary>A worker whose heartbeat is older than this is presumed dead: its claims may go back to pending.</summary>
+    public TimeSpan DeadAfter { get; init; } = TimeSpan.FromSeconds(60);
+
+    /// <summary>Candidates queued this long without being claimed are orphans of a planner that died; they go back to pending.</summary>
+    public TimeSpan QueuedStaleAfter { get; init; } = TimeSpan.FromHours(2);
+
+    /// <summary>
+    /// PostgreSQL queue only: a fetched job whose worker stops extending its fetch this long is handed to another worker
+    /// (Hangfire.PostgreSql's sliding invisibility timeout: a live worker keeps extending it, however long the chunk runs).
+    /// </summary>
+    public TimeSpan InvisibilityTimeout { get; init; } = TimeSpan.FromMinutes(2);
+
+    /// <summary>PostgreSQL queue only: how often an idle worker thread asks the queue for a job.</summary>
+    public TimeSpan QueuePollInterval { get; init; } = TimeSpan.FromSeconds(2);
+
     /// <summary>A message for each invalid setting; empty when all are fine.</summary>
     public IReadOnlyList<string> Validate()
     {
@@ -29,6 +47,8 @@ public sealed record WorkerSettings
         if (Workers < 1 || Workers > 256) problems.Add($"--workers must be between 1 and 256, got {Workers}");
         if (ChunkSize < 1 || ChunkSize > 100_000) problems.Add($"--chunk-size must be between 1 and 100000, got {ChunkSize}");
         if (TargetBits < 1 || TargetBits > 4096) problems.Add($"--target-bits must be between 1 and 4096, got {TargetBits}");
+        if (InvisibilityTimeout < TimeSpan.FromSeconds(5)) problems.Add($"the invisibility timeout must be at least 5 s, got {InvisibilityTimeout.TotalSeconds} s");
+        if (DeadAfter < 3 * HeartbeatInterval) problems.Add($"dead-after ({DeadAfter.TotalSeconds} s) must be at least three heartbeats ({HeartbeatInterval.TotalSeconds} s each)");
         return problems;
     }
 }

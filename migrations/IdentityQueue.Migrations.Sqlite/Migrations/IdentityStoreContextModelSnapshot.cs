@@ -341,6 +341,59 @@ namespace IdentityQueue.Migrations.Sqlite.Migrations
                         });
                 });
 
+            modelBuilder.Entity("IdentityQueue.Store.Schema.WorkerRow", b =>
+                {
+                    b.Property<string>("Name")
+                        .HasColumnType("TEXT")
+                        .HasColumnName("name");
+
+                    b.Property<long>("CandidatesDone")
+                        .ValueGeneratedOnAdd()
+                        .HasColumnType("INTEGER")
+                        .HasDefaultValue(0L)
+                        .HasColumnName("candidates_done");
+
+                    b.Property<long>("ChunksDone")
+                        .ValueGeneratedOnAdd()
+                        .HasColumnType("INTEGER")
+                        .HasDefaultValue(0L)
+                        .HasColumnName("chunks_done");
+
+                    b.Property<DateTime>("HeartbeatAt")
+                        .ValueGeneratedOnAdd()
+                        .HasColumnType("TEXT")
+                        .HasColumnName("heartbeat_at")
+                        .HasDefaultValueSql("CURRENT_TIMESTAMP");
+
+                    b.Property<string>("Host")
+                        .IsRequired()
+                        .HasColumnType("TEXT")
+                        .HasColumnName("host");
+
+                    b.Property<int>("Pid")
+                        .HasColumnType("INTEGER")
+                        .HasColumnName("pid");
+
+                    b.Property<DateTime>("StartedAt")
+                        .ValueGeneratedOnAdd()
+                        .HasColumnType("TEXT")
+                        .HasColumnName("started_at")
+                        .HasDefaultValueSql("CURRENT_TIMESTAMP");
+
+                    b.Property<DateTime?>("StoppedAt")
+                        .HasColumnType("TEXT")
+                        .HasColumnName("stopped_at");
+
+                    b.Property<int>("Threads")
+                        .HasColumnType("INTEGER")
+                        .HasColumnName("threads");
+
+                    b.HasKey("Name")
+                        .HasName("pk_worker");
+
+                    b.ToTable("worker", (string)null);
+                });
+
             modelBuilder.Entity("IdentityQueue.Store.Schema.CandidateRow", b =>
                 {
                     b.HasOne("IdentityQueue.Store.Schema.CatalogueRow", null)

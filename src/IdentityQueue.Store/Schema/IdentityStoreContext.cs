@@ -15,6 +15,7 @@ public sealed class IdentityStoreContext(DbContextOptions<IdentityStoreContext> 
     public DbSet<ResultRow> Results => Set<ResultRow>();
     public DbSet<TrialRow> Trials => Set<TrialRow>();
     public DbSet<RejectionRow> Rejections => Set<RejectionRow>();
+    public DbSet<WorkerRow> Workers => Set<WorkerRow>();
 
     private const string Now = "CURRENT_TIMESTAMP";
 
@@ -124,6 +125,21 @@ public sealed class IdentityStoreContext(DbContextOptions<IdentityStoreContext> 
             e.HasOne<CatalogueRow>().WithMany().HasForeignKey(x => x.CatalogueId)
                 .HasConstraintName("fk_rejection_catalogue").OnDelete(DeleteBehavior.Cascade);
             e.HasIndex(x => new { x.CatalogueId, x.Line }).HasDatabaseName("ix_rejection_catalogue_line");
+        });
+
+        modelBuilder.Entity<WorkerRow>(e =>
+        {
+            e.ToTable("worker");
+            e.HasKey(x => x.Name).HasName("pk_worker");
+            e.Property(x => x.Name).HasColumnName("name");
+            e.Property(x => x.Host).HasColumnName("host");
+            e.Property(x => x.Pid).HasColumnName("pid");
+            e.Property(x => x.Threads).HasColumnName("threads");
+            e.Property(x => x.StartedAt).HasColumnName("started_at").HasDefaultValueSql(Now);
+            e.Property(x => x.HeartbeatAt).HasColumnName("heartbeat_at").HasDefaultValueSql(Now);
+            e.Property(x => x.ChunksDone).HasColumnName("chunks_done").HasDefaultValue(0L);
+            e.Property(x => x.CandidatesDone).HasColumnName("candidates_done").HasDefaultValue(0L);
+            e.Property(x => x.StoppedAt).HasColumnName("stopped_at");
         });
     }
 }

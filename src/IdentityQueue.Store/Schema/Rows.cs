@@ -102,3 +102,23 @@ public sealed class RejectionRow
     public required string Raw { get; set; }
     public required string Reason { get; set; }
 }
+
+/// <summary>
+/// A row of <c>worker</c>: one worker process (host:pid) with its heartbeat, so that <c>idq status</c> can show who is
+/// working and recovery can tell a dead worker's claims from a live one's. Not part of SPEC §4's stable face.
+/// </summary>
+public sealed class WorkerRow
+{
+    /// <summary>host:pid, as in claimed_by and trial.worker.</summary>
+    public required string Name { get; set; }
+    public required string Host { get; set; }
+    public int Pid { get; set; }
+    /// <summary>Worker threads (Hangfire workers) in the process.</summary>
+    public int Threads { get; set; }
+    public DateTime StartedAt { get; set; }
+    public DateTime HeartbeatAt { get; set; }
+    public long ChunksDone { get; set; }
+    public long CandidatesDone { get; set; }
+    /// <summary>When it stopped gracefully; null while it runs (or after it died).</summary>
+    public DateTime? StoppedAt { get; set; }
+}

@@ -13,6 +13,7 @@ public sealed record ClaimedCandidate(StoredCandidate Candidate, IReadOnlyList<S
 /// </summary>
 public sealed class WorkQueue(StoreConnection store)
 {
+    private readonly StoreConnection _store = store;
     private readonly DbConnection _db = store.Connection;
     private readonly CandidateStore _candidates = new(store);
 
@@ -37,6 +38,41 @@ public sealed class WorkQueue(StoreConnection store)
             UPDATE result SET state = '{ResultStates.Pending}', claimed_by = NULL, claimed_at = NULL, updated_at = CURRENT_TIMESTAMP
             WHERE state IN ('{ResultStates.Queued}', '{ResultStates.Screening}')
             """);
+        return command.ExecuteNonQuery();
+    }
+
+    /// <summary>
+    /// Recovery for a store that several worker processes share (PostgreSQL): result rows for hand-inserted candidates;
+    /// candidates being screened by a worker whose heartbeat is older than <paramref name="deadAfter"/> (or that has no
+    /// worker row) go back to pending once their claim is older than <paramref name="deadAfter"/> too; and candidates
+    /// queued longer than <paramref name="queuedStaleAfter"/> (their planner died between marking them queued and
+    /// enqueuing their job) go back to pending. A live worker's work is never touched. Work returned here while its
+    /// queue job still exists is screened twice at worst, which the idempotent saves make harmless. Returns the
+    /// candidates returned.
+    /// </summary>
+    public int RecoverShared(TimeSpan deadAfter, TimeSpan queuedStaleAfter)
+    {
+        _candidates.EnsureResultRows();
+        var dead = (int)Math.Ceiling(deadAfter.TotalSeconds);
+        var stale = (int)Math.Ceiling(queuedStaleAfter.TotalSeconds);
+        using var command = _db.Command($"""
+            UPDATE result SET state = '{ResultStates.Pending}', claimed_by = NULL, claimed_at = NULL, updated_at = CURRENT_TIMESTAMP
+            WHERE (state = '{ResultStates.Screening}' AND (claimed_at IS NULL OR claimed_at < {_store.SecondsAgo(dead)})
+                   AND (claimed_by IS NULL OR claimed_by NOT IN (
+                        SELECT name FROM worker WHERE stopped_at IS NULL AND heartbeat_at >= {_store.SecondsAgo(dead)})))
+               OR (state = '{ResultStates.Queued}' AND updated_at < {_store.SecondsAgo(stale)})
+            """);
+        return command.ExecuteNonQuery();
+    }
+
+    /// <summary>Returns the candidates that <paramref name="worker"/> still has claimed to pending (it is stopping).</summary>
+    public int ReleaseClaimsOf(string worker)
+    {
+        using var command = _db.Command($"""
+            UPDATE result SET state = '{ResultStates.Pending}', claimed_by = NULL, claimed_at = NULL, updated_at = CURRENT_TIMESTAMP
+            WHERE state = '{ResultStates.Screening}' AND claimed_by = @worker
+            """);
+        command.Parameter("@worker", worker);
         return command.ExecuteNonQuery();
     }
 
@@ -71,18 +107,23 @@ public sealed class WorkQueue(StoreConnection store)
         using var transaction = _db.BeginTransaction();
         foreach (var (stage, condition) in new[] { (1, "trials_zero = 0"), (2, "trials_zero > 0") })
         {
+            // One statement takes the rows, so that two planners (worker processes sharing a PostgreSQL store) never take
+            // the same candidate: there the inner select locks what it takes and skips rows another planner is taking.
+            // SQLite has one writer at a time and no row locks.
+            var lockRows = _store.IsPostgreSql ? " FOR UPDATE SKIP LOCKED" : "";
+            using var take = _db.Command($"""
+                UPDATE result SET state = '{ResultStates.Queued}', updated_at = CURRENT_TIMESTAMP
+                WHERE candidate_id IN (SELECT candidate_id FROM result WHERE state = '{ResultStates.Pending}' AND {condition}
+                                       ORDER BY candidate_id LIMIT @max{lockRows})
+                RETURNING candidate_id
+                """, transaction);
+            take.Parameter("@max", max);
             var ids = new List<long>();
-            using (var select = _db.Command($"SELECT candidate_id FROM result WHERE state = '{ResultStates.Pending}' AND {condition} ORDER BY candidate_id LIMIT @max", transaction))
-            {
-                select.Parameter("@max", max);
-                using var r = select.ExecuteReader();
+            using (var r = take.ExecuteReader())
                 while (r.Read()) ids.Add(r.GetInt64(0));
-            }
             if (ids.Count == 0) continue;
-            using var update = _db.Command($"UPDATE result SET state = '{ResultStates.Queued}', updated_at = CURRENT_TIMESTAMP WHERE candidate_id IN (SELECT value FROM json_each(@ids))", transaction);
-            update.Parameter("@ids", "[" + string.Join(',', ids) + "]");
-            update.ExecuteNonQuery();
             transaction.Commit();
+            ids.Sort();
             return (stage, ids);
         }
         transaction.Commit();
@@ -97,26 +138,26 @@ public sealed class WorkQueue(StoreConnection store)
         // One statement claims the chunk and says which candidates were still open.
         using var command = _db.Command($"""
             UPDATE result SET state = '{ResultStates.Screening}', claimed_by = @worker, claimed_at = CURRENT_TIMESTAMP, updated_at = CURRENT_TIMESTAMP
-            WHERE candidate_id IN (SELECT value FROM json_each(@ids))
+            WHERE {_store.IdIn("candidate_id", "@ids")}
               AND state IN ('{ResultStates.Pending}', '{ResultStates.Queued}', '{ResultStates.Screening}')
             RETURNING candidate_id
             """, transaction);
-        command.Parameter("@ids", "[" + string.Join(',', ids) + "]");
+        command.Parameter("@ids", _store.IdList(ids));
         command.Parameter("@worker", worker);
         var toLoad = new List<long>(ids.Count);
         using (var r = command.ExecuteReader())
             while (r.Read()) toLoad.Add(r.GetInt64(0));
         // Two reads for the whole chunk: the candidates, then their trials in (candidate, seq) order.
-        var idList = "[" + string.Join(',', toLoad) + "]";
+        var idList = _store.IdList(toLoad);
         var stored = new List<StoredCandidate>(toLoad.Count);
-        using (var read = _db.Command(CandidateStore.CandidateColumns + " WHERE c.id IN (SELECT value FROM json_each(@ids)) ORDER BY c.id", transaction))
+        using (var read = _db.Command(CandidateStore.CandidateColumns + " WHERE " + _store.IdIn("c.id", "@ids") + " ORDER BY c.id", transaction))
         {
             read.Parameter("@ids", idList);
             using var r = read.ExecuteReader();
             while (r.Read()) stored.Add(CandidateStore.ReadCandidate(r));
         }
         var trials = new Dictionary<long, List<Screening.TrialRecord>>();
-        using (var read = _db.Command(CandidateStore.TrialColumns + " WHERE candidate_id IN (SELECT value FROM json_each(@ids)) ORDER BY candidate_id, seq", transaction))
+        using (var read = _db.Command(CandidateStore.TrialColumns + " WHERE " + _store.IdIn("candidate_id", "@ids") + " ORDER BY candidate_id, seq", transaction))
         {
             read.Parameter("@ids", idList);
             using var r = read.ExecuteReader();

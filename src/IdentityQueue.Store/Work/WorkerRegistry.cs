@@ -1,0 +1,92 @@
+using System.Data.Common;
+
+namespace IdentityQueue.Store.Work;
+
+/// <summary>A worker process as <c>idq status</c> shows it.</summary>
+public sealed record WorkerInfo(string Name, string Host, int Pid, int Threads, DateTime StartedAt, DateTime HeartbeatAt,
+    long ChunksDone, long CandidatesDone, bool Live);
+
+/// <summary>
+/// The <c>worker</c> table: each worker process registers, beats its heartbeat with its counters, and signs off when it
+/// stops gracefully. A process whose heartbeat is older than the dead-after time is presumed dead. Uses the connection it
+/// is given; not thread-safe.
+/// </summary>
+public sealed class WorkerRegistry(StoreConnection store)
+{
+    private readonly StoreConnection _store = store;
+    private readonly DbConnection _db = store.Connection;
+
+    /// <summary>Registers (or re-registers, after a restart with the same host:pid) a worker process.</summary>
+    public void Register(string name, string host, int pid, int threads)
+    {
+        using var command = _db.Command("""
+            INSERT INTO worker (name, host, pid, threads, started_at, heartbeat_at, chunks_done, candidates_done, stopped_at)
+            VALUES (@name, @host, @pid, @threads, CURRENT_TIMESTAMP, CURRENT_TIMESTAMP, 0, 0, NULL)
+            ON CONFLICT (name) DO UPDATE SET host = excluded.host, pid = excluded.pid, threads = excluded.threads,
+                started_at = excluded.started_at, heartbeat_at = excluded.heartbeat_at, chunks_done = 0, candidates_done = 0,
+                stopped_at = NULL
+            """);
+        command.Parameter("@name", name);
+        command.Parameter("@host", host);
+        command.Parameter("@pid", pid);
+        command.Parameter("@threads", threads);
+        command.ExecuteNonQuery();
+    }
+
+    /// <summary>Records that the worker is alive, with its counters so far.</summary>
+    public void Heartbeat(string name, long chunksDone, long candidatesDone)
+    {
+        using var command = _db.Command("""
+            UPDATE worker SET heartbeat_at = CURRENT_TIMESTAMP, chunks_done = @chunks, candidates_done = @candidates
+            WHERE name = @name
+            """);
+        command.Parameter("@name", name);
+        command.Parameter("@chunks", chunksDone);
+        command.Parameter("@candidates", candidatesDone);
+        command.ExecuteNonQuery();
+    }
+
+    /// <summary>Marks the worker stopped (a graceful stop).</summary>
+    public void SignOff(string name, long chunksDone, long candidatesDone)
+    {
+        using var command = _db.Command("""
+            UPDATE worker SET heartbeat_at = CURRENT_TIMESTAMP, stopped_at = CURRENT_TIMESTAMP, chunks_done = @chunks,
+                candidates_done = @candidates
+            WHERE name = @name
+            """);
+        command.Parameter("@name", name);
+        command.Parameter("@chunks", chunksDone);
+        command.Parameter("@candidates", candidatesDone);
+        command.ExecuteNonQuery();
+    }
+
+    /// <summary>Worker threads of the processes alive now (heartbeat within <paramref name="deadAfter"/>).</summary>
+    public int LiveThreads(TimeSpan deadAfter)
+    {
+        using var command = _db.Command($"""
+            SELECT COALESCE(SUM(threads), 0) FROM worker
+            WHERE stopped_at IS NULL AND heartbeat_at >= {_store.SecondsAgo((int)Math.Ceiling(deadAfter.TotalSeconds))}
+            """);
+        return Convert.ToInt32(command.ExecuteScalar(), System.Globalization.CultureInfo.InvariantCulture);
+    }
+
+    /// <summary>
+    /// Every worker that has not stopped gracefully, newest first, and whether it is alive (heartbeat within
+    /// <paramref name="deadAfter"/>); with <paramref name="includeStopped"/> also the stopped ones.
+    /// </summary>
+    public IReadOnlyList<WorkerInfo> List(TimeSpan deadAfter, bool includeStopped = false)
+    {
+        using var command = _db.Command($"""
+            SELECT name, host, pid, threads, started_at, heartbeat_at, chunks_done, candidates_done,
+                   CASE WHEN stopped_at IS NULL AND heartbeat_at >= {_store.SecondsAgo((int)Math.Ceiling(deadAfter.TotalSeconds))} THEN 1 ELSE 0 END
+            FROM worker {(includeStopped ? "" : "WHERE stopped_at IS NULL")}
+            ORDER BY started_at DESC, name
+            """);
+        var list = new List<WorkerInfo>();
+        using var r = command.ExecuteReader();
+        while (r.Read())
+            list.Add(new WorkerInfo(r.GetString(0), r.GetString(1), r.GetInt32(2), r.GetInt32(3), r.GetDateTime(4), r.GetDateTime(5),
+                r.GetInt64(6), r.GetInt64(7), Convert.ToInt32(r.GetValue(8), System.Globalization.CultureInfo.InvariantCulture) == 1));
+        return list;
+    }
+}
