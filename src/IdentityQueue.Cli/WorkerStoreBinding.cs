@@ -24,9 +24,9 @@ internal sealed class StoreWorkerBinding(StoreLocation location, Limits limits, 
 
     private readonly ILogger _log = log ?? NullLogger.Instance;
 
-    private T With<T>(Func<StoreConnection, T> action)
+    private T With<T>(Func<StoreConnection, T> action, bool retry = true)
     {
-        if (!location.IsPostgreSql)
+        if (!location.IsPostgreSql || !retry)
         {
             using var c = StoreConnection.Open(location);
             return action(c);
@@ -81,11 +81,13 @@ internal sealed class StoreWorkerBinding(StoreLocation location, Limits limits, 
 
     public int EnsureResultRows() => With(c => new CandidateStore(c).EnsureResultRows());
 
+    // Not retried: if the server went away after committing, a retry would take a second set and leave the first queued
+    // with no job until the stale-queue sweep. The planner simply tries again at its next round.
     public PlannedWork TakePending(int max) => With(c =>
     {
         var (stage, ids) = new WorkQueue(c).TakePending(max);
         return new PlannedWork(stage, ids);
-    });
+    }, retry: false);
 
     public IReadOnlyList<CandidateWork> Claim(IReadOnlyList<long> ids, string worker) => With(c =>
         (IReadOnlyList<CandidateWork>)new WorkQueue(c).Claim(ids, worker).Select(claimed =>
