@@ -13,7 +13,7 @@ namespace IdentityQueue.Cli;
 /// <summary><c>idq run</c>, <c>idq worker</c> and <c>idq enqueue</c>: the batch, on an in-process Hangfire server.</summary>
 internal static class RunCommands
 {
-    private sealed record RunArgs(StoreOptions Db, Option<int?> Workers, Option<int?> Target, Option<int> Chunk, Option<int?> Invisibility);
+    private sealed record RunArgs(StoreOptions Db, Option<int?> Workers, Option<int?> Target, Option<int> Chunk, Option<int?> Invisibility, Option<bool> TwoPass);
 
     private static RunArgs Arguments(Command command, bool target)
     {
@@ -26,12 +26,17 @@ internal static class RunCommands
             {
                 HelpName = "SECONDS",
                 Description = "PostgreSQL only: a chunk whose worker died goes back to the queue this long after the worker's last sign of life (default 120).",
+            },
+            new Option<bool>("--two-pass")
+            {
+                Description = "First give every candidate its cheap trial, then the survivors the rest: a partial run holds nearly all refutations, but the whole run is slower.",
             });
         args.Db.AddTo(command);
         command.Options.Add(args.Workers);
         if (target) command.Options.Add(args.Target);
         command.Options.Add(args.Chunk);
         command.Options.Add(args.Invisibility);
+        command.Options.Add(args.TwoPass);
         return args;
     }
 
@@ -77,6 +82,7 @@ internal static class RunCommands
         {
             Workers = parse.GetValue(a.Workers) ?? Environment.ProcessorCount,
             ChunkSize = parse.GetValue(a.Chunk),
+            TwoPass = parse.GetValue(a.TwoPass),
         };
         if (parse.GetValue(a.Invisibility) is int seconds) settings = settings with { InvisibilityTimeout = TimeSpan.FromSeconds(seconds) };
         var problems = settings.Validate();

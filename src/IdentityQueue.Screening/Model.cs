@@ -77,8 +77,8 @@ public sealed record ScreeningOptions
     public Algebra.Limits Limits { get; init; } = Algebra.Limits.Default;
 
     /// <summary>
-    /// Stop with <see cref="Verdict.Pending"/> after this many new zero trials (null: go on to a final state). The first
-    /// stage of a batch uses 1, so every candidate gets its cheap trial before any survivor moves to larger fields.
+    /// Stop with <see cref="Verdict.Pending"/> after this many new zero trials (null: go on to a final state). A two-pass
+    /// batch uses 1 in its first pass, so every candidate gets its cheap trial before any survivor moves to larger fields.
     /// </summary>
     public int? MaxNewZeroTrials { get; init; }
 

@@ -69,7 +69,18 @@ public sealed class StoreConnection : IDisposable
     /// <c>Maximum Pool Size</c> (Npgsql's default 100).
     /// </summary>
     public static NpgsqlDataSource DataSource(string connectionString) =>
-        DataSources.GetOrAdd(connectionString, static c => NpgsqlDataSource.Create(c));
+        DataSources.GetOrAdd(connectionString, static c =>
+        {
+            var builder = new NpgsqlConnectionStringBuilder(c);
+            // The workers run the same few statements per candidate over and over: let Npgsql prepare them on the server
+            // (Npgsql documentation, "Automatic preparation"), unless the connection string says otherwise.
+            if (builder.MaxAutoPrepare == 0)
+            {
+                builder.MaxAutoPrepare = 64;
+                builder.AutoPrepareMinUsages = 2;
+            }
+            return NpgsqlDataSource.Create(builder.ConnectionString);
+        });
 
     /// <summary>Opens a connection to the PostgreSQL store; a server that cannot be reached is a <see cref="StoreUnavailableException"/>.</summary>
     public static StoreConnection OpenPostgreSql(string connectionString)

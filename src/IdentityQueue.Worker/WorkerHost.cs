@@ -107,6 +107,8 @@ public static class WorkerHost
                 UseSlidingInvisibilityTimeout = true,
                 InvisibilityTimeout = settings.InvisibilityTimeout,
                 QueuePollInterval = settings.QueuePollInterval,
+                // Idle workers wait on LISTEN/NOTIFY and wake when a job is enqueued, instead of only at the next poll.
+                EnableLongPolling = true,
                 DistributedLockTimeout = TimeSpan.FromMinutes(1),
             });
     }

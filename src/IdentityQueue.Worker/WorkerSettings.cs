@@ -22,6 +22,14 @@ public sealed record WorkerSettings
     /// <summary>How often the planner looks for work to enqueue.</summary>
     public TimeSpan PlanInterval { get; init; } = TimeSpan.FromMilliseconds(200);
 
+    /// <summary>
+    /// Screen in two passes over the catalogue: first every candidate's cheap trial, then the survivors' remaining trials,
+    /// so that a partial run already holds nearly all refutations. Off by default: each survivor is then claimed, compiled
+    /// and saved once instead of twice, which is about a fifth faster end to end (see the README's Performance section).
+    /// Either way each candidate climbs the field ladder from the cheapest rung.
+    /// </summary>
+    public bool TwoPass { get; init; }
+
     /// <summary>How often the worker writes its heartbeat (and, on a shared store, looks for dead workers' claims).</summary>
     public TimeSpan HeartbeatInterval { get; init; } = TimeSpan.FromSeconds(5);
 
