@@ -133,7 +133,8 @@ internal static class QueryCommands
                     SELECT count(*) FROM result
                     WHERE state IN ('refuted','survived','undecided','invalid','failed') AND updated_at >= {store.SecondsAgo(60)}
                     """);
-                var workers = new WorkerRegistry(store).List(new WorkerSettings().DeadAfter);
+                // "alive" in the listing: a heartbeat within three beats; recovery waits longer (DeadAfter) before it takes work back.
+                var workers = new WorkerRegistry(store).List(3 * new WorkerSettings().HeartbeatInterval);
                 var rate = Convert.ToDouble(recent.Rows[0][0], CultureInfo.InvariantCulture) / 60.0;
                 var byCatalogue = perCatalogue.Rows.GroupBy(r => (string)r[0]!)
                     .ToDictionary(g => g.Key, g => g.ToDictionary(r => (string)r[1]!, r => Convert.ToInt64(r[2], CultureInfo.InvariantCulture)));

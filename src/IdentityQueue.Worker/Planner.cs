@@ -27,8 +27,23 @@ public sealed class Planner(IScreeningStore store, IBackgroundJobClient jobs, Wo
         // Checkpoint: TakePending marks the candidates queued before their jobs exist; dying in between leaves them
         // queued with no job, and start-up recovery returns them to pending.
         var work = store.TakePending((int)Math.Min(room, int.MaxValue));
-        foreach (var chunk in work.Ids.Chunk(settings.ChunkSize))
-            jobs.Enqueue<ScreeningJob>(j => j.Run(work.Stage, chunk, CancellationToken.None));
+        var enqueued = 0;
+        try
+        {
+            foreach (var chunk in work.Ids.Chunk(settings.ChunkSize))
+            {
+                jobs.Enqueue<ScreeningJob>(j => j.Run(work.Stage, chunk, CancellationToken.None));
+                enqueued += chunk.Length;
+            }
+        }
+        catch (Exception e) when (e is not OutOfMemoryException)
+        {
+            // The queue is away (a database restart): give back what has no job yet, so that it is not left queued with
+            // nothing to screen it. Should a job have been created after all, its candidates are screened twice, harmlessly.
+            log.LogWarning("enqueuing failed ({Problem}); {Count} candidates go back to pending", e.Message, work.Ids.Count - enqueued);
+            store.Release(work.Ids.Skip(enqueued).ToList());
+            throw;
+        }
         if (work.Ids.Count > 0) log.LogInformation("enqueued {Count} candidates for stage {Stage}", work.Ids.Count, work.Stage);
         return work.Ids.Count;
     }
