@@ -50,7 +50,7 @@ internal static class ExportCommand
         Examples:
           idq export --state survived --format csv --out survivors.csv
           idq export --state refuted > refuted.jsonl
-          idq export --format smtlib --out proofs/ && z3 -smt2 -T:20 proofs/*.smt2
+          idq export --format smtlib --out proofs && for f in proofs/*.smt2; do z3 -smt2 -T:20 "$f"; done
           idq export --format smtlib > survivors.smt2 && z3 -smt2 survivors.smt2
           idq export --format tex --out appendix.tex
           idq export --format md --state survived undecided
