@@ -1,0 +1,50 @@
+using System.Globalization;
+using System.Text.Json;
+
+namespace IdentityQueue.Screening.HandOff;
+
+/// <summary>
+/// A screened candidate as handed off for proof: where it came from and its screening evidence, as the store holds them
+/// (decimal text for the degree bound, the params JSON as stored). Immutable.
+/// </summary>
+public sealed record HandOffCandidate(
+    long Id,
+    string Label,
+    string? Family,
+    string? Params,
+    string Lhs,
+    string Rhs,
+    string Field,
+    string? State,
+    string? DegreeBound,
+    double? ErrorBoundLog2,
+    long Trials)
+{
+    /// <summary>The identity as one line of catalogue text (parameters fixed by <see cref="Params"/>).</summary>
+    public string Identity => Field == "Q" ? $"{Lhs} = {Rhs}" : $"{Lhs} = {Rhs} over {Field}";
+
+    /// <summary>The error bound as the exponent of 2, rounded up to one decimal (never stronger than stored); null when none.</summary>
+    public string? ErrorBoundExponent => ErrorBoundLog2 is { } e && double.IsFinite(e)
+        ? (Math.Ceiling(e * 10) / 10).ToString("0.0", CultureInfo.InvariantCulture)
+        : null;
+
+    /// <summary>The params JSON as <c>n=3, k=1</c>; the text itself when it is not a JSON object.</summary>
+    public string ParamsText
+    {
+        get
+        {
+            if (string.IsNullOrWhiteSpace(Params)) return "";
+            try
+            {
+                using var document = JsonDocument.Parse(Params);
+                if (document.RootElement.ValueKind != JsonValueKind.Object) return Params;
+                return string.Join(", ", document.RootElement.EnumerateObject().Select(p =>
+                    $"{p.Name}={(p.Value.ValueKind == JsonValueKind.String ? p.Value.GetString() : p.Value.GetRawText())}"));
+            }
+            catch (JsonException)
+            {
+                return Params;
+            }
+        }
+    }
+}

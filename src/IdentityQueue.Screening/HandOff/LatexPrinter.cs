@@ -1,0 +1,264 @@
+using System.Globalization;
+using System.Runtime.CompilerServices;
+using System.Text;
+using IdentityQueue.Algebra.Syntax;
+
+namespace IdentityQueue.Screening.HandOff;
+
+/// <summary>
+/// Writes an <see cref="Expr"/> as LaTeX math (amsmath): <c>\frac</c>, <c>\cdot</c>, <c>x_{i}</c>, <c>\sum_{k=1}^{n}</c>,
+/// <c>\binom</c>, <c>[n]_{q}</c>, <c>\det</c>, pmatrix/vmatrix, with parentheses only where the tree needs them.
+/// Not thread-safe (one output per instance); the static methods are.
+/// </summary>
+public sealed class LatexPrinter : IExprVisitor<StringBuilder>
+{
+    private const int AdditiveLevel = 1, MultiplicativeLevel = 2, UnaryLevel = 3, PowerLevel = 4, AtomLevel = 5;
+
+    private readonly StringBuilder _output;
+
+    private LatexPrinter(StringBuilder output) => _output = output;
+
+    public static string Print(Expr expr)
+    {
+        var output = new StringBuilder();
+        new LatexPrinter(output).Write(expr);
+        return output.ToString();
+    }
+
+    /// <summary><c>lhs = rhs</c>, with <c>\quad\text{over }\mathbb{F}_{p}</c> for a finite field.</summary>
+    public static string Print(Expr left, Expr right, FieldSpec field)
+    {
+        var text = $"{Print(left)} = {Print(right)}";
+        if (field.IsRationals) return text;
+        var size = field.Degree == 1 ? $"{field.Characteristic}" : $"{field.Characteristic}^{{{field.Degree}}}";
+        return $"{text} \\quad \\text{{over }} \\mathbb{{F}}_{{{size}}}";
+    }
+
+    public StringBuilder VisitInteger(IntegerLiteral node) => _output.Append(node.Value.ToString(CultureInfo.InvariantCulture));
+
+    public StringBuilder VisitName(NameRef node) => _output.Append(Name(node.Name));
+
+    public StringBuilder VisitIndexed(IndexedName node)
+    {
+        _output.Append(Name(node.Name)).Append("_{");
+        for (var i = 0; i < node.Indices.Count; i++)
+        {
+            if (i > 0) _output.Append(',');
+            Write(node.Indices[i]);
+        }
+        return _output.Append('}');
+    }
+
+    public StringBuilder VisitUnary(UnaryExpr node)
+    {
+        _output.Append('-');
+        Operand(node.Operand, UnaryLevel);
+        return _output;
+    }
+
+    public StringBuilder VisitBinary(BinaryExpr node)
+    {
+        switch (node.Operator)
+        {
+            case BinaryOperator.Divide:
+                _output.Append("\\frac{");
+                Write(node.Left);
+                _output.Append("}{");
+                Write(node.Right);
+                return _output.Append('}');
+            case BinaryOperator.Power:
+                Operand(node.Left, AtomLevel);
+                _output.Append("^{");
+                Write(node.Right);
+                return _output.Append('}');
+            default:
+                var (symbol, right) = node.Operator switch
+                {
+                    BinaryOperator.Add => (" + ", MultiplicativeLevel),
+                    BinaryOperator.Subtract => (" - ", MultiplicativeLevel),
+                    _ => (" \\cdot ", UnaryLevel),
+                };
+                Operand(node.Left, node.Operator == BinaryOperator.Multiply ? MultiplicativeLevel : AdditiveLevel);
+                _output.Append(symbol);
+                // "a - (-b)", not "a - -b"
+                Operand(node.Right, Level(node.Right) == UnaryLevel && node.Right is not BinaryExpr ? AtomLevel : right);
+                return _output;
+        }
+    }
+
+    public StringBuilder VisitCall(CallExpr node)
+    {
+        var a = node.Arguments;
+        switch (node.Function)
+        {
+            case Builtins.Binom:
+                return Braced("\\binom{", a[0], "}{", a[1], "}");
+            case Builtins.Fact:
+                Operand(a[0], AtomLevel);
+                return _output.Append('!');
+            case Builtins.QInt:
+                return Braced("[", a[0], "]_{", a[1], "}");
+            case Builtins.QFact:
+                return Braced("[", a[0], "]_{", a[1], "}!");
+            case Builtins.QBinom:
+                Braced("\\binom{", a[0], "}{", a[1], "}_{");
+                Write(a[2]);
+                return _output.Append('}');
+            case Builtins.Det when a[0] is MatrixLiteral literal:
+                return Literal(literal, "vmatrix");
+            case Builtins.Transpose:
+                Operand(a[0], AtomLevel);
+                return _output.Append("^{\\mathsf{T}}");
+            case Builtins.Identity:
+                _output.Append("I_{");
+                Write(a[0]);
+                return _output.Append('}');
+            default:
+                _output.Append(node.Function switch
+                {
+                    Builtins.Det => "\\det",
+                    Builtins.Trace => "\\operatorname{tr}",
+                    Builtins.Permanent => "\\operatorname{perm}",
+                    Builtins.Pfaffian => "\\operatorname{pf}",
+                    _ => $"\\operatorname{{{Escape(node.Function)}}}",
+                });
+                if (a[0] is MatrixLiteral or MatrixComprehension)
+                {
+                    _output.Append(' ');
+                    return Write(a[0]);
+                }
+                _output.Append("\\left(");
+                Write(a[0]);
+                return _output.Append("\\right)");
+        }
+    }
+
+    public StringBuilder VisitBound(BoundExpr node)
+    {
+        _output.Append(node.Kind == BoundKind.Sum ? "\\sum_{" : "\\prod_{").Append(Name(node.Variable)).Append('=');
+        Write(node.From);
+        _output.Append("}^{");
+        Write(node.To);
+        _output.Append("} ");
+        Operand(node.Body, PowerLevel);
+        return _output;
+    }
+
+    public StringBuilder VisitMatrixComprehension(MatrixComprehension node)
+    {
+        _output.Append("\\left(");
+        Write(node.Body);
+        _output.Append("\\right)_{");
+        Write(node.RowFrom);
+        _output.Append(" \\le ").Append(Name(node.RowVariable)).Append(" \\le ");
+        Write(node.RowTo);
+        _output.Append(",\\; ");
+        Write(node.ColumnFrom);
+        _output.Append(" \\le ").Append(Name(node.ColumnVariable)).Append(" \\le ");
+        Write(node.ColumnTo);
+        return _output.Append('}');
+    }
+
+    public StringBuilder VisitMatrixLiteral(MatrixLiteral node) => Literal(node, "pmatrix");
+
+    private StringBuilder Literal(MatrixLiteral node, string environment)
+    {
+        _output.Append("\\begin{").Append(environment).Append('}');
+        for (var i = 0; i < node.Rows.Count; i++)
+        {
+            _output.Append(i == 0 ? " " : " \\\\ ");
+            for (var j = 0; j < node.Rows[i].Count; j++)
+            {
+                if (j > 0) _output.Append(" & ");
+                Write(node.Rows[i][j]);
+            }
+        }
+        return _output.Append(" \\end{").Append(environment).Append('}');
+    }
+
+    private StringBuilder Braced(string open, Expr first, string middle, Expr second, string close)
+    {
+        _output.Append(open);
+        Write(first);
+        _output.Append(middle);
+        Write(second);
+        return _output.Append(close);
+    }
+
+    private static int Level(Expr e) => e switch
+    {
+        BinaryExpr { Operator: BinaryOperator.Add or BinaryOperator.Subtract } => AdditiveLevel,
+        BinaryExpr { Operator: BinaryOperator.Multiply } => MultiplicativeLevel,
+        BinaryExpr { Operator: BinaryOperator.Divide } => UnaryLevel, // \frac{}{} needs no parentheses except as a base
+        BinaryExpr => PowerLevel,
+        UnaryExpr or IntegerLiteral { Value.Sign: < 0 } => UnaryLevel,
+        BoundExpr => MultiplicativeLevel,
+        CallExpr { Function: Builtins.Fact or Builtins.QFact or Builtins.Transpose } => PowerLevel,
+        _ => AtomLevel,
+    };
+
+    private void Operand(Expr e, int needed)
+    {
+        if (Level(e) >= needed)
+        {
+            Write(e);
+            return;
+        }
+        _output.Append("\\left(");
+        Write(e);
+        _output.Append("\\right)");
+    }
+
+    private StringBuilder Write(Expr e)
+    {
+        RuntimeHelpers.EnsureSufficientExecutionStack();
+        return e.Accept(this);
+    }
+
+    /// <summary>A variable as LaTeX: one letter as is, a Greek letter as its command, a longer name upright-italic, trailing digits as a subscript.</summary>
+    internal static string Name(string name)
+    {
+        if (name.Length == 1) return Greek.TryGetValue(name[0], out var g) ? g : name;
+        var digits = name.Length;
+        while (digits > 0 && char.IsAsciiDigit(name[digits - 1])) digits--;
+        if (digits > 0 && digits < name.Length) return $"{Name(name[..digits])}_{{{name[digits..]}}}";
+        var text = new StringBuilder();
+        foreach (var c in name) text.Append(Greek.TryGetValue(c, out var letter) ? $"{{{letter}}}" : Escape(c.ToString()));
+        return $"\\mathit{{{text}}}";
+    }
+
+    private static readonly Dictionary<char, string> Greek = BuildGreek();
+
+    private static Dictionary<char, string> BuildGreek()
+    {
+        var lower = new[] { "alpha", "beta", "gamma", "delta", "epsilon", "zeta", "eta", "theta", "iota", "kappa", "lambda", "mu", "nu", "xi", "o", "pi", "rho", "varsigma", "sigma", "tau", "upsilon", "phi", "chi", "psi", "omega" };
+        var map = new Dictionary<char, string>();
+        for (var i = 0; i < lower.Length; i++) map[(char)('α' + i)] = lower[i] == "o" ? "o" : "\\" + lower[i];
+        var upper = new Dictionary<char, string> { ['Γ'] = "\\Gamma", ['Δ'] = "\\Delta", ['Θ'] = "\\Theta", ['Λ'] = "\\Lambda", ['Ξ'] = "\\Xi", ['Π'] = "\\Pi", ['Σ'] = "\\Sigma", ['Φ'] = "\\Phi", ['Ψ'] = "\\Psi", ['Ω'] = "\\Omega" };
+        foreach (var (c, s) in upper) map[c] = s;
+        return map;
+    }
+
+    /// <summary>Text with LaTeX's special characters escaped (for text mode and \mathit).</summary>
+    public static string Escape(string text)
+    {
+        var output = new StringBuilder();
+        foreach (var c in text)
+            output.Append(c switch
+            {
+                '\\' => "\\textbackslash{}",
+                '{' => "\\{",
+                '}' => "\\}",
+                '$' => "\\$",
+                '&' => "\\&",
+                '#' => "\\#",
+                '%' => "\\%",
+                '_' => "\\_",
+                '^' => "\\textasciicircum{}",
+                '~' => "\\textasciitilde{}",
+                '\r' or '\n' => " ",
+                _ => c.ToString(),
+            });
+        return output.ToString();
+    }
+}

@@ -1,0 +1,43 @@
+using IdentityQueue.Algebra.Syntax;
+using IdentityQueue.Screening.HandOff;
+
+namespace IdentityQueue.Screening.Tests.HandOff;
+
+/// <summary>Expressions as LaTeX math: amsmath's commands, and parentheses only where the tree needs them.</summary>
+public sealed class LatexPrinterTests
+{
+    private static string Latex(string expression)
+    {
+        var parsed = CatalogueParser.ParseExpression(expression);
+        Assert.True(parsed.Success, parsed.Error?.ToString());
+        return LatexPrinter.Print(parsed.Value);
+    }
+
+    [Theory]
+    [InlineData("x[i]^2/(1 + y)", @"\frac{x_{i}^{2}}{1 + y}")]
+    [InlineData("a*(b + c)", @"a \cdot \left(b + c\right)")]
+    [InlineData("a - (b - c)", @"a - \left(b - c\right)")]
+    [InlineData("a - (-b)", @"a - \left(-b\right)")]
+    [InlineData("-x^2", @"-x^{2}")]
+    [InlineData("(-x)^2", @"\left(-x\right)^{2}")]
+    [InlineData("(a/b)^2", @"\left(\frac{a}{b}\right)^{2}")]
+    [InlineData("a[i,j+1]", @"a_{i,j + 1}")]
+    [InlineData("binom(n, k)", @"\binom{n}{k}")]
+    [InlineData("fact(n + 1)", @"\left(n + 1\right)!")]
+    [InlineData("qint(n, q)", @"[n]_{q}")]
+    [InlineData("qbinom(n, k, q)", @"\binom{n}{k}_{q}")]
+    [InlineData("sum(k in 1..n: k^2)", @"\sum_{k=1}^{n} k^{2}")]
+    [InlineData("prod(k in 1..n: (1 + q^k))", @"\prod_{k=1}^{n} \left(1 + q^{k}\right)")]
+    [InlineData("det([[a, b], [c, d]])", @"\begin{vmatrix} a & b \\ c & d \end{vmatrix}")]
+    [InlineData("tr(transpose(M) * M)", @"\operatorname{tr}\left(M^{\mathsf{T}} \cdot M\right)")]
+    [InlineData("det(matrix(i in 1..n, j in 1..n: x[i]^(j - 1)))", @"\det \left(x_{i}^{j - 1}\right)_{1 \le i \le n,\; 1 \le j \le n}")]
+    [InlineData("id(2)", @"I_{2}")]
+    [InlineData("alpha + α + x1", @"\mathit{alpha} + \alpha + x_{1}")]
+    public void PrintsReadableMath(string expression, string expected) => Assert.Equal(expected, Latex(expression));
+
+    [Fact]
+    public void Escape_QuotesTheSpecialCharacters()
+    {
+        Assert.Equal(@"a\_b \& c\% \#1 \$ \{x\} \textasciitilde{}\textasciicircum{}\textbackslash{}", LatexPrinter.Escape(@"a_b & c% #1 $ {x} ~^\"));
+    }
+}
