@@ -80,7 +80,7 @@ public sealed class PostgresStoreTests : IDisposable
         var seeds = Path.Combine(PostgresServer.RepositoryRoot(), "seeds-demo");
         var files = Directory.GetFiles(seeds).Where(f => f.EndsWith(".idq", StringComparison.Ordinal) || f.EndsWith(".jsonl", StringComparison.Ordinal)
             || f.EndsWith(".csv", StringComparison.Ordinal)).OrderBy(f => f, StringComparer.Ordinal).ToArray();
-        foreach (var store in new[] { new[] { "--postgres", pg }, new[] { "--db", sqlite } })
+        foreach (var store in new[] { new[] { "--db", sqlite }, new[] { "--postgres", pg } })
         {
             Assert.Equal(0, Idq(["init", .. store]).Code);
             var import = Idq(["import", .. files, "--seed", "7", .. store]);
