@@ -13,6 +13,7 @@ namespace IdentityQueue.Store.Work;
 /// </summary>
 public sealed class CandidateStore(StoreConnection store)
 {
+    private readonly StoreConnection _store = store;
     private readonly DbConnection _db = store.Connection;
 
     /// <summary>Gives every candidate without a result row (e.g. one inserted by hand) a 'pending' one; returns how many.</summary>
@@ -153,8 +154,35 @@ public sealed class CandidateStore(StoreConnection store)
     public int Save(IReadOnlyList<CandidateOutcome> outcomes, string worker)
     {
         using var transaction = _db.BeginTransaction();
-        using var exists = _db.Command("SELECT COUNT(*) FROM candidate WHERE id = @id", transaction);
-        var existsId = exists.Parameter("@id");
+        var existing = new HashSet<long>();
+        using (var exists = _db.Command("SELECT id FROM candidate WHERE " + _store.IdIn("id", "@ids"), transaction))
+        {
+            exists.Parameter("@ids", _store.IdList(outcomes.Select(o => o.CandidateId)));
+            using var r = exists.ExecuteReader();
+            while (r.Read()) existing.Add(r.GetInt64(0));
+        }
+        // PostgreSQL: the statements of the whole save go to the server as one batch (one round trip instead of several
+        // per candidate); they run in order in this transaction, so each sees the rows the earlier ones wrote. SQLite runs
+        // in-process, where a statement costs no round trip: there they run one by one.
+        using var batch = _store.IsPostgreSql && _db.CanCreateBatch ? _db.CreateBatch() : null;
+        if (batch is not null) batch.Transaction = transaction;
+        var resultStatements = new List<DbBatchCommand>();
+        int Run(DbCommand command, bool isResult)
+        {
+            if (batch is null) return command.ExecuteNonQuery();
+            var copy = batch.CreateBatchCommand();
+            copy.CommandText = command.CommandText;
+            foreach (DbParameter parameter in command.Parameters)
+            {
+                var p = copy.CreateParameter();
+                p.ParameterName = parameter.ParameterName;
+                p.Value = parameter.Value;
+                copy.Parameters.Add(p);
+            }
+            batch.BatchCommands.Add(copy);
+            if (isResult) resultStatements.Add(copy);
+            return 0;
+        }
         using var trials = new TrialInsert(_db, transaction);
         using var screened = _db.Command("""
             INSERT INTO result (candidate_id, state, degree_bound, height_bound_log2, trials_zero, error_bound_log2,
@@ -187,17 +215,16 @@ public sealed class CandidateStore(StoreConnection store)
         var written = 0;
         foreach (var outcome in outcomes)
         {
-            existsId.Set(outcome.CandidateId);
-            if (Convert.ToInt64(exists.ExecuteScalar()) == 0) continue;
+            if (!existing.Contains(outcome.CandidateId)) continue;
             if (outcome.Screen is not { } result)
             {
                 u.Candidate.Set(outcome.CandidateId);
                 u.State.Set(outcome.State);
                 u.Message.Set(outcome.Message);
-                written += unscreened.ExecuteNonQuery();
+                written += Run(unscreened, isResult: true);
                 continue;
             }
-            foreach (var trial in result.Trials) trials.Insert(outcome.CandidateId, trial, worker);
+            foreach (var trial in result.Trials) Run(trials.Bind(outcome.CandidateId, trial, worker), isResult: false);
             p.Candidate.Set(outcome.CandidateId);
             p.State.Set(outcome.State);
             p.Degree.Set(TrialText.Decimal(result.DegreeBound));
@@ -208,7 +235,12 @@ public sealed class CandidateStore(StoreConnection store)
             p.Certified.Set(result.Certified);
             p.Message.Set(result.Message);
             p.Trials.Set(result.Trials.Count);
-            written += screened.ExecuteNonQuery();
+            written += Run(screened, isResult: true);
+        }
+        if (batch is { BatchCommands.Count: > 0 })
+        {
+            batch.ExecuteNonQuery();
+            written = resultStatements.Sum(c => c.RecordsAffected);
         }
         transaction.Commit();
         return written;
@@ -247,7 +279,8 @@ public sealed class CandidateStore(StoreConnection store)
             _worker = _command.Parameter("@worker");
         }
 
-        public void Insert(long candidateId, TrialRecord trial, string worker)
+        /// <summary>Sets the parameters for one trial and returns the command, for the caller to run (or batch).</summary>
+        public DbCommand Bind(long candidateId, TrialRecord trial, string worker)
         {
             var extension = trial.Field.DefiningPolynomial is not null;
             _candidate.Set(candidateId);
@@ -265,7 +298,7 @@ public sealed class CandidateStore(StoreConnection store)
             _bound.Set(Sql.Real(trial.BoundLog2));
             _elapsed.Set(trial.ElapsedMicroseconds);
             _worker.Set(worker.Length == 0 ? null : worker);
-            _command.ExecuteNonQuery();
+            return _command;
         }
 
         public void Dispose() => _command.Dispose();
