@@ -51,10 +51,17 @@ public sealed class WorkerSession : IDisposable
         Action<IServiceCollection> addStore)
     {
         if (!queue.IsShared) throw new ArgumentException("not a shared queue", nameof(queue));
+        // Every process plans: counting the store's states five times a second in each would grow the database's load with
+        // the number of workers, so a shared store is planned at most once a second per process (the queue holds three
+        // chunks per thread, many seconds of work).
+        if (settings.PlanInterval < SharedPlanInterval) settings = settings with { PlanInterval = SharedPlanInterval };
         var host = WorkerHost.Build(settings, Plan(queue, logPath, longRunning, quiet), addStore);
         host.Services.GetRequiredService<IScreeningStore>().RecoverShared(settings.DeadAfter, settings.QueuedStaleAfter);
         return new WorkerSession(null, host, shared: true);
     }
+
+    /// <summary>The shortest planning interval on a shared store.</summary>
+    public static readonly TimeSpan SharedPlanInterval = TimeSpan.FromSeconds(1);
 
     private static HostPlan Plan(QueueStorage queue, string logPath, bool longRunning, bool quiet) =>
         new(queue, logPath, quiet ? Serilog.Events.LogEventLevel.Warning : Serilog.Events.LogEventLevel.Information, RunPlannerService: longRunning);

@@ -21,7 +21,7 @@ public sealed class WorkerCrashTests(ITestOutputHelper log) : IDisposable
     }
 
     /// <summary>A few thousand candidates, half of them false, heavy enough that a run takes seconds.</summary>
-    private static string Catalogue() => string.Join('\n',
+    internal static string Catalogue() => string.Join('\n',
         "vdm: det(matrix(i in 1..9, j in 1..9: x[i]^(j-1) + n)) = det(matrix(i in 1..9, j in 1..9: x[i]^(j-1) + n)) for n in 1..700",
         "sq: (x + n*y)^6 = sum(k in 0..6: binom(6, k) * x^k * (n*y)^(6-k)) for n in 1..700",
         "sq-false: (x + n*y)^6 = sum(k in 0..6: binom(6, k) * x^k * (n*y)^(6-k)) + (n - 350)^2*x for n in 1..700",

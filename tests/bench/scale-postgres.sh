@@ -13,7 +13,7 @@ dotnet build "$root/src/IdentityQueue.Cli" -c Release -v quiet -nologo >/dev/nul
 idq="dotnet $root/src/IdentityQueue.Cli/bin/Release/net10.0/idq.dll"
 work=$(mktemp -d /tmp/idq-scale.XXXXXX)
 pg=$(mktemp -d /tmp/idq-scale-pg.XXXXXX)   # its own folder: the server runs as another user when we are root
-cleanup() { pkill -TERM -f "idq.dll worker --postgres" 2>/dev/null || true; bash "$root/tests/postgres/pg-cluster.sh" stop "$pg" || true; rm -rf "$work" "$pg"; }
+cleanup() { cd /; pkill -TERM -f "idq.dll worker --postgres" 2>/dev/null || true; bash "$root/tests/postgres/pg-cluster.sh" stop "$pg" || true; rm -rf "$work" "$pg"; }
 trap cleanup EXIT
 admin=$(bash "$root/tests/postgres/pg-cluster.sh" start "$pg" "$port")
 python3 "$gen" "$n" --seed 1 --truth "$work/truth.txt" > "$work/cat.idq"

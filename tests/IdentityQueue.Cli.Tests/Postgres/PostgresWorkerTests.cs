@@ -35,14 +35,6 @@ public sealed class PostgresWorkerTests(ITestOutputHelper log) : IDisposable
 
     private sealed record Worker(Process Process, StringBuilder Log);
 
-    /// <summary>The catalogue of the SQLite crash test: a few thousand candidates, half false, a run of some seconds.</summary>
-    private static string Catalogue() => string.Join('\n',
-        "vdm: det(matrix(i in 1..9, j in 1..9: x[i]^(j-1) + n)) = det(matrix(i in 1..9, j in 1..9: x[i]^(j-1) + n)) for n in 1..700",
-        "sq: (x + n*y)^6 = sum(k in 0..6: binom(6, k) * x^k * (n*y)^(6-k)) for n in 1..700",
-        "sq-false: (x + n*y)^6 = sum(k in 0..6: binom(6, k) * x^k * (n*y)^(6-k)) + (n - 350)^2*x for n in 1..700",
-        "pf-false: prod(i in 1..12: x[i] + n) = prod(i in 1..12: x[i]) + n^12 for n in 1..700",
-        "");
-
     private Worker StartWorker(string pg)
     {
         var start = new ProcessStartInfo("dotnet") { RedirectStandardOutput = true, RedirectStandardError = true, UseShellExecute = false, WorkingDirectory = _dir };
@@ -88,7 +80,7 @@ public sealed class PostgresWorkerTests(ITestOutputHelper log) : IDisposable
     private (string Pg, string Sqlite, long Total) Prepare()
     {
         var file = Path.Combine(_dir, "scale.idq");
-        File.WriteAllText(file, Catalogue());
+        File.WriteAllText(file, WorkerCrashTests.Catalogue()); // the SQLite crash test's: a few thousand candidates, half false
         var pg = PostgresServer.CreateDatabase();
         _databases.Add(pg);
         var sqlite = Path.Combine(_dir, "reference.db");
