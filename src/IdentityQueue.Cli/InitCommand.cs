@@ -10,7 +10,7 @@ public static class InitCommand
     {
         var store = new StoreOptions();
         var command = new Command("init", "Create the store, or upgrade it by applying the migrations it lacks. Running it again does nothing.\n\n" +
-            "Example:\n  idq init --db results.db");
+            "Examples:\n  idq init\n  idq init --db results.db\n  IDQ_DB=night.db idq init");
         store.AddTo(command);
         command.SetAction(parse => Execute(store.Path(parse), output, error));
         return command;
