@@ -37,7 +37,8 @@ public static class BenchCommand
         var json = new Option<bool>("--json") { Description = "Print one JSON object instead of a table." };
         var quick = new Option<bool>("--quick") { Description = "Few repetitions and a short program (for tests).", Hidden = true };
         var command = new Command("bench", "Measure the evaluation kernels on this machine (one thread, well under a minute).\n" +
-            "Keys slp62_ops_per_s, slp31_ops_per_s and det100_ms match the C reference modmul-ref.c; run both, alternating.")
+            "Keys slp62_ops_per_s, slp31_ops_per_s and det100_ms match the C reference modmul-ref.c; run both, alternating.\n\n" +
+            "Examples:\n  idq bench\n  idq bench --json > bench.json")
         {
             json, quick,
         };

@@ -22,7 +22,8 @@ internal static class DemoCommand
         var db = new Option<string>("--db") { Description = "Where to make the demo store (replaced if it exists).", DefaultValueFactory = _ => "identityqueue-demo.db" };
         var seeds = new Option<string?>("--seeds") { Description = "The folder of demo catalogues (default: seeds-demo/ here, else the one shipped with idq)." };
         var workers = new Option<int?>("--workers") { Description = "Worker threads (default: the number of cores)." };
-        var command = new Command("demo", "Make a fresh store from the demo catalogues, screen it, and print a summary with example SQL.\n\nExample:\n  idq demo") { db, seeds, workers };
+        var command = new Command("demo", "Make a fresh store from the demo catalogues, screen it, and print a summary with example SQL.\n\n" +
+            "Examples:\n  idq demo\n  idq demo --db /tmp/demo.db --workers 2\n  idq demo && idq report --db identityqueue-demo.db --out demo-report") { db, seeds, workers };
         command.SetAction(parse =>
         {
             var folder = parse.GetValue(seeds) ?? Locate();

@@ -11,7 +11,7 @@ public static class InitCommand
         var store = new StoreOptions();
         var command = new Command("init", "Create the store, or upgrade it by applying the migrations it lacks. Running it again does nothing.\n" +
             "On PostgreSQL it also creates the queue's tables (schema 'hangfire'); run it once before any worker starts.\n\n" +
-            "Examples:\n  idq init --db results.db\n  idq init --postgres \"Host=db1;Database=idq;Username=idq;Password=secret\"");
+            "Examples:\n  idq init\n  idq init --db results.db\n  idq init --postgres \"Host=db1;Database=idq;Username=idq;Password=secret\"");
         store.AddTo(command);
         command.SetAction(parse =>
         {

@@ -115,7 +115,7 @@ internal static class QueryCommands
     {
         var db = new StoreOptions();
         var json = new Option<bool>("--json") { Description = "Print JSON." };
-        var command = new Command("status", "Counts per state per catalogue, throughput over the last minute, and an ETA.\n\nExample:\n  idq status --json") { json };
+        var command = new Command("status", "Counts per state per catalogue, throughput over the last minute, and an ETA.\n\nExamples:\n  idq status\n  idq status --db night.db --json") { json };
         db.AddTo(command);
         command.SetAction(parse =>
         {

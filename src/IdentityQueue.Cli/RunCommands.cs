@@ -52,7 +52,7 @@ internal static class RunCommands
     public static Command Worker(TextWriter output, TextWriter error)
     {
         var command = new Command("worker", "A long-running worker for overnight batches: screens whatever becomes pending (also rows inserted by hand) until SIGINT/SIGTERM, then stops gracefully.\n\n" +
-            "Example:\n  idq worker --db night.db --workers 2");
+            "Examples:\n  idq worker --db night.db --workers 2\n  nohup idq worker --db night.db > worker.out 2>&1 &   # stop with kill -TERM; chunks in flight are finished or released");
         var a = Arguments(command, target: false);
         command.SetAction(parse => Execute(parse, a, output, error, RunMode.UntilStopped));
         return command;
@@ -61,7 +61,7 @@ internal static class RunCommands
     public static Command Enqueue(TextWriter output, TextWriter error)
     {
         var command = new Command("enqueue", "Enqueue pending candidates (also rows inserted by hand) without working on them; a later 'idq run' or 'idq worker' screens them.\n\n" +
-            "Example:\n  idq enqueue --db night.db");
+            "Examples:\n  idq enqueue --db night.db\n  idq enqueue --db night.db --target-bits 128   # survivors short of 2^-128 get more trials later");
         var a = Arguments(command, target: true);
         command.SetAction(parse => Execute(parse, a, output, error, RunMode.EnqueueOnly));
         return command;

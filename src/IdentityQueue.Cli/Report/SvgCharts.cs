@@ -1,0 +1,157 @@
+using System.Globalization;
+using System.Net;
+using System.Text;
+
+namespace IdentityQueue.Cli.Report;
+
+/// <summary>One bar or histogram column: its label, its value and its fill colour.</summary>
+internal sealed record Bar(string Label, long Value, string Color);
+
+/// <summary>One square of a strip chart: a family instance, its tooltip and its state.</summary>
+internal sealed record StripCell(string Title, string State);
+
+/// <summary>
+/// Small charts as inline SVG text, for embedding in an HTML page (no namespace declaration, no scripts, no external
+/// references). Every data mark is a <c>rect</c> with <c>class="mark"</c> and <c>data-*</c> attributes carrying its
+/// label and value, so that a browser's DOM can be checked against the data. Pure functions of their arguments.
+/// </summary>
+internal static class SvgCharts
+{
+    /// <summary>Fill colours per result state: final states saturated, states in flight pale.</summary>
+    public static readonly IReadOnlyDictionary<string, string> StateColors = new Dictionary<string, string>
+    {
+        ["pending"] = "#b9c3cf",
+        ["queued"] = "#9aaec4",
+        ["screening"] = "#6f93bb",
+        ["refuted"] = "#c8553d",
+        ["survived"] = "#2f8f6b",
+        ["undecided"] = "#d9a21b",
+        ["invalid"] = "#7d6b91",
+        ["failed"] = "#7a1f14",
+    };
+
+    public static string ColorOf(string state) => StateColors.TryGetValue(state, out var c) ? c : "#999999";
+
+    private const int CharWidth = 7; // average width of a 12px sans-serif character, for laying out labels
+    private const string Font = "font-size=\"12\"";
+
+    /// <summary>Text for an HTML element or attribute value.</summary>
+    public static string Encode(string text) => WebUtility.HtmlEncode(text);
+
+    private static string N(double value) => Math.Round(value, 2).ToString("0.##", CultureInfo.InvariantCulture);
+
+    /// <summary>Thousands separated, culture-invariant: 12,345.</summary>
+    public static string Count(long value) => value.ToString("N0", CultureInfo.InvariantCulture);
+
+    /// <summary>
+    /// Horizontal bars, one row per bar, labels on the left and the value at the end of each bar. Marks carry
+    /// <c>data-chart</c>, <c>data-label</c> and <c>data-value</c>.
+    /// </summary>
+    public static string HorizontalBars(string chart, string title, IReadOnlyList<Bar> bars, int width = 640)
+    {
+        const int rowHeight = 24, barHeight = 16, top = 6, gap = 8;
+        var labelWidth = Math.Clamp(bars.Count == 0 ? 0 : bars.Max(b => b.Label.Length) * CharWidth + gap, 60, width / 2);
+        var valueWidth = Math.Max(40, (bars.Count == 0 ? 1 : bars.Max(b => Count(b.Value).Length)) * CharWidth + gap);
+        var plot = width - labelWidth - valueWidth;
+        var max = bars.Count == 0 ? 0 : bars.Max(b => b.Value);
+        var height = top * 2 + Math.Max(1, bars.Count) * rowHeight;
+        var svg = Open(chart, title, width, height);
+        svg.Append($"<line x1=\"{labelWidth}\" y1=\"{top - 2}\" x2=\"{labelWidth}\" y2=\"{height - top + 2}\" stroke=\"#8a8f98\" stroke-width=\"1\"/>");
+        for (var i = 0; i < bars.Count; i++)
+        {
+            var b = bars[i];
+            var y = top + i * rowHeight + (rowHeight - barHeight) / 2.0;
+            var w = max == 0 ? 0 : plot * (double)b.Value / max;
+            var label = Encode(b.Label);
+            svg.Append($"<text x=\"{labelWidth - gap}\" y=\"{N(y + barHeight - 4)}\" text-anchor=\"end\" {Font} fill=\"#2b2f36\">{label}</text>");
+            svg.Append($"<rect class=\"mark\" data-chart=\"{Encode(chart)}\" data-label=\"{label}\" data-value=\"{b.Value}\" " +
+                $"x=\"{labelWidth}\" y=\"{N(y)}\" width=\"{N(w)}\" height=\"{barHeight}\" rx=\"2\" fill=\"{b.Color}\"><title>{label}: {Count(b.Value)}</title></rect>");
+            svg.Append($"<text x=\"{N(labelWidth + w + 6)}\" y=\"{N(y + barHeight - 4)}\" {Font} fill=\"#2b2f36\">{Count(b.Value)}</text>");
+        }
+        return svg.Append("</svg>").ToString();
+    }
+
+    /// <summary>
+    /// A histogram: one column per bin, left to right in the given order, with a count above each column, bin labels
+    /// below (slanted when they do not fit), a few horizontal grid lines and a caption under the axis. Marks carry
+    /// <c>data-chart</c>, <c>data-label</c> and <c>data-value</c>.
+    /// </summary>
+    public static string Columns(string chart, string title, IReadOnlyList<Bar> bins, string caption, int width = 1000)
+    {
+        const int top = 22, left = 48, right = 12, plotHeight = 190;
+        var n = Math.Max(1, bins.Count);
+        var column = (double)(width - left - right) / n;
+        var longest = bins.Count == 0 ? 0 : bins.Max(b => b.Label.Length);
+        var slanted = longest * CharWidth > column - 4;
+        var labelBand = slanted ? (int)(longest * CharWidth * 0.72) + 16 : 22;
+        var height = top + plotHeight + labelBand + 26;
+        var baseY = top + plotHeight;
+        var max = bins.Count == 0 ? 0 : bins.Max(b => b.Value);
+        var (tickStep, axisMax) = NiceAxis(max);
+        var svg = Open(chart, title, width, height);
+        for (var t = 0L; t <= axisMax; t += tickStep)
+        {
+            var y = baseY - plotHeight * (double)t / axisMax;
+            svg.Append($"<line x1=\"{left}\" y1=\"{N(y)}\" x2=\"{width - right}\" y2=\"{N(y)}\" stroke=\"{(t == 0 ? "#8a8f98" : "#e3e6ea")}\" stroke-width=\"1\"/>");
+            svg.Append($"<text x=\"{left - 6}\" y=\"{N(y + 4)}\" text-anchor=\"end\" font-size=\"11\" fill=\"#5b616b\">{Count(t)}</text>");
+        }
+        for (var i = 0; i < bins.Count; i++)
+        {
+            var b = bins[i];
+            var x = left + i * column;
+            var h = axisMax == 0 ? 0 : plotHeight * (double)b.Value / axisMax;
+            var w = Math.Max(1, column - Math.Min(6, column * 0.2));
+            var label = Encode(b.Label);
+            var cx = x + column / 2;
+            svg.Append($"<rect class=\"mark\" data-chart=\"{Encode(chart)}\" data-label=\"{label}\" data-value=\"{b.Value}\" " +
+                $"x=\"{N(x + (column - w) / 2)}\" y=\"{N(baseY - h)}\" width=\"{N(w)}\" height=\"{N(h)}\" fill=\"{b.Color}\"><title>{label}: {Count(b.Value)}</title></rect>");
+            if (b.Value > 0)
+                svg.Append($"<text x=\"{N(cx)}\" y=\"{N(baseY - h - 5)}\" text-anchor=\"middle\" font-size=\"11\" fill=\"#2b2f36\">{Count(b.Value)}</text>");
+            svg.Append(slanted
+                ? $"<text x=\"{N(cx)}\" y=\"{baseY + 14}\" text-anchor=\"end\" font-size=\"11\" fill=\"#2b2f36\" transform=\"rotate(-35 {N(cx)} {baseY + 14})\">{label}</text>"
+                : $"<text x=\"{N(cx)}\" y=\"{baseY + 16}\" text-anchor=\"middle\" font-size=\"11\" fill=\"#2b2f36\">{label}</text>");
+        }
+        svg.Append($"<text x=\"{N(left + (width - left - right) / 2.0)}\" y=\"{height - 8}\" text-anchor=\"middle\" {Font} fill=\"#5b616b\">{Encode(caption)}</text>");
+        return svg.Append("</svg>").ToString();
+    }
+
+    /// <summary>
+    /// A strip of squares, one per cell in order, wrapping after <paramref name="perRow"/>; each square is coloured by
+    /// its state and carries <c>data-state</c> and a tooltip.
+    /// </summary>
+    public static string Strip(string chart, string title, IReadOnlyList<StripCell> cells, int perRow = 40)
+    {
+        const int size = 10, gap = 2;
+        var columns = Math.Clamp(cells.Count, 1, perRow);
+        var rows = Math.Max(1, (cells.Count + perRow - 1) / perRow);
+        var width = columns * (size + gap);
+        var height = rows * (size + gap);
+        var svg = Open(chart, title, width, height);
+        for (var i = 0; i < cells.Count; i++)
+        {
+            var c = cells[i];
+            var x = i % perRow * (size + gap);
+            var y = i / perRow * (size + gap);
+            svg.Append($"<rect class=\"mark\" data-chart=\"{Encode(chart)}\" data-state=\"{Encode(c.State)}\" x=\"{x}\" y=\"{y}\" width=\"{size}\" height=\"{size}\" rx=\"1.5\" " +
+                $"fill=\"{ColorOf(c.State)}\"><title>{Encode(c.Title)}: {Encode(c.State)}</title></rect>");
+        }
+        return svg.Append("</svg>").ToString();
+    }
+
+    /// <summary>A grid step of 1, 2 or 5 × 10^k giving at most five steps up to at least <paramref name="max"/>, and that top.</summary>
+    internal static (long Step, long Top) NiceAxis(long max)
+    {
+        if (max <= 0) return (1, 1);
+        var step = 1L;
+        while (true)
+        {
+            foreach (var m in new[] { 1L, 2L, 5L })
+                if (step * m * 5 >= max) return (step * m, (max + step * m - 1) / (step * m) * (step * m));
+            step *= 10;
+        }
+    }
+
+    private static StringBuilder Open(string chart, string title, int width, int height) =>
+        new StringBuilder().Append($"<svg class=\"chart\" data-chart=\"{Encode(chart)}\" role=\"img\" aria-label=\"{Encode(title)}\" ")
+            .Append($"width=\"{width}\" height=\"{height}\" viewBox=\"0 0 {width} {height}\" font-family=\"inherit\"><title>{Encode(title)}</title>");
+}
