@@ -109,6 +109,9 @@ public sealed class PostgresStoreTests : IDisposable
         var show = Idq("show", "1", "--postgres", pg);
         Assert.Equal(0, show.Code);
         Assert.Equal(Idq("show", "1", "--db", sqlite).Out.Split('\n')[..4], show.Out.Split('\n')[..4]);
+        var report = Idq("report", "--postgres", pg, "--out", Path.Combine(_dir, "report"));
+        Assert.True(report.Code == 0, report.Err);
+        Assert.Contains("<svg", File.ReadAllText(Path.Combine(_dir, "report", "index.html")), StringComparison.Ordinal);
         var status = Idq("status", "--json", "--postgres", pg);
         Assert.Equal(0, status.Code);
         Assert.Contains("\"workers\"", status.Out);
