@@ -72,7 +72,7 @@ public sealed class HandOffExportTests : IDisposable
         return output.Split('\n', StringSplitOptions.RemoveEmptyEntries | StringSplitOptions.TrimEntries).ToList();
     }
 
-    [Fact]
+    [ExternalToolFact(Z3, "z3")]
     public void SmtLibScripts_OfTrueSurvivorsAreUnsat_InOneFilePerCandidate()
     {
         var db = MakeStore();
@@ -95,7 +95,7 @@ public sealed class HandOffExportTests : IDisposable
         }
     }
 
-    [Fact]
+    [ExternalToolFact(Z3, "z3")]
     public void SmtLibScript_OnStandardOutput_HasOnePushPopBlockPerCandidate()
     {
         var db = MakeStore();
@@ -107,7 +107,7 @@ public sealed class HandOffExportTests : IDisposable
         Assert.Equal(Enumerable.Repeat("unsat", TrueLabels.Length), RunZ3(script));
     }
 
-    [Fact]
+    [ExternalToolFact(Z3, "z3")]
     public void SmtLibScripts_OfFalseIdentitiesExportedByMistake_AreSat()
     {
         var db = MakeStore();

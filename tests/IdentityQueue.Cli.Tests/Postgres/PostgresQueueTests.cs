@@ -16,7 +16,7 @@ public sealed class PostgresQueueTests : IDisposable
 
     public PostgresQueueTests()
     {
-        _pg = PostgresServer.Missing is null || Environment.GetEnvironmentVariable("CI") is { Length: > 0 } ? PostgresServer.CreateDatabase() : "";
+        _pg = PostgresServer.Missing is null || ExternalTools.Required ? PostgresServer.CreateDatabase() : "";
     }
 
     public void Dispose()

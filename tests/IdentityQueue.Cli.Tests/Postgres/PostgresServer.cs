@@ -73,14 +73,14 @@ internal static class PostgresServer
 
 /// <summary>
 /// A test that needs the PostgreSQL server. Without one it is skipped with the reason shown in the test report — except
-/// in CI (the CI variable set), where a missing server must fail the run rather than skip it silently.
+/// when <see cref="ExternalTools.RequireVariable"/> is set (as .ci/run does), where a missing server must fail the run.
 /// </summary>
 [AttributeUsage(AttributeTargets.Method)]
 public sealed class PostgresFactAttribute : FactAttribute
 {
     public PostgresFactAttribute(bool restartsServer = false)
     {
-        if (Environment.GetEnvironmentVariable("CI") is { Length: > 0 }) return;
+        if (ExternalTools.Required) return;
         if (PostgresServer.Missing is { } reason) Skip = reason;
         else if (restartsServer && PostgresServer.ClusterFolder is null)
             Skip = $"{PostgresServer.ClusterVariable} is not set: this test restarts the server and needs the folder of a cluster made by tests/postgres/pg-cluster.sh";

@@ -41,7 +41,7 @@ public sealed class ReportBrowserTests : IDisposable
         return m.Groups[1].Value;
     }
 
-    [Fact]
+    [ExternalToolFact(Chromium.Executable, "chromium")]
     public void DemoReport_InChromium_HasTheChartsAndTablesOfTheStore()
     {
         Chromium.Require();
