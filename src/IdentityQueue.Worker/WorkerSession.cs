@@ -1,5 +1,6 @@
 using Microsoft.Extensions.DependencyInjection;
 using Microsoft.Extensions.Hosting;
+using Microsoft.Extensions.Logging;
 
 namespace IdentityQueue.Worker;
 
@@ -85,7 +86,7 @@ public sealed class WorkerSession : IDisposable
             catch (Exception e) when (_shared && e is not OutOfMemoryException)
             {
                 // The database is away (the store's own retries gave up for now): wait and look again.
-                Console.Error.WriteLine($"idq: the store is unreachable ({e.Message}); retrying");
+                _host.Services.GetRequiredService<ILogger<WorkerSession>>().LogWarning("the store is unreachable ({Problem}); retrying", e.Message);
                 cancellation.WaitHandle.WaitOne(settings.HeartbeatInterval);
                 if (cancellation.IsCancellationRequested) break;
                 continue;
