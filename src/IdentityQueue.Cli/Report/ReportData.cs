@@ -232,22 +232,8 @@ internal sealed class ReportData
         };
     }
 
-    /// <summary><c>{"n":3,"k":1}</c> → <c>n=3, k=1</c>, in the object's order; other text as it is; null → empty.</summary>
-    internal static string FormatParams(string? json)
-    {
-        if (string.IsNullOrWhiteSpace(json)) return "";
-        try
-        {
-            using var doc = JsonDocument.Parse(json);
-            if (doc.RootElement.ValueKind != JsonValueKind.Object) return json;
-            return string.Join(", ", doc.RootElement.EnumerateObject().Select(p =>
-                $"{p.Name}={(p.Value.ValueKind == JsonValueKind.String ? p.Value.GetString() : p.Value.GetRawText())}"));
-        }
-        catch (JsonException)
-        {
-            return json;
-        }
-    }
+    /// <summary><c>{"n":3,"k":1}</c> → <c>n=3, k=1</c>: the hand-off tables' formatting, so report and tables agree.</summary>
+    internal static string FormatParams(string? json) => Screening.HandOff.HandOffCandidate.FormatParams(json);
 
     /// <summary>
     /// The parameter values of the given instances, short: for one integer parameter, runs as ranges

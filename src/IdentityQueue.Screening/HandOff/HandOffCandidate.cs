@@ -29,22 +29,22 @@ public sealed record HandOffCandidate(
         : null;
 
     /// <summary>The params JSON as <c>n=3, k=1</c>; the text itself when it is not a JSON object.</summary>
-    public string ParamsText
+    public string ParamsText => FormatParams(Params);
+
+    /// <summary><c>{"n":3,"k":1}</c> → <c>n=3, k=1</c>, in the object's order; other text as it is; null → empty.</summary>
+    public static string FormatParams(string? json)
     {
-        get
+        if (string.IsNullOrWhiteSpace(json)) return "";
+        try
         {
-            if (string.IsNullOrWhiteSpace(Params)) return "";
-            try
-            {
-                using var document = JsonDocument.Parse(Params);
-                if (document.RootElement.ValueKind != JsonValueKind.Object) return Params;
-                return string.Join(", ", document.RootElement.EnumerateObject().Select(p =>
-                    $"{p.Name}={(p.Value.ValueKind == JsonValueKind.String ? p.Value.GetString() : p.Value.GetRawText())}"));
-            }
-            catch (JsonException)
-            {
-                return Params;
-            }
+            using var document = JsonDocument.Parse(json);
+            if (document.RootElement.ValueKind != JsonValueKind.Object) return json;
+            return string.Join(", ", document.RootElement.EnumerateObject().Select(p =>
+                $"{p.Name}={(p.Value.ValueKind == JsonValueKind.String ? p.Value.GetString() : p.Value.GetRawText())}"));
+        }
+        catch (JsonException)
+        {
+            return json;
         }
     }
 }
