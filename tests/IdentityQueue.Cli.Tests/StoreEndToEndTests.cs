@@ -7,7 +7,6 @@ namespace IdentityQueue.Cli.Tests;
 /// The product as users meet it, on a real SQLite file: init, import, run, then plain SQL on the public views.
 /// The identities are published ones (sources beside each), with known verdicts.
 /// </summary>
-[Collection(InProcessRuns.Name)]
 public sealed class StoreEndToEndTests : IDisposable
 {
     private readonly string _dir = Directory.CreateTempSubdirectory("idq-e2e-").FullName;

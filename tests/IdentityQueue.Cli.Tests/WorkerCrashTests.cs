@@ -10,7 +10,6 @@ namespace IdentityQueue.Cli.Tests;
 /// at the end every candidate has exactly one final state, no (candidate_id, seq) is stored twice, the evidence equals that
 /// of an uninterrupted run with the same seed, and SQLite's integrity check passes.
 /// </summary>
-[Collection(InProcessRuns.Name)]
 public sealed class WorkerCrashTests(ITestOutputHelper log) : IDisposable
 {
     private readonly string _dir = Directory.CreateTempSubdirectory("idq-crash-").FullName;

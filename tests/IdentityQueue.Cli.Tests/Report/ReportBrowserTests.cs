@@ -11,7 +11,6 @@ namespace IdentityQueue.Cli.Tests.Report;
 /// SQL counts (queried here, beside the report) and the DOM that the browser built from the page; the screenshot is
 /// checked for being a picture at all (many colours, no single colour filling it).
 /// </summary>
-[Collection(InProcessRuns.Name)]
 public sealed class ReportBrowserTests : IDisposable
 {
     private readonly StoreFolder _folder = new();

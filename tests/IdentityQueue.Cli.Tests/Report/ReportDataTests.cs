@@ -11,7 +11,6 @@ namespace IdentityQueue.Cli.Tests.Report;
 /// compared with a direct SQL count over the public tables and views, or with the same binning done here in C#.
 /// The identities' verdicts are published ones (sources beside each line).
 /// </summary>
-[Collection(InProcessRuns.Name)]
 public sealed class ReportDataTests(ReportDataTests.Store store) : IClassFixture<ReportDataTests.Store>
 {
     /// <summary>The store every test here reads: two catalogues, imported and run once.</summary>
