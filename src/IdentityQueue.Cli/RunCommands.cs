@@ -29,7 +29,7 @@ internal static class RunCommands
             },
             new Option<bool>("--two-pass")
             {
-                Description = "First give every candidate its cheap trial, then the survivors the rest: a partial run holds nearly all refutations, but the whole run is slower.",
+                Description = "First give every candidate its cheap stage of trials, then the survivors the rest: a partial run holds nearly all refutations, but the whole run is slower.",
             });
         args.Db.AddTo(command);
         command.Options.Add(args.Workers);

@@ -10,14 +10,18 @@ namespace IdentityQueue.Screening;
 /// </summary>
 public sealed record Rung(int PrimeBits, int ExtensionDegree, double SizeLog2)
 {
+    /// <summary>Tells the rungs of one ladder apart: the prime's bits over Q, the extension degree in characteristic p.</summary>
+    public int Key => ExtensionDegree == 0 ? PrimeBits : ExtensionDegree;
+
     public override string ToString() => ExtensionDegree == 0 ? $"{PrimeBits}-bit prime" : $"degree-{ExtensionDegree} extension ({SizeLog2:F0} bits)";
 }
 
 /// <summary>
 /// The ladder of field sizes: about 31, 62 and 127 bits (the fast rungs), then 256, 512, … up to
 /// <see cref="Algebra.Limits.MaxFieldBits"/>. A candidate starts at the cheapest rung where one trial buys at least
-/// <see cref="ScreeningOptions.MinBitsPerTrial"/> bits, moves up one rung per zero trial, and stays at the 127-bit rung
-/// (or its start, if higher) from then on. Stateless.
+/// <see cref="ScreeningOptions.MinBitsPerTrial"/> bits and moves up one rung once a rung has given a zero trial, staying at
+/// the 127-bit rung (or its start, if higher) from then on. Over Q, the 31- and 62-bit rungs run their trials as one block
+/// (<see cref="BlockTrialRunner"/>): as many independent trials as reach the target if all vanish. Stateless.
 /// </summary>
 public static class FieldLadder
 {
@@ -47,11 +51,16 @@ public static class FieldLadder
         return rungs;
     }
 
+    /// <summary>The <see cref="Rung.Key"/> of the rung a recorded trial ran on.</summary>
+    public static int RungOf(CompiledIdentity identity, TrialField field) =>
+        identity.Field.IsRationals ? (int)field.Modulus.GetBitLength() : field.ExtensionDegree;
+
     /// <summary>
-    /// The rung for the next trial after <paramref name="zeroTrials"/> zero trials, or null when no rung up to the largest
-    /// buys enough evidence (the degree bound is too large).
+    /// The rung for the next trials once zero trials have been recorded on <paramref name="climbed"/> rungs (one step up per
+    /// rung, so a survivor of the cheap stage moves to a larger field), or null when no rung up to the largest buys enough
+    /// evidence (the degree bound is too large).
     /// </summary>
-    public static Rung? Choose(CompiledIdentity identity, IReadOnlyList<Rung> rungs, int zeroTrials, int minBitsPerTrial)
+    public static Rung? Choose(CompiledIdentity identity, IReadOnlyList<Rung> rungs, int climbed, int minBitsPerTrial)
     {
         var start = -1;
         for (var i = 0; i < rungs.Count; i++)
@@ -61,7 +70,7 @@ public static class FieldLadder
         }
         if (start < 0) return null;
         var settle = Math.Max(start, Math.Min(SettleIndex, rungs.Count - 1));
-        return rungs[Math.Min(start + zeroTrials, settle)];
+        return rungs[Math.Min(start + climbed, settle)];
     }
 
     /// <summary>The bits one trial on the largest rung would buy: for the message when none is enough.</summary>

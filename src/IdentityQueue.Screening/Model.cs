@@ -77,10 +77,12 @@ public sealed record ScreeningOptions
     public Algebra.Limits Limits { get; init; } = Algebra.Limits.Default;
 
     /// <summary>
-    /// Stop with <see cref="Verdict.Pending"/> after this many new zero trials (null: go on to a final state). A two-pass
-    /// batch uses 1 in its first pass, so every candidate gets its cheap trial before any survivor moves to larger fields.
+    /// Stop with <see cref="Verdict.Pending"/> after this many new stages (a stage: the trials on one rung, run together,
+    /// that gave at least one zero trial); null: go on to a final state. A two-pass batch uses 1 in its first pass, so every
+    /// candidate gets its cheap stage before any survivor moves to larger fields; continuing later gives the same trials as
+    /// one go.
     /// </summary>
-    public int? MaxNewZeroTrials { get; init; }
+    public int? MaxNewStages { get; init; }
 
     /// <summary>Confirm refutations over Q by exact rational evaluation when it fits <see cref="Algebra.Limits.MaxCertifyBits"/>.</summary>
     public bool Certify { get; init; } = true;

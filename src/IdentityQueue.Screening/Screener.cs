@@ -1,5 +1,6 @@
 using System.Diagnostics;
 using IdentityQueue.Algebra.Compile;
+using IdentityQueue.Algebra.Evaluate;
 using IdentityQueue.Algebra.Fields;
 
 namespace IdentityQueue.Screening;
@@ -28,21 +29,23 @@ public static class Screener
         var accumulated = 0.0;
         var zeroTrials = 0;
         var consecutiveUndefined = 0;
+        var climbed = new HashSet<int>(); // the rungs with a zero trial: the ladder's position
         foreach (var t in trials)
         {
             if (t.Outcome == TrialOutcome.Nonzero) return Refuted(identity, options, trials, t);
-            if (t.Outcome == TrialOutcome.Zero) { accumulated += t.BoundLog2 ?? 0; zeroTrials++; consecutiveUndefined = 0; }
+            if (t.Outcome == TrialOutcome.Zero) { accumulated += t.BoundLog2 ?? 0; zeroTrials++; consecutiveUndefined = 0; climbed.Add(FieldLadder.RungOf(identity, t.Field)); }
             else consecutiveUndefined++;
         }
         var rungs = FieldLadder.Rungs(identity.Field, options.Limits.MaxFieldBits);
         var clock = Stopwatch.StartNew();
         var seq = trials.Count == 0 ? 1 : trials[^1].Seq + 1;
-        var newZeroTrials = 0;
+        var newStages = 0; // blocks of trials on one rung that gave at least one zero trial
+        BlockProgram? block = null; // prepared once, shared by every block of trials of this candidate
         while (accumulated > -options.TargetBits)
         {
-            if (newZeroTrials == options.MaxNewZeroTrials)
+            if (newStages == options.MaxNewStages)
                 return new ScreenResult(Verdict.Pending, bounds.Degree, bounds.HeightLog2, accumulated, trials, null, false, null);
-            var rung = FieldLadder.Choose(identity, rungs, zeroTrials, options.MinBitsPerTrial);
+            var rung = FieldLadder.Choose(identity, rungs, climbed.Count, options.MinBitsPerTrial);
             if (rung is null)
                 return Undecided(identity, trials, accumulated,
                     $"the degree bound {bounds.Degree} is too large: a trial in the largest field allowed (MaxFieldBits = {options.Limits.MaxFieldBits}) buys only {FieldLadder.BestBits(identity, rungs):F1} bits, fewer than {options.MinBitsPerTrial}");
@@ -50,27 +53,55 @@ public static class Screener
                 return Undecided(identity, trials, accumulated, $"the trial budget (MaxTrials = {options.Limits.MaxTrials}) ran out at 2^{accumulated:F1} of the target 2^-{options.TargetBits}");
             if (clock.Elapsed > options.Limits.TimePerCandidate || cancellation.IsCancellationRequested)
                 return Undecided(identity, trials, accumulated, $"the time budget (TimePerCandidate = {options.Limits.TimePerCandidate.TotalSeconds:F0} s) ran out at 2^{accumulated:F1} of the target 2^-{options.TargetBits}");
-            var trial = TrialRunner.Run(identity, rung, seq, TrialSeed(options.Seed, candidateKey, seq));
-            trials.Add(trial);
-            seq++;
-            switch (trial.Outcome)
+            TrialRecord[] stage;
+            if (BlockTrialRunner.Handles(identity, rung))
             {
-                case TrialOutcome.Nonzero:
-                    return Refuted(identity, options, trials, trial);
-                case TrialOutcome.Undefined:
-                    if (++consecutiveUndefined >= options.MaxConsecutiveUndefined)
-                        return Undecided(identity, trials, accumulated,
-                            $"lhs − rhs was undefined (a denominator vanished) at {consecutiveUndefined} random points in a row: a denominator may be identically zero");
-                    break;
-                default:
-                    consecutiveUndefined = 0;
-                    zeroTrials++;
-                    newZeroTrials++;
-                    accumulated += trial.BoundLog2 ?? 0;
-                    break;
+                var lanes = StageLanes(identity, rung, options, accumulated, trials.Count);
+                var seeds = new ulong[lanes];
+                for (var l = 0; l < lanes; l++) seeds[l] = TrialSeed(options.Seed, candidateKey, seq + l);
+                block ??= BlockProgram.Prepare(identity.Program);
+                stage = BlockTrialRunner.Run(identity, block, rung, seq, seeds);
             }
+            else stage = [TrialRunner.Run(identity, rung, seq, TrialSeed(options.Seed, candidateKey, seq))];
+            var stageZero = false;
+            foreach (var trial in stage)
+            {
+                trials.Add(trial);
+                seq++;
+                switch (trial.Outcome)
+                {
+                    case TrialOutcome.Nonzero:
+                        return Refuted(identity, options, trials, trial);
+                    case TrialOutcome.Undefined:
+                        if (++consecutiveUndefined >= options.MaxConsecutiveUndefined)
+                            return Undecided(identity, trials, accumulated,
+                                $"lhs − rhs was undefined (a denominator vanished) at {consecutiveUndefined} random points in a row: a denominator may be identically zero");
+                        break;
+                    default:
+                        consecutiveUndefined = 0;
+                        zeroTrials++;
+                        stageZero = true;
+                        accumulated += trial.BoundLog2 ?? 0;
+                        climbed.Add(rung.Key);
+                        break;
+                }
+                if (accumulated <= -options.TargetBits) break;
+            }
+            if (stageZero) newStages++;
         }
         return new ScreenResult(Verdict.Survived, bounds.Degree, bounds.HeightLog2, accumulated, trials, null, false, null);
+    }
+
+    /// <summary>
+    /// How many trials the next block on <paramref name="rung"/> runs: as many as reach the target if all of them vanish,
+    /// at most <see cref="BlockTrialRunner.MaxLanes"/> and within the trial budget.
+    /// </summary>
+    private static int StageLanes(CompiledIdentity identity, Rung rung, ScreeningOptions options, double accumulated, int trialCount)
+    {
+        var bits = -(Evidence.TrialBoundLog2(identity.Bounds, rung.SizeLog2, rung.PrimeBits) ?? -1);
+        var needed = Math.Ceiling((options.TargetBits + accumulated) / bits - 1e-9);
+        var lanes = (int)Math.Clamp(needed, 1, BlockTrialRunner.MaxLanes(rung));
+        return Math.Max(1, Math.Min(lanes, options.Limits.MaxTrials - trialCount));
     }
 
     /// <summary>In characteristic p, a rational constant whose denominator p divides (1/7 over GF(7), or binom(x, 7)'s 1/7!).</summary>

@@ -46,20 +46,27 @@ public static class TrialRunner
         ref Xoshiro256 random, Stopwatch clock, BigInteger[]? definingPolynomial)
         where TField : struct, IField<T> where T : struct
     {
-        var program = identity.Program;
-        var trialField = new TrialField(field.Characteristic, field.ExtensionDegree, definingPolynomial, field.SizeLog2);
-        var point = new T[program.Variables.Length];
+        var point = new T[identity.Program.Variables.Length];
         for (var i = 0; i < point.Length; i++) point[i] = field.Sample(ref random);
-        var pointValues = new PointValue[point.Length];
-        for (var i = 0; i < point.Length; i++) pointValues[i] = new PointValue(program.Variables[i], field.ToCoefficients(point[i]));
+        var difference = EvaluateDifference<TField, T>(field, identity.Program, point);
+        return Record<TField, T>(field, identity, seq, pointSeed, point, definingPolynomial, difference, Elapsed(clock));
+    }
 
-        var difference = EvaluateDifference<TField, T>(field, program, point);
+    /// <summary>The record of trial <paramref name="seq"/>: undefined, nonzero (the witness) or zero (with its bound).</summary>
+    internal static TrialRecord Record<TField, T>(TField field, CompiledIdentity identity, int seq, ulong pointSeed, ReadOnlySpan<T> point,
+        BigInteger[]? definingPolynomial, RecheckResult difference, long elapsedMicroseconds)
+        where TField : struct, IField<T> where T : struct
+    {
+        var variables = identity.Program.Variables;
+        var trialField = new TrialField(field.Characteristic, field.ExtensionDegree, definingPolynomial, field.SizeLog2);
+        var pointValues = new PointValue[point.Length];
+        for (var i = 0; i < point.Length; i++) pointValues[i] = new PointValue(variables[i], field.ToCoefficients(point[i]));
         if (!difference.Defined)
-            return new TrialRecord(seq, trialField, pointSeed, TrialOutcome.Undefined, pointValues, null, null, null, Elapsed(clock));
+            return new TrialRecord(seq, trialField, pointSeed, TrialOutcome.Undefined, pointValues, null, null, null, elapsedMicroseconds);
         if (difference.Refutes)
-            return new TrialRecord(seq, trialField, pointSeed, TrialOutcome.Nonzero, pointValues, difference.Difference, difference.Entry, null, Elapsed(clock));
+            return new TrialRecord(seq, trialField, pointSeed, TrialOutcome.Nonzero, pointValues, difference.Difference, difference.Entry, null, elapsedMicroseconds);
         var bound = Evidence.TrialBoundLog2(identity.Bounds, field.SizeLog2, identity.Field.IsRationals ? (int)field.Characteristic.GetBitLength() : null);
-        return new TrialRecord(seq, trialField, pointSeed, TrialOutcome.Zero, pointValues, null, null, bound ?? 0, Elapsed(clock));
+        return new TrialRecord(seq, trialField, pointSeed, TrialOutcome.Zero, pointValues, null, null, bound ?? 0, elapsedMicroseconds);
     }
 
     /// <summary>lhs − rhs at a point: undefined, zero (every output vanishes), or the first nonzero output and its entry name.</summary>

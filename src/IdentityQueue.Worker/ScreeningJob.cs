@@ -59,7 +59,7 @@ public sealed class ScreeningJob(IScreeningStore store, WorkerSettings settings,
                 Seed = work.Seed,
                 TargetBits = work.TargetBits,
                 Limits = settings.Limits,
-                MaxNewZeroTrials = settings.TwoPass && stage == 1 ? 1 : null,
+                MaxNewStages = settings.TwoPass && stage == 1 ? 1 : null,
             };
             return new CandidateOutcome(work.Id, Screener.Screen(compiled.Value!, options, (ulong)work.Id, work.Trials, cancellation), null, null);
         }

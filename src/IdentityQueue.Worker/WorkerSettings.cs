@@ -23,7 +23,7 @@ public sealed record WorkerSettings
     public TimeSpan PlanInterval { get; init; } = TimeSpan.FromMilliseconds(200);
 
     /// <summary>
-    /// Screen in two passes over the catalogue: first every candidate's cheap trial, then the survivors' remaining trials,
+    /// Screen in two passes over the catalogue: first every candidate's cheap stage (its trials on the cheapest rung), then the survivors' remaining trials,
     /// so that a partial run already holds nearly all refutations. Off by default: each survivor is then claimed, compiled
     /// and saved once instead of twice, which is about a fifth faster end to end (see the README's Performance section).
     /// Either way each candidate climbs the field ladder from the cheapest rung.

@@ -21,16 +21,59 @@ public class ScreenerTests
         Assert.True(r.ErrorBoundLog2 <= -200);
     }
 
-    // SPEC §5: the first trial uses the cheapest field where a trial is worth at least 16 bits, survivors move up.
+    // The first trials use the cheapest field where a trial is worth at least 16 bits, as one block of independent trials
+    // (each its own random prime) of at most 16; survivors that need more move up one rung per stage.
     [Fact]
     public void Escalation_StartsCheapAndMovesUp()
     {
-        var r = Some.Screen("(a^2+b^2)*(c^2+d^2) = (a*c-b*d)^2 + (a*d+b*c)^2", targetBits: 200);
+        var r = Some.Screen("(a^2+b^2)*(c^2+d^2) = (a*c-b*d)^2 + (a*d+b*c)^2", targetBits: 1200);
+        Assert.Equal(Verdict.Survived, r.Verdict);
         var bits = r.Trials.Select(t => (int)t.Field.Modulus.GetBitLength()).ToArray();
-        Assert.Equal(31, bits[0]);
-        Assert.Equal(62, bits[1]);
-        Assert.Equal(127, bits[2]);
+        Assert.Equal(Enumerable.Repeat(31, 16), bits.Take(16));
+        Assert.Equal(Enumerable.Repeat(62, 8), bits.Skip(16).Take(8));
+        Assert.All(bits.Skip(24), b => Assert.Equal(127, b));
+        Assert.True(bits.Length > 24);
+        Assert.Equal(r.Trials.Count, r.Trials.Select(t => t.Field.Modulus).Distinct().Count());
         Assert.All(r.Trials, t => Assert.True(t.BoundLog2 <= -16));
+    }
+
+    // A stage runs as many trials as reach the target if all vanish, so a cheap survivor needs one stage.
+    [Fact]
+    public void FirstStage_RunsJustEnoughTrialsForTheTarget()
+    {
+        var r = Some.Screen("(a^2+b^2)*(c^2+d^2) = (a*c-b*d)^2 + (a*d+b*c)^2", targetBits: 64);
+        Assert.Equal(Verdict.Survived, r.Verdict);
+        Assert.All(r.Trials, t => Assert.Equal(31, (int)t.Field.Modulus.GetBitLength()));
+        var perTrial = -r.Trials[0].BoundLog2!.Value;
+        Assert.Equal((int)Math.Ceiling(64 / perTrial), r.Trials.Count);
+    }
+
+    // The trials of a block are those that running each trial alone gives: same prime, point, outcome and bound.
+    [Theory]
+    [InlineData("(x+y)^5 = x^5 + 5*x^4*y + 10*x^3*y^2 + 10*x^2*y^3 + 5*x*y^4 + y^5", 64)]
+    [InlineData("(x+y)^5 = x^5 + 5*x^4*y + 10*x^3*y^2 + 10*x^2*y^3 + 5*x*y^4 + y^4", 64)]
+    [InlineData("det([[a, b], [c, d]]) * perm([[a, b], [c, d]]) = (a*d)^2 - (b*c)^2", 400)]
+    [InlineData("1/(x - y) + 1/(y - x) = 0", 300)]
+    [InlineData("[[x, 1], [0, x]]^3 = [[x^3, 3*x^2], [0, x^3]]", 200)]
+    [InlineData("[[x, 1], [0, x]]^3 = [[x^3, 3*x], [0, x^3]]", 200)]
+    public void BlockTrials_EqualTrialsRunOneByOne(string line, int targetBits)
+    {
+        var c = Some.Compiled(line);
+        var r = Screener.Screen(c, new ScreeningOptions { TargetBits = targetBits, Seed = 42 }, 17);
+        var rungs = FieldLadder.Rungs(c.Field, Algebra.Limits.Default.MaxFieldBits);
+        foreach (var t in r.Trials)
+        {
+            var rung = rungs.Single(g => g.PrimeBits == (int)t.Field.Modulus.GetBitLength());
+            Assert.Equal(rung.Key, FieldLadder.RungOf(c, t.Field));
+            var alone = TrialRunner.Run(c, rung, t.Seq, t.PointSeed);
+            Assert.Equal(alone.Field, t.Field);
+            Assert.Equal(alone.Outcome, t.Outcome);
+            Assert.Equal(alone.Point.Select(p => (p.Name, string.Join(",", p.Coordinates))), t.Point.Select(p => (p.Name, string.Join(",", p.Coordinates))));
+            Assert.Equal(alone.Difference is null ? null : string.Join(",", alone.Difference), t.Difference is null ? null : string.Join(",", t.Difference));
+            Assert.Equal(alone.Entry, t.Entry);
+            Assert.Equal(alone.BoundLog2, t.BoundLog2);
+            Assert.Equal(Screener.TrialSeed(42, 17, t.Seq), t.PointSeed);
+        }
     }
 
     // A large degree bound skips the rungs where a trial would buy fewer than 16 bits.
@@ -90,17 +133,19 @@ public class ScreenerTests
 
 public class StagedScreeningTests
 {
-    // The first stage gives every candidate one cheap zero trial; continuing later reaches the same evidence as one go.
-    [Fact]
-    public void StagedScreening_EqualsOneRun()
+    // The first pass gives every candidate its cheap stage; continuing later gives the same trials as one go.
+    [Theory]
+    [InlineData(64)]
+    [InlineData(700)]
+    public void StagedScreening_EqualsOneRun(int targetBits)
     {
         var c = Some.Compiled("(a+b)^3 = a^3 + 3*a^2*b + 3*a*b^2 + b^3");
-        var options = new ScreeningOptions { Seed = 11 };
-        var stage1 = Screener.Screen(c, options with { MaxNewZeroTrials = 1 }, 5);
-        Assert.Equal(Verdict.Pending, stage1.Verdict);
-        Assert.Single(stage1.Trials);
+        var options = new ScreeningOptions { Seed = 11, TargetBits = targetBits };
+        var stage1 = Screener.Screen(c, options with { MaxNewStages = 1 }, 5);
         var stage2 = Screener.Screen(c, options, 5, stage1.Trials);
         var once = Screener.Screen(c, options, 5);
+        Assert.Equal(targetBits > 400 ? Verdict.Pending : Verdict.Survived, stage1.Verdict);
+        Assert.All(stage1.Trials, t => Assert.Equal(31, (int)t.Field.Modulus.GetBitLength()));
         Assert.Equal(Verdict.Survived, stage2.Verdict);
         Assert.Equal(once.Trials.Select(t => (t.Seq, t.PointSeed, t.Field.Modulus)), stage2.Trials.Select(t => (t.Seq, t.PointSeed, t.Field.Modulus)));
         Assert.Equal(once.ErrorBoundLog2, stage2.ErrorBoundLog2);
@@ -109,7 +154,7 @@ public class StagedScreeningTests
     [Fact]
     public void FirstStage_RefutesFalseCandidates()
     {
-        var r = Screener.Screen(Some.Compiled("(a+b)^3 = a^3 + b^3"), new ScreeningOptions { Seed = 1, MaxNewZeroTrials = 1 }, 5);
+        var r = Screener.Screen(Some.Compiled("(a+b)^3 = a^3 + b^3"), new ScreeningOptions { Seed = 1, MaxNewStages = 1 }, 5);
         Assert.Equal(Verdict.Refuted, r.Verdict);
     }
 }

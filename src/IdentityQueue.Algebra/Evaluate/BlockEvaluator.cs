@@ -18,6 +18,20 @@ public static class BlockEvaluator
     /// <summary>Largest block size accepted.</summary>
     public const int MaxBlockSize = 1024;
 
+    /// <summary>
+    /// Lanes per vector instruction on this CPU for the rung of <typeparamref name="TField"/>: 16 (AVX-512) or 8 (AVX2) on
+    /// the 31-bit rung, 8 (AVX-512) on the 62-bit rung, else 1. A block of a multiple of it runs on whole vectors.
+    /// </summary>
+    public static int LanesPerInstruction<TField>() =>
+        typeof(TField) == typeof(PrimeField31) ? Lanes31.Best switch
+        {
+            LaneKernel.Avx512 => Vector512<uint>.Count,
+            LaneKernel.Avx2 => Vector256<uint>.Count,
+            _ => 1,
+        }
+        : typeof(TField) == typeof(PrimeField62) && Lanes62.Best == LaneKernel.Avx512 ? Vector512<ulong>.Count
+        : 1;
+
     /// <summary>An evaluator of <paramref name="program"/> over blocks of <paramref name="blockSize"/> points in <paramref name="field"/>.</summary>
     public static BlockEvaluator<TField, T> Create<TField, T>(TField field, BlockProgram program, int blockSize = DefaultBlockSize)
         where TField : struct, IField<T> where T : struct =>
@@ -29,7 +43,9 @@ public static class BlockEvaluator
 /// [slot][lane], so each operation is dispatched once per block and then runs over all lanes (independent chains that hide
 /// the multiply latency). Generic over the field (a struct type parameter, specialised by the JIT); the 31- and 62-bit
 /// Montgomery rungs run on raw representatives with AVX-512 (or AVX2 on the 31-bit rung) where the CPU has it, else on
-/// scalar lanes, with identical results. A division by zero makes only its lane undefined. Determinants and Pfaffians run
+/// scalar lanes, with identical results. Each lane may be in its own field (<see cref="UseFields"/>): the screener runs
+/// independent trials, each with its own random prime and point, as the lanes of one block. A division by zero makes only
+/// its lane undefined. Determinants and Pfaffians run
 /// per lane on a scratch matrix; permanents run Glynn's formula (odd characteristic) or Ryser's in Gray-code order on all
 /// lanes together. No allocation per block.
 /// Holds its buffers: not thread-safe; use one evaluator per thread (the <see cref="BlockProgram"/> can be shared).
@@ -45,12 +61,13 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
     private readonly T[] _permanent;
     private readonly LaneKernel _kernel31;
     private readonly LaneKernel _kernel62;
-    // the field and what is derived from it (replaced by UseField)
-    private TField _field;
-    private bool _constantsDefined;
+    // the lanes' fields and what is derived from them (replaced by UseField and UseFields)
+    private readonly TField[] _fields;
+    private readonly bool[] _constantUndefined;
+    private bool _uniform;
     private bool _oddCharacteristic;
-    private ulong _p62, _q62;
-    private uint _p31, _q31;
+    private readonly ulong[] _p62, _p62High, _q62;
+    private readonly uint[] _p31, _q31;
 
     /// <summary>An evaluator of <paramref name="program"/> over blocks of <paramref name="blockSize"/> points (1 to <see cref="BlockEvaluator.MaxBlockSize"/>).</summary>
     public BlockEvaluator(TField field, BlockProgram program, int blockSize = BlockEvaluator.DefaultBlockSize)
@@ -64,7 +81,6 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
         ArgumentNullException.ThrowIfNull(program);
         ArgumentOutOfRangeException.ThrowIfLessThan(blockSize, 1);
         ArgumentOutOfRangeException.ThrowIfGreaterThan(blockSize, BlockEvaluator.MaxBlockSize);
-        _field = field;
         _program = program;
         _b = blockSize;
         _registers = new T[checked(program.SlotCount * blockSize)];
@@ -74,29 +90,27 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
         _permanent = new T[program.MaxPermanentOrder == 0 ? 0 : (program.MaxPermanentOrder + 3) * blockSize];
         _kernel31 = Lanes31.Supported(kernel);
         _kernel62 = Lanes62.Supported(kernel);
+        _fields = new TField[blockSize];
+        _constantUndefined = new bool[blockSize];
+        var is62 = typeof(TField) == typeof(PrimeField62);
+        var is31 = typeof(TField) == typeof(PrimeField31);
+        (_p62, _p62High, _q62) = is62 ? (new ulong[blockSize], new ulong[blockSize], new ulong[blockSize]) : ([], [], []);
+        (_p31, _q31) = is31 ? (new uint[blockSize], new uint[blockSize]) : ([], []);
         UseField(field);
     }
 
     /// <summary>
-    /// Switches to another field of the same type (say, a fresh random prime for the next trial), keeping the buffers:
+    /// Puts every lane in <paramref name="field"/> (say, a fresh random prime for the next block), keeping the buffers:
     /// prepares the program's constants in it and returns <see cref="ConstantsDefined"/>.
     /// </summary>
     public bool UseField(TField field)
     {
-        _field = field;
+        for (var l = 0; l < _b; l++) SetLaneField(l, field);
+        _uniform = true;
         _oddCharacteristic = field.Characteristic != 2;
-        if (typeof(TField) == typeof(PrimeField62))
-        {
-            var f = (PrimeField62)(object)field;
-            (_p62, _q62) = (f.Modulus, f.ModulusInverse);
-        }
-        else if (typeof(TField) == typeof(PrimeField31))
-        {
-            var f = (PrimeField31)(object)field;
-            (_p31, _q31) = (f.Modulus, f.ModulusInverse);
-        }
-        _constantsDefined = Evaluator.TryPrepareConstants<TField, T>(field, _program.Program, out var constants);
-        if (_constantsDefined)
+        var defined = Evaluator.TryPrepareConstants<TField, T>(field, _program.Program, out var constants);
+        Array.Fill(_constantUndefined, !defined);
+        if (defined)
         {
             for (var c = 0; c < constants.Length; c++)
             {
@@ -104,17 +118,70 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
                 if (slot >= 0) _registers.AsSpan(slot * _b, _b).Fill(constants[c]);
             }
         }
-        return _constantsDefined;
+        return defined;
     }
 
-    public TField Field => _field;
+    /// <summary>
+    /// Puts lane l in <paramref name="fields"/>[l] (one field per lane: independent trials, each with its own random prime,
+    /// evaluated together), keeping the buffers, and prepares the program's constants lane by lane. A lane where a
+    /// constant's denominator vanishes is undefined at every point. Returns the number of lanes whose constants are defined.
+    /// </summary>
+    public int UseFields(ReadOnlySpan<TField> fields)
+    {
+        if (fields.Length != _b) throw new ArgumentException($"need one field per lane ({_b}), got {fields.Length}", nameof(fields));
+        _uniform = true;
+        _oddCharacteristic = true;
+        for (var l = 0; l < _b; l++)
+        {
+            SetLaneField(l, fields[l]);
+            _uniform &= EqualityComparer<TField>.Default.Equals(fields[l], fields[0]);
+            _oddCharacteristic &= fields[l].Characteristic != 2;
+        }
+        Array.Clear(_constantUndefined);
+        var constants = _program.Program.Constants;
+        for (var c = 0; c < constants.Length; c++)
+        {
+            var slot = _program.ConstantSlots[c];
+            if (slot < 0) continue;
+            var lanes = _registers.AsSpan(slot * _b, _b);
+            for (var l = 0; l < _b; l++)
+            {
+                if (Evaluator.TryConstant(fields[l], constants[c], out T value)) lanes[l] = value;
+                else _constantUndefined[l] = true;
+            }
+        }
+        var count = 0;
+        foreach (var undefined in _constantUndefined) if (!undefined) count++;
+        return count;
+    }
+
+    private void SetLaneField(int l, TField field)
+    {
+        _fields[l] = field;
+        if (typeof(TField) == typeof(PrimeField62))
+        {
+            var f = (PrimeField62)(object)field;
+            (_p62[l], _p62High[l], _q62[l]) = (f.Modulus, f.Modulus >> 32, f.ModulusInverse);
+        }
+        else if (typeof(TField) == typeof(PrimeField31))
+        {
+            var f = (PrimeField31)(object)field;
+            (_p31[l], _q31[l]) = (f.Modulus, f.ModulusInverse);
+        }
+    }
+
+    /// <summary>The field of lane 0 (of every lane after <see cref="UseField"/>).</summary>
+    public TField Field => _fields[0];
+
+    /// <summary>The field of lane <paramref name="lane"/>.</summary>
+    public TField LaneField(int lane) => _fields[lane];
     public BlockProgram Program => _program;
 
     /// <summary>Points per block.</summary>
     public int BlockSize => _b;
 
-    /// <summary>False when a constant's denominator vanishes in this field: then every point is undefined.</summary>
-    public bool ConstantsDefined => _constantsDefined;
+    /// <summary>False when a constant's denominator vanishes in some lane's field: then every point of that lane is undefined.</summary>
+    public bool ConstantsDefined => Array.IndexOf(_constantUndefined, true) < 0;
 
     /// <summary>Which kernels run: the rung and, on the 31- and 62-bit rungs, the vector instructions.</summary>
     public string Kernel =>
@@ -146,13 +213,13 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
             throw new ArgumentException($"need {source.Outputs.Length} outputs × {b} lanes, got {outputs.Length}", nameof(outputs));
         if (defined.Length < b) throw new ArgumentException($"need {b} lanes, got {defined.Length}", nameof(defined));
 
-        if (!_constantsDefined)
+        if (Array.IndexOf(_constantUndefined, false) < 0)
         {
-            outputs[..(source.Outputs.Length * b)].Fill(_field.Zero);
+            outputs[..(source.Outputs.Length * b)].Fill(_fields[0].Zero);
             defined[..b].Fill(false);
             return 0;
         }
-        Array.Clear(_undefined);
+        _constantUndefined.CopyTo(_undefined, 0);
         if (typeof(TField) == typeof(PrimeField62) && typeof(T) == typeof(Residue62))
         {
             if (_kernel62 == LaneKernel.Avx512 && b % Vector512<ulong>.Count == 0) Run62Avx512(points);
@@ -180,7 +247,7 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
 
     private void RunGeneric(ReadOnlySpan<T> points)
     {
-        var f = _field;
+        var f = _fields;
         var b = _b;
         var r = _registers.AsSpan();
         foreach (var ins in _program.Instructions)
@@ -193,27 +260,27 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
                 {
                     var x = r.Slice(ins.A * b, b);
                     var y = r.Slice(ins.B * b, b);
-                    for (var i = 0; i < d.Length; i++) d[i] = f.Add(x[i], y[i]);
+                    for (var i = 0; i < d.Length; i++) d[i] = f[i].Add(x[i], y[i]);
                     break;
                 }
                 case BlockOpCode.Subtract:
                 {
                     var x = r.Slice(ins.A * b, b);
                     var y = r.Slice(ins.B * b, b);
-                    for (var i = 0; i < d.Length; i++) d[i] = f.Subtract(x[i], y[i]);
+                    for (var i = 0; i < d.Length; i++) d[i] = f[i].Subtract(x[i], y[i]);
                     break;
                 }
                 case BlockOpCode.Multiply:
                 {
                     var x = r.Slice(ins.A * b, b);
                     var y = r.Slice(ins.B * b, b);
-                    for (var i = 0; i < d.Length; i++) d[i] = f.Multiply(x[i], y[i]);
+                    for (var i = 0; i < d.Length; i++) d[i] = f[i].Multiply(x[i], y[i]);
                     break;
                 }
                 case BlockOpCode.Negate:
                 {
                     var x = r.Slice(ins.A * b, b);
-                    for (var i = 0; i < d.Length; i++) d[i] = f.Negate(x[i]);
+                    for (var i = 0; i < d.Length; i++) d[i] = f[i].Negate(x[i]);
                     break;
                 }
                 case BlockOpCode.MultiplyAdd:
@@ -221,7 +288,7 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
                     var x = r.Slice(ins.A * b, b);
                     var y = r.Slice(ins.B * b, b);
                     var z = r.Slice(ins.C * b, b);
-                    for (var i = 0; i < d.Length; i++) d[i] = f.MultiplyAdd(x[i], y[i], z[i]);
+                    for (var i = 0; i < d.Length; i++) d[i] = f[i].MultiplyAdd(x[i], y[i], z[i]);
                     break;
                 }
                 case BlockOpCode.MultiplySubtract:
@@ -229,7 +296,7 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
                     var x = r.Slice(ins.A * b, b);
                     var y = r.Slice(ins.B * b, b);
                     var z = r.Slice(ins.C * b, b);
-                    for (var i = 0; i < d.Length; i++) d[i] = f.Subtract(f.Multiply(x[i], y[i]), z[i]);
+                    for (var i = 0; i < d.Length; i++) d[i] = f[i].Subtract(f[i].Multiply(x[i], y[i]), z[i]);
                     break;
                 }
                 case BlockOpCode.NegativeMultiplyAdd:
@@ -237,7 +304,7 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
                     var x = r.Slice(ins.A * b, b);
                     var y = r.Slice(ins.B * b, b);
                     var z = r.Slice(ins.C * b, b);
-                    for (var i = 0; i < d.Length; i++) d[i] = f.Subtract(z[i], f.Multiply(x[i], y[i]));
+                    for (var i = 0; i < d.Length; i++) d[i] = f[i].Subtract(z[i], f[i].Multiply(x[i], y[i]));
                     break;
                 }
                 default: RunOther(ins); break;
@@ -298,9 +365,9 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
     private void Run62Avx512(ReadOnlySpan<T> points)
     {
         var w = _b / Vector512<ulong>.Count;
-        var p = Vector512.Create(_p62);
-        var pHigh = Vector512.Create(_p62 >> 32);
-        var q = Vector512.Create(_q62);
+        var p = MemoryMarshal.Cast<ulong, Vector512<ulong>>(_p62.AsSpan());
+        var pHigh = MemoryMarshal.Cast<ulong, Vector512<ulong>>(_p62High.AsSpan());
+        var q = MemoryMarshal.Cast<ulong, Vector512<ulong>>(_q62.AsSpan());
         var r = MemoryMarshal.Cast<T, Vector512<ulong>>(_registers.AsSpan());
         var v = MemoryMarshal.Cast<T, Vector512<ulong>>(points[..(_program.Program.Variables.Length * _b)]);
         foreach (var ins in _program.Instructions)
@@ -313,27 +380,27 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
                 {
                     var x = r.Slice(ins.A * w, d.Length);
                     var y = r.Slice(ins.B * w, d.Length);
-                    for (var j = 0; j < d.Length; j++) d[j] = Lanes62.AddMod(x[j], y[j], p);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes62.AddMod(x[j], y[j], p[j]);
                     break;
                 }
                 case BlockOpCode.Subtract:
                 {
                     var x = r.Slice(ins.A * w, d.Length);
                     var y = r.Slice(ins.B * w, d.Length);
-                    for (var j = 0; j < d.Length; j++) d[j] = Lanes62.SubMod(x[j], y[j], p);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes62.SubMod(x[j], y[j], p[j]);
                     break;
                 }
                 case BlockOpCode.Multiply:
                 {
                     var x = r.Slice(ins.A * w, d.Length);
                     var y = r.Slice(ins.B * w, d.Length);
-                    for (var j = 0; j < d.Length; j++) d[j] = Lanes62.Multiply(x[j], y[j], p, pHigh, q);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes62.Multiply(x[j], y[j], p[j], pHigh[j], q[j]);
                     break;
                 }
                 case BlockOpCode.Negate:
                 {
                     var x = r.Slice(ins.A * w, d.Length);
-                    for (var j = 0; j < d.Length; j++) d[j] = Lanes62.SubMod(Vector512<ulong>.Zero, x[j], p);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes62.SubMod(Vector512<ulong>.Zero, x[j], p[j]);
                     break;
                 }
                 case BlockOpCode.MultiplyAdd:
@@ -341,7 +408,7 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
                     var x = r.Slice(ins.A * w, d.Length);
                     var y = r.Slice(ins.B * w, d.Length);
                     var z = r.Slice(ins.C * w, d.Length);
-                    for (var j = 0; j < d.Length; j++) d[j] = Lanes62.AddMod(Lanes62.Multiply(x[j], y[j], p, pHigh, q), z[j], p);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes62.AddMod(Lanes62.Multiply(x[j], y[j], p[j], pHigh[j], q[j]), z[j], p[j]);
                     break;
                 }
                 case BlockOpCode.MultiplySubtract:
@@ -349,7 +416,7 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
                     var x = r.Slice(ins.A * w, d.Length);
                     var y = r.Slice(ins.B * w, d.Length);
                     var z = r.Slice(ins.C * w, d.Length);
-                    for (var j = 0; j < d.Length; j++) d[j] = Lanes62.SubMod(Lanes62.Multiply(x[j], y[j], p, pHigh, q), z[j], p);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes62.SubMod(Lanes62.Multiply(x[j], y[j], p[j], pHigh[j], q[j]), z[j], p[j]);
                     break;
                 }
                 case BlockOpCode.NegativeMultiplyAdd:
@@ -357,7 +424,7 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
                     var x = r.Slice(ins.A * w, d.Length);
                     var y = r.Slice(ins.B * w, d.Length);
                     var z = r.Slice(ins.C * w, d.Length);
-                    for (var j = 0; j < d.Length; j++) d[j] = Lanes62.SubMod(z[j], Lanes62.Multiply(x[j], y[j], p, pHigh, q), p);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes62.SubMod(z[j], Lanes62.Multiply(x[j], y[j], p[j], pHigh[j], q[j]), p[j]);
                     break;
                 }
                 default: RunOther(ins); break;
@@ -369,8 +436,8 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
     private void Run31Avx512(ReadOnlySpan<T> points)
     {
         var w = _b / Vector512<uint>.Count;
-        var p = Vector512.Create(_p31);
-        var q = Vector512.Create(_q31);
+        var p = MemoryMarshal.Cast<uint, Vector512<uint>>(_p31.AsSpan());
+        var q = MemoryMarshal.Cast<uint, Vector512<uint>>(_q31.AsSpan());
         var r = MemoryMarshal.Cast<T, Vector512<uint>>(_registers.AsSpan());
         var v = MemoryMarshal.Cast<T, Vector512<uint>>(points[..(_program.Program.Variables.Length * _b)]);
         foreach (var ins in _program.Instructions)
@@ -383,27 +450,27 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
                 {
                     var x = r.Slice(ins.A * w, d.Length);
                     var y = r.Slice(ins.B * w, d.Length);
-                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.AddMod(x[j], y[j], p);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.AddMod(x[j], y[j], p[j]);
                     break;
                 }
                 case BlockOpCode.Subtract:
                 {
                     var x = r.Slice(ins.A * w, d.Length);
                     var y = r.Slice(ins.B * w, d.Length);
-                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.SubMod(x[j], y[j], p);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.SubMod(x[j], y[j], p[j]);
                     break;
                 }
                 case BlockOpCode.Multiply:
                 {
                     var x = r.Slice(ins.A * w, d.Length);
                     var y = r.Slice(ins.B * w, d.Length);
-                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.Multiply(x[j], y[j], p, q);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.Multiply(x[j], y[j], p[j], q[j]);
                     break;
                 }
                 case BlockOpCode.Negate:
                 {
                     var x = r.Slice(ins.A * w, d.Length);
-                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.SubMod(Vector512<uint>.Zero, x[j], p);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.SubMod(Vector512<uint>.Zero, x[j], p[j]);
                     break;
                 }
                 case BlockOpCode.MultiplyAdd:
@@ -411,7 +478,7 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
                     var x = r.Slice(ins.A * w, d.Length);
                     var y = r.Slice(ins.B * w, d.Length);
                     var z = r.Slice(ins.C * w, d.Length);
-                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.AddMod(Lanes31.Multiply(x[j], y[j], p, q), z[j], p);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.AddMod(Lanes31.Multiply(x[j], y[j], p[j], q[j]), z[j], p[j]);
                     break;
                 }
                 case BlockOpCode.MultiplySubtract:
@@ -419,7 +486,7 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
                     var x = r.Slice(ins.A * w, d.Length);
                     var y = r.Slice(ins.B * w, d.Length);
                     var z = r.Slice(ins.C * w, d.Length);
-                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.SubMod(Lanes31.Multiply(x[j], y[j], p, q), z[j], p);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.SubMod(Lanes31.Multiply(x[j], y[j], p[j], q[j]), z[j], p[j]);
                     break;
                 }
                 case BlockOpCode.NegativeMultiplyAdd:
@@ -427,7 +494,7 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
                     var x = r.Slice(ins.A * w, d.Length);
                     var y = r.Slice(ins.B * w, d.Length);
                     var z = r.Slice(ins.C * w, d.Length);
-                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.SubMod(z[j], Lanes31.Multiply(x[j], y[j], p, q), p);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.SubMod(z[j], Lanes31.Multiply(x[j], y[j], p[j], q[j]), p[j]);
                     break;
                 }
                 default: RunOther(ins); break;
@@ -439,8 +506,8 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
     private void Run31Avx2(ReadOnlySpan<T> points)
     {
         var w = _b / Vector256<uint>.Count;
-        var p = Vector256.Create(_p31);
-        var q = Vector256.Create(_q31);
+        var p = MemoryMarshal.Cast<uint, Vector256<uint>>(_p31.AsSpan());
+        var q = MemoryMarshal.Cast<uint, Vector256<uint>>(_q31.AsSpan());
         var r = MemoryMarshal.Cast<T, Vector256<uint>>(_registers.AsSpan());
         var v = MemoryMarshal.Cast<T, Vector256<uint>>(points[..(_program.Program.Variables.Length * _b)]);
         foreach (var ins in _program.Instructions)
@@ -453,27 +520,27 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
                 {
                     var x = r.Slice(ins.A * w, d.Length);
                     var y = r.Slice(ins.B * w, d.Length);
-                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.AddMod(x[j], y[j], p);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.AddMod(x[j], y[j], p[j]);
                     break;
                 }
                 case BlockOpCode.Subtract:
                 {
                     var x = r.Slice(ins.A * w, d.Length);
                     var y = r.Slice(ins.B * w, d.Length);
-                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.SubMod(x[j], y[j], p);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.SubMod(x[j], y[j], p[j]);
                     break;
                 }
                 case BlockOpCode.Multiply:
                 {
                     var x = r.Slice(ins.A * w, d.Length);
                     var y = r.Slice(ins.B * w, d.Length);
-                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.Multiply(x[j], y[j], p, q);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.Multiply(x[j], y[j], p[j], q[j]);
                     break;
                 }
                 case BlockOpCode.Negate:
                 {
                     var x = r.Slice(ins.A * w, d.Length);
-                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.SubMod(Vector256<uint>.Zero, x[j], p);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.SubMod(Vector256<uint>.Zero, x[j], p[j]);
                     break;
                 }
                 case BlockOpCode.MultiplyAdd:
@@ -481,7 +548,7 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
                     var x = r.Slice(ins.A * w, d.Length);
                     var y = r.Slice(ins.B * w, d.Length);
                     var z = r.Slice(ins.C * w, d.Length);
-                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.AddMod(Lanes31.Multiply(x[j], y[j], p, q), z[j], p);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.AddMod(Lanes31.Multiply(x[j], y[j], p[j], q[j]), z[j], p[j]);
                     break;
                 }
                 case BlockOpCode.MultiplySubtract:
@@ -489,7 +556,7 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
                     var x = r.Slice(ins.A * w, d.Length);
                     var y = r.Slice(ins.B * w, d.Length);
                     var z = r.Slice(ins.C * w, d.Length);
-                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.SubMod(Lanes31.Multiply(x[j], y[j], p, q), z[j], p);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.SubMod(Lanes31.Multiply(x[j], y[j], p[j], q[j]), z[j], p[j]);
                     break;
                 }
                 case BlockOpCode.NegativeMultiplyAdd:
@@ -497,7 +564,7 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
                     var x = r.Slice(ins.A * w, d.Length);
                     var y = r.Slice(ins.B * w, d.Length);
                     var z = r.Slice(ins.C * w, d.Length);
-                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.SubMod(z[j], Lanes31.Multiply(x[j], y[j], p, q), p);
+                    for (var j = 0; j < d.Length; j++) d[j] = Lanes31.SubMod(z[j], Lanes31.Multiply(x[j], y[j], p[j], q[j]), p[j]);
                     break;
                 }
                 default: RunOther(ins); break;
@@ -519,15 +586,25 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
     }
 
     /// <summary>
-    /// 1/a on every lane with one field inversion (Montgomery's batch trick: prefix products, one inverse, and back
-    /// again); a lane where a vanishes is undefined and gets 0.
+    /// 1/a on every lane. When all lanes share one field, with one field inversion (Montgomery's batch trick: prefix
+    /// products, one inverse, and back again); else lane by lane in each lane's field. A lane where a vanishes is undefined
+    /// and gets 0.
     /// </summary>
     private void Invert(BlockInstruction ins)
     {
-        var f = _field;
         var b = _b;
         var a = _registers.AsSpan(ins.A * b, b);
         var d = _registers.AsSpan(ins.Dest * b, b);
+        if (!_uniform)
+        {
+            for (var i = 0; i < b; i++)
+            {
+                if (_fields[i].TryInvert(a[i], out var x)) d[i] = x;
+                else { d[i] = _fields[i].Zero; _undefined[i] = true; }
+            }
+            return;
+        }
+        var f = _fields[0];
         var prefix = _laneScratch.AsSpan();
         var product = f.One;
         for (var i = 0; i < b; i++)
@@ -557,12 +634,11 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
     /// <summary>a^e by left-to-right square-and-multiply, all lanes at each step.</summary>
     private void Power(BlockInstruction ins)
     {
-        var f = _field;
         var b = _b;
         var a = _registers.AsSpan(ins.A * b, b);
         var d = _registers.AsSpan(ins.Dest * b, b);
         var plan = _program.Exponents[ins.B];
-        if (plan.IsZero) { d.Fill(f.One); return; }
+        if (plan.IsZero) { FillOne(d); return; }
         a.CopyTo(d);
         foreach (var bit in plan.Bits)
         {
@@ -584,8 +660,8 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
         {
             for (var k = 0; k < m.Length; k++) m[k] = r[slots[k] * b + l];
             d[l] = ins.Op == BlockOpCode.Determinant
-                ? MatrixKernels.Determinant(_field, m, n)
-                : MatrixKernels.Pfaffian(_field, m, n);
+                ? MatrixKernels.Determinant(_fields[l], m, n)
+                : MatrixKernels.Pfaffian(_fields[l], m, n);
         }
     }
 
@@ -597,20 +673,19 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
     /// </summary>
     private void Permanent(BlockInstruction ins)
     {
-        var f = _field;
         var b = _b;
         var n = ins.B;
         var r = _registers.AsSpan();
         var d = r.Slice(ins.Dest * b, b);
-        if (n == 0) { d.Fill(f.One); return; }
+        if (n == 0) { FillOne(d); return; }
         var slots = _program.MatrixSlots.AsSpan(ins.A, n * n);
         var scratch = _permanent.AsSpan(0, (n + 3) * b);
         var sums = scratch[..(n * b)];
         var product = scratch.Slice(n * b, b);
         var even = scratch.Slice((n + 1) * b, b);
         var odd = scratch.Slice((n + 2) * b, b);
-        even.Fill(f.Zero);
-        odd.Fill(f.Zero);
+        FillZero(even);
+        FillZero(odd);
         var glynn = n >= MatrixKernels.GlynnMinOrder && _oddCharacteristic;
         ulong steps;
         if (glynn)
@@ -628,7 +703,7 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
         }
         else
         {
-            sums.Fill(f.Zero);
+            for (var j = 0; j < n; j++) FillZero(sums.Slice(j * b, b));
             steps = 1UL << n;
         }
         var flipped = 0UL;
@@ -654,18 +729,32 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
         }
         if (glynn)
         {
-            // perm = 2^−(n−1) (even − odd)
-            f.TryInvert(f.FromInteger(BigInteger.One << (n - 1)), out var scale);
-            for (var l = 0; l < b; l++) d[l] = f.Multiply(f.Subtract(even[l], odd[l]), scale);
+            // perm = 2^−(n−1) (even − odd), in each lane's field
+            var power = BigInteger.One << (n - 1);
+            for (var l = 0; l < b; l++)
+            {
+                var f = _fields[l];
+                f.TryInvert(f.FromInteger(power), out var scale);
+                d[l] = f.Multiply(f.Subtract(even[l], odd[l]), scale);
+            }
         }
-        else if ((n & 1) == 0) for (var l = 0; l < b; l++) d[l] = f.Subtract(even[l], odd[l]);
-        else for (var l = 0; l < b; l++) d[l] = f.Subtract(odd[l], even[l]);
+        else if ((n & 1) == 0) for (var l = 0; l < b; l++) d[l] = _fields[l].Subtract(even[l], odd[l]);
+        else for (var l = 0; l < b; l++) d[l] = _fields[l].Subtract(odd[l], even[l]);
+    }
+
+    private void FillOne(Span<T> lanes)
+    {
+        for (var l = 0; l < lanes.Length; l++) lanes[l] = _fields[l].One;
+    }
+
+    private void FillZero(Span<T> lanes)
+    {
+        for (var l = 0; l < lanes.Length; l++) lanes[l] = _fields[l].Zero;
     }
 
     /// <summary>product[l] ← Π_j sums[j][l], lane by lane (the lanes are the independent chains).</summary>
     private void LaneProduct(Span<T> sums, Span<T> product, int n)
     {
-        var f = _field;
         var b = _b;
         sums[..b].CopyTo(product);
         for (var j = 1; j < n; j++) LaneMultiply(product, sums.Slice(j * b, b));
@@ -679,7 +768,7 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
         else if (typeof(TField) == typeof(PrimeField31) && typeof(T) == typeof(Residue31))
             Lanes31.Add(_kernel31, MemoryMarshal.Cast<T, uint>(s), MemoryMarshal.Cast<T, uint>(x), MemoryMarshal.Cast<T, uint>(s), _p31);
         else
-            for (var l = 0; l < s.Length; l++) s[l] = _field.Add(s[l], x[l]);
+            for (var l = 0; l < s.Length; l++) s[l] = _fields[l].Add(s[l], x[l]);
     }
 
     /// <summary>s ← s − x lane by lane.</summary>
@@ -690,7 +779,7 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
         else if (typeof(TField) == typeof(PrimeField31) && typeof(T) == typeof(Residue31))
             Lanes31.Subtract(_kernel31, MemoryMarshal.Cast<T, uint>(s), MemoryMarshal.Cast<T, uint>(x), MemoryMarshal.Cast<T, uint>(s), _p31);
         else
-            for (var l = 0; l < s.Length; l++) s[l] = _field.Subtract(s[l], x[l]);
+            for (var l = 0; l < s.Length; l++) s[l] = _fields[l].Subtract(s[l], x[l]);
     }
 
     /// <summary>s ← s·x lane by lane.</summary>
@@ -701,6 +790,6 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
         else if (typeof(TField) == typeof(PrimeField31) && typeof(T) == typeof(Residue31))
             Lanes31.Multiply(_kernel31, MemoryMarshal.Cast<T, uint>(s), MemoryMarshal.Cast<T, uint>(x), MemoryMarshal.Cast<T, uint>(s), _p31, _q31);
         else
-            for (var l = 0; l < s.Length; l++) s[l] = _field.Multiply(s[l], x[l]);
+            for (var l = 0; l < s.Length; l++) s[l] = _fields[l].Multiply(s[l], x[l]);
     }
 }

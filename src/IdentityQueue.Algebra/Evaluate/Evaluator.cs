@@ -20,13 +20,18 @@ public static class Evaluator
     {
         constants = new T[program.Constants.Length];
         for (var i = 0; i < constants.Length; i++)
-        {
-            var c = program.Constants[i];
-            var numerator = field.FromInteger(c.Numerator);
-            if (c.IsInteger) { constants[i] = numerator; continue; }
-            if (!field.TryInvert(field.FromInteger(c.Denominator), out var inverse)) return false;
-            constants[i] = field.Multiply(numerator, inverse);
-        }
+            if (!TryConstant(field, program.Constants[i], out constants[i])) return false;
+        return true;
+    }
+
+    /// <summary>The rational constant <paramref name="c"/> in <paramref name="field"/>, or false when its denominator is 0 there.</summary>
+    public static bool TryConstant<TField, T>(TField field, Exact.Rational c, out T value)
+        where TField : struct, IField<T> where T : struct
+    {
+        var numerator = field.FromInteger(c.Numerator);
+        if (c.IsInteger) { value = numerator; return true; }
+        if (!field.TryInvert(field.FromInteger(c.Denominator), out var inverse)) { value = field.Zero; return false; }
+        value = field.Multiply(numerator, inverse);
         return true;
     }
 

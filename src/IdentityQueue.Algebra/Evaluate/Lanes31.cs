@@ -10,7 +10,8 @@ namespace IdentityQueue.Algebra.Evaluate;
 /// [0, p), p &lt; 2^31). The vector kernels multiply the even and the odd 32-bit lanes separately with the unsigned
 /// 32×32→64-bit multiply (<c>vpmuludq</c>), run Montgomery reduction in subtractive form on both halves (the low words of
 /// t and m·p cancel, so a 64-bit subtraction leaves hi(t) − hi(m·p) in the high word), and merge the halves with a shift
-/// and an or; corrections use the unsigned minimum: for x in [0, 2p), min(x, x − p) is x mod p. The destination may be one
+/// and an or; each 32-bit lane may have its own modulus (the odd lanes' moduli are shifted down for <c>vpmuludq</c>,
+/// which reads the even lanes); corrections use the unsigned minimum: for x in [0, 2p), min(x, x − p) is x mod p. The destination may be one
 /// of the sources. Stateless.
 /// </summary>
 internal static class Lanes31
@@ -66,7 +67,10 @@ internal static class Lanes31
         var tEven = Avx512F.Multiply(a, b);
         var tOdd = Avx512F.Multiply(Avx512F.ShiftRightLogical(a.AsUInt64(), 32).AsUInt32(), Avx512F.ShiftRightLogical(b.AsUInt64(), 32).AsUInt32());
         var mpEven = Avx512F.Multiply(Avx512F.Multiply(tEven.AsUInt32(), pInverse).AsUInt32(), p);
-        var mpOdd = Avx512F.Multiply(Avx512F.Multiply(tOdd.AsUInt32(), pInverse).AsUInt32(), p);
+        // the odd lanes' own modulus (each lane may have its own): vpmuludq reads the even 32-bit lanes
+        var pOdd = Avx512F.ShiftRightLogical(p.AsUInt64(), 32).AsUInt32();
+        var qOdd = Avx512F.ShiftRightLogical(pInverse.AsUInt64(), 32).AsUInt32();
+        var mpOdd = Avx512F.Multiply(Avx512F.Multiply(tOdd.AsUInt32(), qOdd).AsUInt32(), pOdd);
         var d = Avx512F.Or(Avx512F.ShiftRightLogical(Avx512F.Subtract(tEven, mpEven), 32), Avx512F.Subtract(tOdd, mpOdd)).AsUInt32();
         return Avx512F.Min(d, Avx512F.Add(d, p));
     }
@@ -93,7 +97,10 @@ internal static class Lanes31
         var tEven = Avx2.Multiply(a, b);
         var tOdd = Avx2.Multiply(Avx2.ShiftRightLogical(a.AsUInt64(), 32).AsUInt32(), Avx2.ShiftRightLogical(b.AsUInt64(), 32).AsUInt32());
         var mpEven = Avx2.Multiply(Avx2.Multiply(tEven.AsUInt32(), pInverse).AsUInt32(), p);
-        var mpOdd = Avx2.Multiply(Avx2.Multiply(tOdd.AsUInt32(), pInverse).AsUInt32(), p);
+        // the odd lanes' own modulus (each lane may have its own): vpmuludq reads the even 32-bit lanes
+        var pOdd = Avx2.ShiftRightLogical(p.AsUInt64(), 32).AsUInt32();
+        var qOdd = Avx2.ShiftRightLogical(pInverse.AsUInt64(), 32).AsUInt32();
+        var mpOdd = Avx2.Multiply(Avx2.Multiply(tOdd.AsUInt32(), qOdd).AsUInt32(), pOdd);
         var d = Avx2.Or(Avx2.ShiftRightLogical(Avx2.Subtract(tEven, mpEven), 32), Avx2.Subtract(tOdd, mpOdd)).AsUInt32();
         return Avx2.Min(d, Avx2.Add(d, p));
     }
@@ -114,187 +121,187 @@ internal static class Lanes31
 
     // ---- kernels: the vector part, then a scalar tail ----
 
-    public static void Add(LaneKernel kernel, ReadOnlySpan<uint> a, ReadOnlySpan<uint> b, Span<uint> d, uint p)
+    public static void Add(LaneKernel kernel, ReadOnlySpan<uint> a, ReadOnlySpan<uint> b, Span<uint> d, ReadOnlySpan<uint> p)
     {
         var done = 0;
         if (kernel == LaneKernel.Avx512 && Avx512F.IsSupported)
         {
-            var vp = Vector512.Create(p);
+            var vp = V512(p, d.Length);
             var va = V512(a, d.Length);
             var vb = V512(b, d.Length);
             var vd = V512(d);
-            for (var i = 0; i < vd.Length; i++) vd[i] = AddMod(va[i], vb[i], vp);
+            for (var i = 0; i < vd.Length; i++) vd[i] = AddMod(va[i], vb[i], vp[i]);
             done = vd.Length * Vector512<uint>.Count;
         }
         else if (kernel == LaneKernel.Avx2 && Avx2.IsSupported)
         {
-            var vp = Vector256.Create(p);
+            var vp = V256(p, d.Length);
             var va = V256(a, d.Length);
             var vb = V256(b, d.Length);
             var vd = V256(d);
-            for (var i = 0; i < vd.Length; i++) vd[i] = AddMod(va[i], vb[i], vp);
+            for (var i = 0; i < vd.Length; i++) vd[i] = AddMod(va[i], vb[i], vp[i]);
             done = vd.Length * Vector256<uint>.Count;
         }
-        for (var i = done; i < d.Length; i++) d[i] = AddMod(a[i], b[i], p);
+        for (var i = done; i < d.Length; i++) d[i] = AddMod(a[i], b[i], p[i]);
     }
 
-    public static void Subtract(LaneKernel kernel, ReadOnlySpan<uint> a, ReadOnlySpan<uint> b, Span<uint> d, uint p)
+    public static void Subtract(LaneKernel kernel, ReadOnlySpan<uint> a, ReadOnlySpan<uint> b, Span<uint> d, ReadOnlySpan<uint> p)
     {
         var done = 0;
         if (kernel == LaneKernel.Avx512 && Avx512F.IsSupported)
         {
-            var vp = Vector512.Create(p);
+            var vp = V512(p, d.Length);
             var va = V512(a, d.Length);
             var vb = V512(b, d.Length);
             var vd = V512(d);
-            for (var i = 0; i < vd.Length; i++) vd[i] = SubMod(va[i], vb[i], vp);
+            for (var i = 0; i < vd.Length; i++) vd[i] = SubMod(va[i], vb[i], vp[i]);
             done = vd.Length * Vector512<uint>.Count;
         }
         else if (kernel == LaneKernel.Avx2 && Avx2.IsSupported)
         {
-            var vp = Vector256.Create(p);
+            var vp = V256(p, d.Length);
             var va = V256(a, d.Length);
             var vb = V256(b, d.Length);
             var vd = V256(d);
-            for (var i = 0; i < vd.Length; i++) vd[i] = SubMod(va[i], vb[i], vp);
+            for (var i = 0; i < vd.Length; i++) vd[i] = SubMod(va[i], vb[i], vp[i]);
             done = vd.Length * Vector256<uint>.Count;
         }
-        for (var i = done; i < d.Length; i++) d[i] = SubMod(a[i], b[i], p);
+        for (var i = done; i < d.Length; i++) d[i] = SubMod(a[i], b[i], p[i]);
     }
 
-    public static void Negate(LaneKernel kernel, ReadOnlySpan<uint> a, Span<uint> d, uint p)
+    public static void Negate(LaneKernel kernel, ReadOnlySpan<uint> a, Span<uint> d, ReadOnlySpan<uint> p)
     {
         var done = 0;
         if (kernel == LaneKernel.Avx512 && Avx512F.IsSupported)
         {
-            var vp = Vector512.Create(p);
+            var vp = V512(p, d.Length);
             var va = V512(a, d.Length);
             var vd = V512(d);
-            for (var i = 0; i < vd.Length; i++) vd[i] = SubMod(Vector512<uint>.Zero, va[i], vp);
+            for (var i = 0; i < vd.Length; i++) vd[i] = SubMod(Vector512<uint>.Zero, va[i], vp[i]);
             done = vd.Length * Vector512<uint>.Count;
         }
         else if (kernel == LaneKernel.Avx2 && Avx2.IsSupported)
         {
-            var vp = Vector256.Create(p);
+            var vp = V256(p, d.Length);
             var va = V256(a, d.Length);
             var vd = V256(d);
-            for (var i = 0; i < vd.Length; i++) vd[i] = SubMod(Vector256<uint>.Zero, va[i], vp);
+            for (var i = 0; i < vd.Length; i++) vd[i] = SubMod(Vector256<uint>.Zero, va[i], vp[i]);
             done = vd.Length * Vector256<uint>.Count;
         }
-        for (var i = done; i < d.Length; i++) d[i] = SubMod(0, a[i], p);
+        for (var i = done; i < d.Length; i++) d[i] = SubMod(0, a[i], p[i]);
     }
 
-    public static void Multiply(LaneKernel kernel, ReadOnlySpan<uint> a, ReadOnlySpan<uint> b, Span<uint> d, uint p, uint pInverse)
+    public static void Multiply(LaneKernel kernel, ReadOnlySpan<uint> a, ReadOnlySpan<uint> b, Span<uint> d, ReadOnlySpan<uint> p, ReadOnlySpan<uint> pInverse)
     {
         var done = 0;
         if (kernel == LaneKernel.Avx512 && Avx512F.IsSupported)
         {
-            var vp = Vector512.Create(p);
-            var vq = Vector512.Create(pInverse);
+            var vp = V512(p, d.Length);
+            var vq = V512(pInverse, d.Length);
             var va = V512(a, d.Length);
             var vb = V512(b, d.Length);
             var vd = V512(d);
-            for (var i = 0; i < vd.Length; i++) vd[i] = Multiply(va[i], vb[i], vp, vq);
+            for (var i = 0; i < vd.Length; i++) vd[i] = Multiply(va[i], vb[i], vp[i], vq[i]);
             done = vd.Length * Vector512<uint>.Count;
         }
         else if (kernel == LaneKernel.Avx2 && Avx2.IsSupported)
         {
-            var vp = Vector256.Create(p);
-            var vq = Vector256.Create(pInverse);
+            var vp = V256(p, d.Length);
+            var vq = V256(pInverse, d.Length);
             var va = V256(a, d.Length);
             var vb = V256(b, d.Length);
             var vd = V256(d);
-            for (var i = 0; i < vd.Length; i++) vd[i] = Multiply(va[i], vb[i], vp, vq);
+            for (var i = 0; i < vd.Length; i++) vd[i] = Multiply(va[i], vb[i], vp[i], vq[i]);
             done = vd.Length * Vector256<uint>.Count;
         }
-        for (var i = done; i < d.Length; i++) d[i] = Multiply(a[i], b[i], p, pInverse);
+        for (var i = done; i < d.Length; i++) d[i] = Multiply(a[i], b[i], p[i], pInverse[i]);
     }
 
     /// <summary>d ← a·b + c.</summary>
-    public static void MultiplyAdd(LaneKernel kernel, ReadOnlySpan<uint> a, ReadOnlySpan<uint> b, ReadOnlySpan<uint> c, Span<uint> d, uint p, uint pInverse)
+    public static void MultiplyAdd(LaneKernel kernel, ReadOnlySpan<uint> a, ReadOnlySpan<uint> b, ReadOnlySpan<uint> c, Span<uint> d, ReadOnlySpan<uint> p, ReadOnlySpan<uint> pInverse)
     {
         var done = 0;
         if (kernel == LaneKernel.Avx512 && Avx512F.IsSupported)
         {
-            var vp = Vector512.Create(p);
-            var vq = Vector512.Create(pInverse);
+            var vp = V512(p, d.Length);
+            var vq = V512(pInverse, d.Length);
             var va = V512(a, d.Length);
             var vb = V512(b, d.Length);
             var vc = V512(c, d.Length);
             var vd = V512(d);
-            for (var i = 0; i < vd.Length; i++) vd[i] = AddMod(Multiply(va[i], vb[i], vp, vq), vc[i], vp);
+            for (var i = 0; i < vd.Length; i++) vd[i] = AddMod(Multiply(va[i], vb[i], vp[i], vq[i]), vc[i], vp[i]);
             done = vd.Length * Vector512<uint>.Count;
         }
         else if (kernel == LaneKernel.Avx2 && Avx2.IsSupported)
         {
-            var vp = Vector256.Create(p);
-            var vq = Vector256.Create(pInverse);
+            var vp = V256(p, d.Length);
+            var vq = V256(pInverse, d.Length);
             var va = V256(a, d.Length);
             var vb = V256(b, d.Length);
             var vc = V256(c, d.Length);
             var vd = V256(d);
-            for (var i = 0; i < vd.Length; i++) vd[i] = AddMod(Multiply(va[i], vb[i], vp, vq), vc[i], vp);
+            for (var i = 0; i < vd.Length; i++) vd[i] = AddMod(Multiply(va[i], vb[i], vp[i], vq[i]), vc[i], vp[i]);
             done = vd.Length * Vector256<uint>.Count;
         }
-        for (var i = done; i < d.Length; i++) d[i] = AddMod(Multiply(a[i], b[i], p, pInverse), c[i], p);
+        for (var i = done; i < d.Length; i++) d[i] = AddMod(Multiply(a[i], b[i], p[i], pInverse[i]), c[i], p[i]);
     }
 
     /// <summary>d ← a·b − c.</summary>
-    public static void MultiplySubtract(LaneKernel kernel, ReadOnlySpan<uint> a, ReadOnlySpan<uint> b, ReadOnlySpan<uint> c, Span<uint> d, uint p, uint pInverse)
+    public static void MultiplySubtract(LaneKernel kernel, ReadOnlySpan<uint> a, ReadOnlySpan<uint> b, ReadOnlySpan<uint> c, Span<uint> d, ReadOnlySpan<uint> p, ReadOnlySpan<uint> pInverse)
     {
         var done = 0;
         if (kernel == LaneKernel.Avx512 && Avx512F.IsSupported)
         {
-            var vp = Vector512.Create(p);
-            var vq = Vector512.Create(pInverse);
+            var vp = V512(p, d.Length);
+            var vq = V512(pInverse, d.Length);
             var va = V512(a, d.Length);
             var vb = V512(b, d.Length);
             var vc = V512(c, d.Length);
             var vd = V512(d);
-            for (var i = 0; i < vd.Length; i++) vd[i] = SubMod(Multiply(va[i], vb[i], vp, vq), vc[i], vp);
+            for (var i = 0; i < vd.Length; i++) vd[i] = SubMod(Multiply(va[i], vb[i], vp[i], vq[i]), vc[i], vp[i]);
             done = vd.Length * Vector512<uint>.Count;
         }
         else if (kernel == LaneKernel.Avx2 && Avx2.IsSupported)
         {
-            var vp = Vector256.Create(p);
-            var vq = Vector256.Create(pInverse);
+            var vp = V256(p, d.Length);
+            var vq = V256(pInverse, d.Length);
             var va = V256(a, d.Length);
             var vb = V256(b, d.Length);
             var vc = V256(c, d.Length);
             var vd = V256(d);
-            for (var i = 0; i < vd.Length; i++) vd[i] = SubMod(Multiply(va[i], vb[i], vp, vq), vc[i], vp);
+            for (var i = 0; i < vd.Length; i++) vd[i] = SubMod(Multiply(va[i], vb[i], vp[i], vq[i]), vc[i], vp[i]);
             done = vd.Length * Vector256<uint>.Count;
         }
-        for (var i = done; i < d.Length; i++) d[i] = SubMod(Multiply(a[i], b[i], p, pInverse), c[i], p);
+        for (var i = done; i < d.Length; i++) d[i] = SubMod(Multiply(a[i], b[i], p[i], pInverse[i]), c[i], p[i]);
     }
 
     /// <summary>d ← c − a·b.</summary>
-    public static void NegativeMultiplyAdd(LaneKernel kernel, ReadOnlySpan<uint> a, ReadOnlySpan<uint> b, ReadOnlySpan<uint> c, Span<uint> d, uint p, uint pInverse)
+    public static void NegativeMultiplyAdd(LaneKernel kernel, ReadOnlySpan<uint> a, ReadOnlySpan<uint> b, ReadOnlySpan<uint> c, Span<uint> d, ReadOnlySpan<uint> p, ReadOnlySpan<uint> pInverse)
     {
         var done = 0;
         if (kernel == LaneKernel.Avx512 && Avx512F.IsSupported)
         {
-            var vp = Vector512.Create(p);
-            var vq = Vector512.Create(pInverse);
+            var vp = V512(p, d.Length);
+            var vq = V512(pInverse, d.Length);
             var va = V512(a, d.Length);
             var vb = V512(b, d.Length);
             var vc = V512(c, d.Length);
             var vd = V512(d);
-            for (var i = 0; i < vd.Length; i++) vd[i] = SubMod(vc[i], Multiply(va[i], vb[i], vp, vq), vp);
+            for (var i = 0; i < vd.Length; i++) vd[i] = SubMod(vc[i], Multiply(va[i], vb[i], vp[i], vq[i]), vp[i]);
             done = vd.Length * Vector512<uint>.Count;
         }
         else if (kernel == LaneKernel.Avx2 && Avx2.IsSupported)
         {
-            var vp = Vector256.Create(p);
-            var vq = Vector256.Create(pInverse);
+            var vp = V256(p, d.Length);
+            var vq = V256(pInverse, d.Length);
             var va = V256(a, d.Length);
             var vb = V256(b, d.Length);
             var vc = V256(c, d.Length);
             var vd = V256(d);
-            for (var i = 0; i < vd.Length; i++) vd[i] = SubMod(vc[i], Multiply(va[i], vb[i], vp, vq), vp);
+            for (var i = 0; i < vd.Length; i++) vd[i] = SubMod(vc[i], Multiply(va[i], vb[i], vp[i], vq[i]), vp[i]);
             done = vd.Length * Vector256<uint>.Count;
         }
-        for (var i = done; i < d.Length; i++) d[i] = SubMod(c[i], Multiply(a[i], b[i], p, pInverse), p);
+        for (var i = done; i < d.Length; i++) d[i] = SubMod(c[i], Multiply(a[i], b[i], p[i], pInverse[i]), p[i]);
     }
 
     /// <summary>The whole vectors of the first <paramref name="length"/> lanes (a reinterpretation, no copy).</summary>

@@ -383,6 +383,106 @@ public class BlockEvaluatorTests
         Assert.Throws<ArgumentException>(() => evaluator.Evaluate(new Residue62[8], new Residue62[4], new bool[3]));
     }
 
+    // ---- one field per lane: independent trials evaluated together ----
+
+    /// <summary>
+    /// Lane l in its own field <paramref name="fields"/>[l] (as the screener runs independent trials, each with its own
+    /// random prime): every lane agrees with the one-point evaluator in that lane's field, for every lane kernel.
+    /// </summary>
+    private static void AgreeLaneByLane<TField, T>(TField[] fields, StraightLineProgram program, ref Xoshiro256 random, string what)
+        where TField : struct, IField<T> where T : struct
+    {
+        var b = fields.Length;
+        var variables = program.Variables.Length;
+        var points = new T[variables * b];
+        for (var l = 0; l < b; l++)
+            for (var v = 0; v < variables; v++)
+                points[v * b + l] = l % 7 == 3 && v == 0 ? fields[l].Zero : fields[l].Sample(ref random);
+        foreach (var kernel in new[] { LaneKernel.Scalar, LaneKernel.Avx2, LaneKernel.Avx512 })
+        {
+            var evaluator = new BlockEvaluator<TField, T>(fields[0], BlockProgram.Prepare(program), b, kernel);
+            var definedConstants = evaluator.UseFields(fields);
+            var outputs = new T[program.Outputs.Length * b];
+            var defined = new bool[b];
+            var count = evaluator.Evaluate(points, outputs, defined);
+            var expectedCount = 0;
+            var expectedConstants = 0;
+            var point = new T[variables];
+            var registers = new T[program.Length];
+            for (var l = 0; l < b; l++)
+            {
+                var field = fields[l];
+                var constantsDefined = Evaluator.TryPrepareConstants<TField, T>(field, program, out var constants);
+                if (constantsDefined) expectedConstants++;
+                for (var v = 0; v < variables; v++) point[v] = points[v * b + l];
+                var ok = constantsDefined && Evaluator.Evaluate<TField, T>(field, program, constants, point, registers);
+                Assert.True(ok == defined[l], $"{what} ({kernel}): lane {l} is {(defined[l] ? "defined" : "undefined")} in the block, {(ok ? "defined" : "undefined")} alone");
+                if (!ok) continue;
+                expectedCount++;
+                for (var o = 0; o < program.Outputs.Length; o++)
+                    Assert.True(field.AreEqual(registers[program.Outputs[o]], outputs[o * b + l]), $"{what} ({kernel}): lane {l}, output {o} differs");
+            }
+            Assert.Equal(expectedCount, count);
+            Assert.Equal(expectedConstants, definedConstants);
+        }
+    }
+
+    private static IEnumerable<(StraightLineProgram Program, string Text)> LaneFieldPrograms(ulong seed) =>
+        RandomPrograms(seed, 12, division: true)
+            .Concat(MatrixIdentities().Select(t => (Compile(t), t)))
+            .Append((Compile("x^12345 * (x + 1/3) = y^7 / (x - y)"), "powers, a constant 1/3 and a division"))
+            .Append((SyntheticPrograms.RandomMultiplyAdd(16, 300, seed), "synthetic multiply-add program"));
+
+    [Theory]
+    [InlineData(16)]
+    [InlineData(13)]
+    [InlineData(64)]
+    public void OneFieldPerLane_Rung31_EachLaneAgreesWithItsOwnField(int blockSize)
+    {
+        var random = new Xoshiro256(7101);
+        var fields = new PrimeField31[blockSize];
+        for (var l = 0; l < blockSize; l++) fields[l] = PrimeField31.CreateRandom(ref random);
+        foreach (var (program, text) in LaneFieldPrograms(71))
+            AgreeLaneByLane<PrimeField31, Residue31>(fields, program, ref random, text);
+    }
+
+    [Theory]
+    [InlineData(8)]
+    [InlineData(5)]
+    [InlineData(24)]
+    public void OneFieldPerLane_Rung62_EachLaneAgreesWithItsOwnField(int blockSize)
+    {
+        var random = new Xoshiro256(7102);
+        var fields = new PrimeField62[blockSize];
+        for (var l = 0; l < blockSize; l++) fields[l] = PrimeField62.CreateRandom(ref random);
+        foreach (var (program, text) in LaneFieldPrograms(72))
+            AgreeLaneByLane<PrimeField62, Residue62>(fields, program, ref random, text);
+    }
+
+    [Fact]
+    public void OneFieldPerLane_SmallPrimes_ConstantsUndefinedOnlyWhereTheirDenominatorVanishes()
+    {
+        // GF(3) lanes cannot hold 1/3 (common practice: a denominator divisible by p has no value mod p).
+        ulong[] primes = [3, 5, 7, 3, 11, 13, 3, 17, 19];
+        var fields = primes.Select(p => SmallPrimeField.Create(p)).ToArray();
+        var random = new Xoshiro256(7103);
+        var program = Compile("x^5 * (x + 1/3) = y^2 / (x - y) + 1/6");
+        AgreeLaneByLane<SmallPrimeField, SmallResidue>(fields, program, ref random, "small primes");
+        var evaluator = new BlockEvaluator<SmallPrimeField, SmallResidue>(fields[0], BlockProgram.Prepare(program), fields.Length);
+        Assert.Equal(primes.Count(p => p != 3), evaluator.UseFields(fields));
+        Assert.False(evaluator.ConstantsDefined);
+        Assert.Equal(13UL, (ulong)evaluator.LaneField(5).Characteristic);
+    }
+
+    [Fact]
+    public void UseFields_NeedsOneFieldPerLane()
+    {
+        var random = new Xoshiro256(7104);
+        var field = PrimeField31.CreateRandom(ref random);
+        var evaluator = new BlockEvaluator<PrimeField31, Residue31>(field, BlockProgram.Prepare(Compile("x = y")), 16);
+        Assert.Throws<ArgumentException>(() => evaluator.UseFields(new PrimeField31[15]));
+    }
+
     // ---- the vector kernels against the scalar fallback ----
 
     private static void VectorKernelsAgreeWithScalar<TField, T>(TField field, ulong seed)
