@@ -11,7 +11,7 @@ namespace IdentityQueue.Worker;
 /// halfway (at-least-once delivery): settled candidates are skipped, trials are keyed (candidate, seq) with points derived
 /// from the catalogue's seed, so a second run recomputes exactly what the first stored and stores nothing twice.
 /// </summary>
-public sealed class ScreeningJob(IScreeningStore store, WorkerSettings settings, WorkerStats stats, ILogger<ScreeningJob> log)
+public sealed class ScreeningJob(IScreeningStore store, WorkerSettings settings, WorkerStats stats, CandidateCompiler compiler, ILogger<ScreeningJob> log)
 {
     /// <summary>Outcomes written per transaction.</summary>
     public const int SaveBatch = 250;
@@ -52,7 +52,7 @@ public sealed class ScreeningJob(IScreeningStore store, WorkerSettings settings,
         if (work.Problem is not null) return new CandidateOutcome(work.Id, null, work.Problem, null);
         try
         {
-            var compiled = IdentityCompiler.Compile(work.Entry!, work.Parameters, settings.Limits);
+            var compiled = compiler.Compile(work.Entry!, work.Parameters);
             if (!compiled.Success) return new CandidateOutcome(work.Id, null, compiled.Error!.ToString(), null);
             var options = new ScreeningOptions
             {

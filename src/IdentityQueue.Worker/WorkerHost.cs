@@ -73,6 +73,7 @@ public static class WorkerHost
         builder.Services.AddSingleton(settings);
         builder.Services.AddSingleton(plan);
         builder.Services.AddSingleton<WorkerStats>();
+        builder.Services.AddSingleton(new IdentityQueue.Screening.CandidateCompiler(settings.Limits));
         builder.Services.AddTransient<ScreeningJob>();
         builder.Services.AddSingleton<Planner>();
         if (plan.RunPlannerService) builder.Services.AddHostedService<PlannerService>();

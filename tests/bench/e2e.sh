@@ -26,9 +26,12 @@ got = dict(db.execute("select label, state from verdicts"))
 wrong = sum(1 for k, v in truth.items() if got.get(k) != v.strip())
 false = sum(1 for v in truth.values() if v.strip() == "refuted")
 first = db.execute("select count(*) from result r join trial t on t.id = r.witness_trial_id where r.state = 'refuted' and t.seq = 1").fetchone()[0]
+# the first stage: the trials on the candidate's cheapest rung (over Q, one block of independent trials)
+stage = db.execute("""select count(*) from result r join trial t on t.id = r.witness_trial_id
+                      where r.state = 'refuted' and t.field_bits = (select min(u.field_bits) from trial u where u.candidate_id = r.candidate_id)""").fetchone()[0]
 mem = [int(open(f"{work}/{s}.mem").read().split()[-1]) for s in ("import", "run")]
 seconds = end - start
 print(f"{n} candidates, import to final state in {seconds:.1f} s: {n / seconds:.0f} candidates/s; "
       f"peak memory import {mem[0] / 1024:.0f} MiB, run {mem[1] / 1024:.0f} MiB; "
-      f"{wrong} verdicts differ from the generator's truth; {first} of {false} false ones refuted by their first trial")
+      f"{wrong} verdicts differ from the generator's truth; of {false} false ones {stage} refuted in the first stage, {first} by their first trial")
 PY

@@ -31,7 +31,7 @@ public static class IdentityCompiler
     {
         limits ??= Limits.Default;
         parameters ??= NoParameters;
-        var walker = new Walker(limits, parameters);
+        var walker = new Walker(limits, parameters, shareParameters: false);
         try
         {
             var program = walker.CompileDifference(entry.Left, entry.Right);
@@ -51,6 +51,28 @@ public static class IdentityCompiler
         {
             return CompileResult.Fail(new Diagnostic(walker.LastPosition,
                 $"the expression is nested too deeply to compile (see the limit MaxNestingDepth, {limits.MaxNestingDepth})"));
+        }
+    }
+
+    /// <summary>
+    /// Compiles a family's expression once for all its instances, with its parameters kept as constants of their own
+    /// (<paramref name="parameters"/> is any one instance's values). Null when that cannot be: a parameter fixes the
+    /// structure (a range, an exponent, an index, a matrix size, an argument of binom or a q-function), or this instance does
+    /// not compile; then each instance is compiled with its parameters fixed.
+    /// </summary>
+    public static FamilyTemplate? CompileTemplate(IdentityEntry entry, IReadOnlyDictionary<string, BigInteger> parameters, Limits? limits = null)
+    {
+        if (parameters.Count == 0) return null;
+        limits ??= Limits.Default;
+        var walker = new Walker(limits, parameters, shareParameters: true);
+        try
+        {
+            var program = walker.CompileDifference(entry.Left, entry.Right);
+            return walker.ParameterFixesStructure ? null : new FamilyTemplate(entry, program);
+        }
+        catch (Exception e) when (e is CompileError or ProgramTooLargeException or InsufficientExecutionStackException)
+        {
+            return null;
         }
     }
 
@@ -79,11 +101,16 @@ public static class IdentityCompiler
         public string Describe() => IsMatrix ? $"a {Rows}×{Columns} matrix" : "a scalar";
     }
 
-    private sealed class Walker(Limits limits, IReadOnlyDictionary<string, BigInteger> parameters) : IExprVisitor<Value>
+    private sealed class Walker(Limits limits, IReadOnlyDictionary<string, BigInteger> parameters, bool shareParameters) : IExprVisitor<Value>
     {
         private readonly ProgramBuilder _b = new(limits);
         private readonly Dictionary<string, BigInteger> _scope = new(parameters, StringComparer.Ordinal);
+        // Sharing: the names whose binding in scope is the family parameter (not shadowed by a bound variable).
+        private readonly HashSet<string>? _shared = shareParameters ? new HashSet<string>(parameters.Keys, StringComparer.Ordinal) : null;
         private long _steps;
+
+        /// <summary>Sharing: a family parameter was read where an integer is needed, so its value shapes the program.</summary>
+        public bool ParameterFixesStructure { get; private set; }
 
         public SourcePosition LastPosition { get; private set; } = new(1, 1);
 
@@ -128,7 +155,34 @@ public static class IdentityCompiler
             RuntimeHelpers.EnsureSufficientExecutionStack();
         }
 
-        private BigInteger Integer(Expr e, string context) => ParameterEvaluator.EvaluateInteger(e, _scope, limits, context);
+        private BigInteger Integer(Expr e, string context) =>
+            ParameterEvaluator.EvaluateInteger(e, _shared is null ? _scope : new WatchedScope(this), limits, context);
+
+        /// <summary>The scope as the integer evaluator sees it while sharing: reading a family parameter marks the structure as fixed by it.</summary>
+        private sealed class WatchedScope(Walker walker) : IReadOnlyDictionary<string, BigInteger>
+        {
+            public bool TryGetValue(string key, out BigInteger value)
+            {
+                if (walker._shared!.Contains(key)) walker.ParameterFixesStructure = true;
+                return walker._scope.TryGetValue(key, out value);
+            }
+
+            public BigInteger this[string key] => TryGetValue(key, out var value) ? value : throw new KeyNotFoundException(key);
+            public IEnumerable<string> Keys => walker._scope.Keys;
+            public IEnumerable<BigInteger> Values => walker._scope.Values;
+            public int Count => walker._scope.Count;
+            public bool ContainsKey(string key) => TryGetValue(key, out _);
+            public IEnumerator<KeyValuePair<string, BigInteger>> GetEnumerator() => walker._scope.GetEnumerator();
+            System.Collections.IEnumerator System.Collections.IEnumerable.GetEnumerator() => GetEnumerator();
+        }
+
+        /// <summary>Binds a bound variable for a body: it shadows a family parameter of the same name.</summary>
+        private bool Shadow(string name) => _shared?.Remove(name) ?? false;
+
+        private void Unshadow(string name, bool wasShared)
+        {
+            if (wasShared) _shared!.Add(name);
+        }
 
         private int ScalarOf(Expr e, string role)
         {
@@ -153,7 +207,8 @@ public static class IdentityCompiler
         public Value VisitName(NameRef node)
         {
             Step(node);
-            return Value.Of(_scope.TryGetValue(node.Name, out var p) ? _b.Constant(p) : _b.Variable(node.Name));
+            if (!_scope.TryGetValue(node.Name, out var p)) return Value.Of(_b.Variable(node.Name));
+            return Value.Of(_shared?.Contains(node.Name) == true ? _b.Parameter(node.Name, p) : _b.Constant(p));
         }
 
         public Value VisitIndexed(IndexedName node)
@@ -442,6 +497,7 @@ public static class IdentityCompiler
             if (to - from + 1 > limits.MaxProgramSize)
                 throw new CompileError(node.Position, $"the range {from}..{to} has more than {limits.MaxProgramSize} terms (the limit MaxProgramSize)");
             var saved = _scope.TryGetValue(node.Variable, out var outer);
+            var shadowed = Shadow(node.Variable);
             Value? acc = null;
             try
             {
@@ -457,6 +513,7 @@ public static class IdentityCompiler
             finally
             {
                 if (saved) _scope[node.Variable] = outer; else _scope.Remove(node.Variable);
+                Unshadow(node.Variable, shadowed);
             }
             return acc ?? Value.Of(_b.Constant(node.Kind == BoundKind.Sum ? Rational.Zero : Rational.One));
         }
@@ -477,6 +534,8 @@ public static class IdentityCompiler
             var e = new int[(int)rows * (int)columns];
             var savedRow = _scope.TryGetValue(node.RowVariable, out var outerRow);
             var savedColumn = _scope.TryGetValue(node.ColumnVariable, out var outerColumn);
+            var shadowedRow = Shadow(node.RowVariable);
+            var shadowedColumn = Shadow(node.ColumnVariable);
             try
             {
                 for (var i = 0; i < (int)rows; i++)
@@ -491,6 +550,8 @@ public static class IdentityCompiler
             {
                 if (savedRow) _scope[node.RowVariable] = outerRow; else _scope.Remove(node.RowVariable);
                 if (savedColumn) _scope[node.ColumnVariable] = outerColumn; else _scope.Remove(node.ColumnVariable);
+                Unshadow(node.RowVariable, shadowedRow);
+                Unshadow(node.ColumnVariable, shadowedColumn);
             }
             return Value.Matrix((int)rows, (int)columns, e);
         }

@@ -22,6 +22,7 @@ internal sealed class ProgramBuilder(Limits limits)
     private readonly Dictionary<string, int> _variableIndex = new(StringComparer.Ordinal);
     private readonly List<string> _variables = [];
     private readonly Dictionary<int, Rational> _constantOf = []; // register → value, for folding
+    private readonly Dictionary<string, int> _parameterConstants = new(StringComparer.Ordinal); // family parameter → its constant
 
     public int Count => _instructions.Count;
 
@@ -38,6 +39,21 @@ internal sealed class ProgramBuilder(Limits limits)
         var register = Emit(new Instruction(OpCode.Constant, c, 0));
         _constantOf[register] = value;
         return register;
+    }
+
+    /// <summary>
+    /// A family parameter's value as a constant of its own that is never folded into others, so that the program holds for
+    /// every value of the parameter: binding another value only replaces the constant (<see cref="StraightLineProgram.WithParameters"/>).
+    /// </summary>
+    public int Parameter(string name, BigInteger value)
+    {
+        if (!_parameterConstants.TryGetValue(name, out var c))
+        {
+            c = _constants.Count;
+            _constants.Add(value);
+            _parameterConstants[name] = c;
+        }
+        return Emit(new Instruction(OpCode.Constant, c, 0));
     }
 
     public int Variable(string name)
@@ -163,7 +179,8 @@ internal sealed class ProgramBuilder(Limits limits)
         }
         var outs = new int[outputs.Length];
         for (var i = 0; i < outs.Length; i++) outs[i] = map[outputs[i]];
-        return new([.. kept], [.. _constants], [.. _exponents], [.. operands], [.. _variables], outs, outputNames);
+        return new([.. kept], [.. _constants], [.. _exponents], [.. operands], [.. _variables], outs, outputNames,
+            _parameterConstants.Count == 0 ? null : new Dictionary<string, int>(_parameterConstants, StringComparer.Ordinal));
     }
 
     private Instruction RenumberMatrix(Instruction ins, int[] map, List<int> operands)

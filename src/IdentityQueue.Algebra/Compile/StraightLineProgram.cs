@@ -38,8 +38,9 @@ public sealed class StraightLineProgram
 {
     internal StraightLineProgram(
         Instruction[] instructions, Rational[] constants, BigInteger[] exponents, int[] operands,
-        string[] variables, int[] outputs, string[] outputNames)
+        string[] variables, int[] outputs, string[] outputNames, IReadOnlyDictionary<string, int>? parameterConstants = null)
     {
+        ParameterConstants = parameterConstants;
         Instructions = instructions;
         Constants = constants;
         Exponents = exponents;
@@ -62,4 +63,26 @@ public sealed class StraightLineProgram
     public string[] OutputNames { get; }
 
     public int Length => Instructions.Length;
+
+    /// <summary>
+    /// For a family's shared program (<see cref="FamilyTemplate"/>): which entry of <see cref="Constants"/> holds each
+    /// parameter's value; null for a program compiled with its parameters fixed.
+    /// </summary>
+    public IReadOnlyDictionary<string, int>? ParameterConstants { get; }
+
+    /// <summary>
+    /// This shared program with other parameter values: the instructions and tables are shared, only the constants are
+    /// copied with the parameters' entries replaced.
+    /// </summary>
+    public StraightLineProgram WithParameters(IReadOnlyDictionary<string, BigInteger> parameters)
+    {
+        if (ParameterConstants is null) throw new InvalidOperationException("the program was compiled with its parameters fixed");
+        var constants = (Rational[])Constants.Clone();
+        foreach (var (name, index) in ParameterConstants)
+        {
+            if (!parameters.TryGetValue(name, out var value)) throw new ArgumentException($"no value for the parameter '{name}'", nameof(parameters));
+            constants[index] = value;
+        }
+        return new StraightLineProgram(Instructions, constants, Exponents, Operands, Variables, Outputs, OutputNames, ParameterConstants);
+    }
 }
