@@ -64,6 +64,7 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
     // the lanes' fields and what is derived from them (replaced by UseField and UseFields)
     private readonly TField[] _fields;
     private readonly bool[] _constantUndefined;
+    private readonly bool[] _laneSame;
     private bool _uniform;
     private bool _oddCharacteristic;
     private readonly ulong[] _p62, _p62High, _q62;
@@ -92,6 +93,7 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
         _kernel62 = Lanes62.Supported(kernel);
         _fields = new TField[blockSize];
         _constantUndefined = new bool[blockSize];
+        _laneSame = new bool[blockSize];
         var is62 = typeof(TField) == typeof(PrimeField62);
         var is31 = typeof(TField) == typeof(PrimeField31);
         (_p62, _p62High, _q62) = is62 ? (new ulong[blockSize], new ulong[blockSize], new ulong[blockSize]) : ([], [], []);
@@ -131,10 +133,12 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
         if (fields.Length != _b) throw new ArgumentException($"need one field per lane ({_b}), got {fields.Length}", nameof(fields));
         _uniform = true;
         _oddCharacteristic = true;
+        var sameAsFirst = _laneSame;
         for (var l = 0; l < _b; l++)
         {
             SetLaneField(l, fields[l]);
-            _uniform &= EqualityComparer<TField>.Default.Equals(fields[l], fields[0]);
+            sameAsFirst[l] = l > 0 && SameField(l, 0, fields);
+            _uniform &= l == 0 || sameAsFirst[l];
             _oddCharacteristic &= fields[l].Characteristic != 2;
         }
         Array.Clear(_constantUndefined);
@@ -146,7 +150,9 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
             var lanes = _registers.AsSpan(slot * _b, _b);
             for (var l = 0; l < _b; l++)
             {
-                if (Evaluator.TryConstant(fields[l], constants[c], out T value)) lanes[l] = value;
+                // a lane in lane 0's field (a block padded with copies of its first lane) takes lane 0's value
+                if (sameAsFirst[l]) { lanes[l] = lanes[0]; _constantUndefined[l] |= _constantUndefined[0]; }
+                else if (Evaluator.TryConstant(fields[l], constants[c], out T value)) lanes[l] = value;
                 else _constantUndefined[l] = true;
             }
         }
@@ -154,6 +160,12 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
         foreach (var undefined in _constantUndefined) if (!undefined) count++;
         return count;
     }
+
+    /// <summary>Whether lanes <paramref name="l"/> and <paramref name="k"/> are in the same field (by modulus on the Montgomery rungs).</summary>
+    private bool SameField(int l, int k, ReadOnlySpan<TField> fields) =>
+        typeof(TField) == typeof(PrimeField62) ? _p62[l] == _p62[k]
+        : typeof(TField) == typeof(PrimeField31) ? _p31[l] == _p31[k]
+        : EqualityComparer<TField>.Default.Equals(fields[l], fields[k]);
 
     private void SetLaneField(int l, TField field)
     {

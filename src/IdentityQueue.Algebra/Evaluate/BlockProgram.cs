@@ -206,7 +206,8 @@ public sealed class BlockProgram
         for (var i = 0; i < n; i++) isConstant[i] = ins[i].Op == OpCode.Constant;
 
         var free = new Stack<int>();
-        var released = new HashSet<int>();
+        var releasedAt = new int[n]; // the operation (plus one) that last released each register: an operand named twice dies once
+
         var result = new BlockInstruction[ops.Count];
         var matrixSlots = new int[matrixRegisters.Count];
         for (var t = 0; t < ops.Count; t++)
@@ -245,7 +246,6 @@ public sealed class BlockProgram
 
         void Release(int t, BlockOpCode op, int a, int b, int c)
         {
-            released.Clear();
             if (op == BlockOpCode.Variable) return;
             if (IsMatrix(op))
             {
@@ -258,7 +258,9 @@ public sealed class BlockProgram
 
             void Dies(int register)
             {
-                if (lastUse[register] == t && !isConstant[register] && released.Add(register)) free.Push(slotOf[register]);
+                if (lastUse[register] != t || isConstant[register] || releasedAt[register] == t + 1) return;
+                releasedAt[register] = t + 1;
+                free.Push(slotOf[register]);
             }
         }
     }
@@ -269,8 +271,14 @@ public sealed class BlockProgram
     {
         if (e.Sign < 0) throw new ArgumentOutOfRangeException(nameof(e), e, "the exponent must be non-negative");
         if (e.IsZero) return new ExponentPlan(true, []);
+        // the bits below the leading one, most significant first
+        var bytes = e.ToByteArray(isUnsigned: true, isBigEndian: false);
         var bits = new bool[(int)e.GetBitLength() - 1];
-        for (var i = 0; i < bits.Length; i++) bits[i] = !((e >> (bits.Length - 1 - i)) & 1).IsZero;
+        for (var i = 0; i < bits.Length; i++)
+        {
+            var k = bits.Length - 1 - i;
+            bits[i] = (bytes[k >> 3] >> (k & 7) & 1) != 0;
+        }
         return new ExponentPlan(false, bits);
     }
 }

@@ -12,6 +12,17 @@ internal static class ModularHelpers
         return r.Sign < 0 ? r + p : r;
     }
 
+    /// <summary>value mod p in [0, p) for a modulus below 2^63, without BigInteger division when the value fits in 62 bits.</summary>
+    public static ulong Reduce(BigInteger value, ulong p)
+    {
+        if (value.GetBitLength() < 63)
+        {
+            var r = (long)value % (long)p;
+            return (ulong)(r < 0 ? r + (long)p : r);
+        }
+        return (ulong)Reduce(value, new BigInteger(p));
+    }
+
     /// <summary>The single coordinate of a prime-field element, checked to lie in [0, p).</summary>
     public static BigInteger SingleCoefficient(ReadOnlySpan<BigInteger> coefficients, BigInteger p)
     {

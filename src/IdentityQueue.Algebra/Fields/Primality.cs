@@ -43,37 +43,91 @@ public static class Primality
         return true;
     }
 
-    /// <summary>Deterministic Miller–Rabin for 64-bit values.</summary>
+    /// <summary>
+    /// Deterministic Miller–Rabin for 64-bit values, with the bases above; the powers run in Montgomery form (R = 2^64,
+    /// subtractive reduction), so no 128-bit division is needed inside the loop.
+    /// </summary>
     public static bool IsPrime(ulong n)
     {
         if (n < 2) return false;
-        foreach (var sp in SmallPrimes)
-        {
-            if (n == (ulong)sp) return true;
-            if (n % (ulong)sp == 0) return false;
-        }
+        if ((n & 1) == 0) return n == 2;
+        if (n <= 97) return Array.IndexOf(SmallPrimes, (int)n) >= 0;
+        // trial division: the primes up to 23 through one remainder by their product (2·3·…·23), then 29 … 97
+        var m = (uint)(n % 223092870UL);
+        for (var i = 1; i < 9; i++)
+            if (m % (uint)SmallPrimes[i] == 0) return false;
+        for (var i = 9; i < SmallPrimes.Length; i++)
+            if (n % (ulong)SmallPrimes[i] == 0) return false;
+        // n is odd from here on
         var d = n - 1;
         var s = BitOperations.TrailingZeroCount(d);
         d >>= s;
+        var inverse = MontgomeryInverse(n);
+        var one = (ulong)(((UInt128)1 << 64) % n); // R mod n: 1 in Montgomery form
+        var minusOne = n - one;
         foreach (var a in DeterministicBases)
         {
-            var x = PowMod((ulong)a % n, d, n);
-            if (x == 1 || x == n - 1) continue;
+            var x = MontgomeryPow((ulong)(((UInt128)(ulong)a << 64) % n), d, n, inverse, one);
+            if (x == one || x == minusOne) continue;
             var composite = true;
             for (var r = 1; r < s; r++)
             {
-                x = MulMod(x, x, n);
-                if (x == n - 1) { composite = false; break; }
+                x = MontgomeryMultiply(x, x, n, inverse);
+                if (x == minusOne) { composite = false; break; }
             }
             if (composite) return false;
         }
         return true;
     }
 
+    /// <summary>n^-1 mod 2^64 for odd n, by Newton's iteration (each step doubles the correct low bits).</summary>
+    private static ulong MontgomeryInverse(ulong n)
+    {
+        unchecked
+        {
+            var x = n; // correct to 3 bits for odd n
+            for (var i = 0; i < 5; i++) x *= 2 - n * x;
+            return x;
+        }
+    }
+
+    /// <summary>a·b·2^-64 mod n for a, b in [0, n), n odd: hi(a·b) − hi(m·n) with m = lo(a·b)·n^-1, which lies in (−n, n).</summary>
+    private static ulong MontgomeryMultiply(ulong a, ulong b, ulong n, ulong inverse)
+    {
+        unchecked
+        {
+            var high = Math.BigMul(a, b, out var low);
+            var mn = Math.BigMul(low * inverse, n, out _);
+            return high >= mn ? high - mn : high - mn + n;
+        }
+    }
+
+    private static ulong MontgomeryPow(ulong a, ulong e, ulong n, ulong inverse, ulong one)
+    {
+        var result = one;
+        while (e != 0)
+        {
+            if ((e & 1) != 0) result = MontgomeryMultiply(result, a, n, inverse);
+            a = MontgomeryMultiply(a, a, n, inverse);
+            e >>= 1;
+        }
+        return result;
+    }
+
     /// <summary>A uniformly random prime in [2^(bits-1), 2^bits): uniform over the primes of that range.</summary>
     public static BigInteger RandomPrime(int bits, ref Xoshiro256 random)
     {
         if (bits < 3) throw new ArgumentOutOfRangeException(nameof(bits));
+        if (bits <= 63)
+        {
+            // The same draws as below (NextBelow of a 64-bit bound is the 64-bit draw), without BigInteger arithmetic.
+            var small = 1UL << (bits - 1);
+            while (true)
+            {
+                var candidate = small + random.NextBelow(small);
+                if (IsPrime(candidate)) return candidate;
+            }
+        }
         var low = BigInteger.One << (bits - 1);
         while (true)
         {
@@ -105,19 +159,5 @@ public static class Primality
             if (x == n - 1) return true;
         }
         return false;
-    }
-
-    internal static ulong MulMod(ulong a, ulong b, ulong m) => (ulong)((UInt128)a * b % m);
-
-    internal static ulong PowMod(ulong a, ulong e, ulong m)
-    {
-        ulong result = 1 % m;
-        while (e != 0)
-        {
-            if ((e & 1) != 0) result = MulMod(result, a, m);
-            a = MulMod(a, a, m);
-            e >>= 1;
-        }
-        return result;
     }
 }

@@ -135,7 +135,7 @@ public readonly struct PrimeField31 : IField<Residue31>
     /// <summary>The standard representative in [0, p).</summary>
     public uint ToUInt32(Residue31 a) => Reduce(a.Value);
 
-    public Residue31 FromInteger(BigInteger value) => FromUInt32((uint)ModularHelpers.Reduce(value, _p));
+    public Residue31 FromInteger(BigInteger value) => FromUInt32((uint)ModularHelpers.Reduce(value, (ulong)_p));
 
     /// <summary>Uniform: a uniform Montgomery representative is a uniform residue, as x ↦ xR is a bijection.</summary>
     public Residue31 Sample(ref Xoshiro256 random) => new((uint)random.NextBelow(_p));

@@ -142,7 +142,7 @@ public readonly struct PrimeField62 : IField<Residue62>
     /// <summary>The standard representative in [0, p).</summary>
     public ulong ToUInt64(Residue62 a) => Reduce(0, a.Value);
 
-    public Residue62 FromInteger(BigInteger value) => FromUInt64((ulong)ModularHelpers.Reduce(value, _p));
+    public Residue62 FromInteger(BigInteger value) => FromUInt64(ModularHelpers.Reduce(value, _p));
 
     /// <summary>Uniform: a uniform Montgomery representative is a uniform residue, as x ↦ xR is a bijection.</summary>
     public Residue62 Sample(ref Xoshiro256 random) => new(random.NextBelow(_p));

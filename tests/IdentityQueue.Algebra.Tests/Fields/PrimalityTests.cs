@@ -150,6 +150,53 @@ public class PrimalityTests
         Assert.NotEqual(Primality.RandomPrime(100, ref c), Primality.RandomPrime(100, ref d));
     }
 
+    // The 64-bit test (Montgomery powers) decides as thirteen BigInteger Miller–Rabin rounds with the bases 2 … 41 do,
+    // on random odd numbers of the rungs' sizes, near 2^64, and on a strong pseudoprime to the bases 2 … 23.
+    [Fact]
+    public void SixtyFourBitTest_AgreesWithBigIntegerRounds()
+    {
+        int[] bases = [2, 3, 5, 7, 11, 13, 17, 19, 23, 29, 31, 37, 41];
+        bool Reference(ulong n) => n > 41 && n % 2 == 1 && bases.All(a => IsStrongProbablePrime(n, a));
+        var random = new Xoshiro256(64);
+        var primes = 0;
+        foreach (var bits in new[] { 31, 32, 62, 63, 64 })
+        {
+            for (var i = 0; i < 3000; i++)
+            {
+                var n = (random.NextUInt64() >> (64 - bits)) | (1UL << (bits - 1)) | 1UL;
+                var expected = Reference(n);
+                Assert.True(expected == Primality.IsPrime(n), $"{n}");
+                if (expected) primes++;
+            }
+        }
+        Assert.True(primes > 300, $"only {primes} primes drawn");
+        // 3825123056546413051 = 149491 · 747451 · 34233211, a strong pseudoprime to the bases 2 … 23
+        // (Jiang and Deng, Math. Comp. 83 (2014) [memory]); the product and the rounds are computed here.
+        const ulong spsp = 3825123056546413051UL;
+        Assert.Equal(spsp, 149491UL * 747451UL * 34233211UL);
+        Assert.All(new[] { 2, 3, 5, 7, 11, 13, 17, 19, 23 }, a => Assert.True(IsStrongProbablePrime(spsp, a)));
+        Assert.False(Primality.IsPrime(spsp));
+        Assert.True(Primality.IsPrime(ulong.MaxValue - 58)); // 2^64 − 59, see above
+    }
+
+    // Random primes below 64 bits take the 64-bit path and draw exactly what the BigInteger path draws.
+    [Theory]
+    [InlineData(31)]
+    [InlineData(62)]
+    public void RandomPrime_FollowsTheDrawsOfTheRange(int bits)
+    {
+        var a = new Xoshiro256(77);
+        var b = new Xoshiro256(77);
+        var low = 1UL << (bits - 1);
+        for (var i = 0; i < 20; i++)
+        {
+            var p = Primality.RandomPrime(bits, ref a);
+            ulong q;
+            do q = low + b.NextBelow(low); while (!Primality.IsPrime(new BigInteger(q)));
+            Assert.Equal(new BigInteger(q), p);
+        }
+    }
+
     [Fact]
     public void RandomPrimeRejectsTooFewBits()
     {
