@@ -24,24 +24,25 @@ public sealed class Planner(IScreeningStore store, IBackgroundJobClient jobs, Wo
         var threads = _shared ? Math.Max(settings.Workers, store.LiveThreads(settings.DeadAfter)) : settings.Workers;
         var room = all ? long.MaxValue : (long)threads * 3 * settings.ChunkSize - counts.InFlight;
         if (room < settings.ChunkSize || counts.Pending == 0) return 0;
-        // Checkpoint: TakePending marks the candidates queued before their jobs exist; dying in between leaves them
-        // queued with no job, and start-up recovery returns them to pending.
-        var work = store.TakePending((int)Math.Min(room, int.MaxValue));
+        // Checkpoint: the jobs are enqueued inside TakePending, before the candidates are committed as queued; dying or
+        // failing in between leaves them pending (and any job already made screens them harmlessly), never queued with no job.
         var enqueued = 0;
+        PlannedWork work;
         try
         {
-            foreach (var chunk in work.Ids.Chunk(settings.ChunkSize))
+            work = store.TakePending((int)Math.Min(room, int.MaxValue), (stage, ids) =>
             {
-                jobs.Enqueue<ScreeningJob>(j => j.Run(work.Stage, chunk, CancellationToken.None));
-                enqueued += chunk.Length;
-            }
+                foreach (var chunk in ids.Chunk(settings.ChunkSize))
+                {
+                    jobs.Enqueue<ScreeningJob>(j => j.Run(stage, chunk, CancellationToken.None));
+                    enqueued += chunk.Length;
+                }
+            });
         }
         catch (Exception e) when (e is not OutOfMemoryException)
         {
-            // The queue is away (a database restart): give back what has no job yet, so that it is not left queued with
-            // nothing to screen it. Should a job have been created after all, its candidates are screened twice, harmlessly.
-            log.LogWarning("enqueuing failed ({Problem}); {Count} candidates go back to pending", e.Message, work.Ids.Count - enqueued);
-            store.Release(work.Ids.Skip(enqueued).ToList());
+            // The queue or the store is away (a database restart): the candidates stay pending for the next round.
+            log.LogWarning("enqueuing failed ({Problem}); the candidates stay pending ({Count} had their job made already)", e.Message, enqueued);
             throw;
         }
         if (work.Ids.Count > 0) log.LogInformation("enqueued {Count} candidates for stage {Stage}", work.Ids.Count, work.Stage);

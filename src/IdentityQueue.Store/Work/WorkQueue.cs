@@ -45,8 +45,8 @@ public sealed class WorkQueue(StoreConnection store)
     /// Recovery for a store that several worker processes share (PostgreSQL): result rows for hand-inserted candidates;
     /// candidates being screened by a worker whose heartbeat is older than <paramref name="deadAfter"/> (or that has no
     /// worker row) go back to pending once their claim is older than <paramref name="deadAfter"/> too; and candidates
-    /// queued longer than <paramref name="queuedStaleAfter"/> (their planner died between marking them queued and
-    /// enqueuing their job) go back to pending. A live worker's work is never touched. Work returned here while its
+    /// queued longer than <paramref name="queuedStaleAfter"/> go back to pending (a safety net: planners enqueue the jobs
+    /// before the queued rows commit, see <see cref="TakePending"/>). A live worker's work is never touched. Work returned here while its
     /// queue job still exists is screened twice at worst, which the idempotent saves make harmless. Returns the
     /// candidates returned.
     /// </summary>
@@ -101,8 +101,11 @@ public sealed class WorkQueue(StoreConnection store)
     /// <summary>
     /// Takes up to <paramref name="max"/> pending candidates of the earliest stage that has any and marks them queued, in one
     /// transaction. Returns the stage (1 or 2) and the ids, lowest first; no ids when nothing is pending.
+    /// <paramref name="beforeCommit"/> runs with the rows taken but not yet committed (the planner enqueues their jobs there):
+    /// if it throws, or the process dies before the commit, the rows stay pending, so no candidate is ever left queued
+    /// without a job (a job enqueued before a failed commit finds its candidates pending and screens them, harmlessly).
     /// </summary>
-    public (int Stage, IReadOnlyList<long> Ids) TakePending(int max)
+    public (int Stage, IReadOnlyList<long> Ids) TakePending(int max, Action<int, IReadOnlyList<long>>? beforeCommit = null)
     {
         using var transaction = _db.BeginTransaction();
         foreach (var (stage, condition) in new[] { (1, "trials_zero = 0"), (2, "trials_zero > 0") })
@@ -122,8 +125,9 @@ public sealed class WorkQueue(StoreConnection store)
             using (var r = take.ExecuteReader())
                 while (r.Read()) ids.Add(r.GetInt64(0));
             if (ids.Count == 0) continue;
-            transaction.Commit();
             ids.Sort();
+            beforeCommit?.Invoke(stage, ids);
+            transaction.Commit();
             return (stage, ids);
         }
         transaction.Commit();

@@ -53,6 +53,30 @@ public sealed class PostgresQueueTests : IDisposable
         Assert.Equal(3000, taken.Distinct().Count());
     }
 
+    // A planner that fails (or dies) while enqueuing leaves its candidates pending, never queued with no job; while it
+    // enqueues, the rows it took are locked and another planner skips them.
+    [PostgresFact]
+    public void FailedEnqueue_LeavesTheCandidatesPending_AndOtherPlannersSkipRowsBeingTaken()
+    {
+        Import(30);
+        using var store = StoreConnection.OpenPostgreSql(_pg);
+        using var other = StoreConnection.OpenPostgreSql(_pg);
+        var queue = new WorkQueue(store);
+        IReadOnlyList<long> seenByOther = [];
+        Assert.Throws<InvalidOperationException>(() => queue.TakePending(10, (_, ids) =>
+        {
+            Assert.Equal(10, ids.Count);
+            seenByOther = new WorkQueue(other).TakePending(100).Ids; // the other planner takes the 20 rows not locked
+            throw new InvalidOperationException("the queue is away");
+        }));
+        Assert.Equal(20, seenByOther.Count);
+        Assert.Equal(10L, queue.CountByState()["pending"]);
+        Assert.Equal(20L, queue.CountByState()["queued"]);
+        var (_, again) = queue.TakePending(100, (_, _) => { });
+        Assert.Equal(10, again.Count);
+        Assert.Empty(again.Intersect(seenByOther));
+    }
+
     [PostgresFact]
     public void SharedRecovery_ReturnsOnlyTheClaimsOfDeadWorkers()
     {
