@@ -24,25 +24,32 @@ public sealed class Planner(IScreeningStore store, IBackgroundJobClient jobs, Wo
         var threads = _shared ? Math.Max(settings.Workers, store.LiveThreads(settings.DeadAfter)) : settings.Workers;
         var room = all ? long.MaxValue : (long)threads * 3 * settings.ChunkSize - counts.InFlight;
         if (room < settings.ChunkSize || counts.Pending == 0) return 0;
-        // Checkpoint: the jobs are enqueued inside TakePending, before the candidates are committed as queued; dying or
-        // failing in between leaves them pending (and any job already made screens them harmlessly), never queued with no job.
+        // Checkpoint, shared store: the jobs are enqueued inside TakePending, before the candidates are committed as queued;
+        // a planner dying or failing in between leaves them pending (a job already made screens them harmlessly), never
+        // queued with no job. A store of one process (SQLite) enqueues after the commit instead, so that its single writer
+        // is not held while the jobs are written; dying in between leaves them queued, and start-up recovery returns them.
         var enqueued = 0;
-        PlannedWork work;
+        PlannedWork work = new(1, []);
+        void Enqueue(int stage, IReadOnlyList<long> ids)
+        {
+            foreach (var chunk in ids.Skip(enqueued).Chunk(settings.ChunkSize))
+            {
+                jobs.Enqueue<ScreeningJob>(j => j.Run(stage, chunk, CancellationToken.None));
+                enqueued += chunk.Length;
+            }
+        }
         try
         {
-            work = store.TakePending((int)Math.Min(room, int.MaxValue), (stage, ids) =>
-            {
-                foreach (var chunk in ids.Chunk(settings.ChunkSize))
-                {
-                    jobs.Enqueue<ScreeningJob>(j => j.Run(stage, chunk, CancellationToken.None));
-                    enqueued += chunk.Length;
-                }
-            });
+            var max = (int)Math.Min(room, int.MaxValue);
+            if (_shared) work = store.TakePending(max, Enqueue);
+            else Enqueue((work = store.TakePending(max, static (_, _) => { })).Stage, work.Ids);
         }
         catch (Exception e) when (e is not OutOfMemoryException)
         {
-            // The queue or the store is away (a database restart): the candidates stay pending for the next round.
-            log.LogWarning("enqueuing failed ({Problem}); the candidates stay pending ({Count} had their job made already)", e.Message, enqueued);
+            // The queue or the store is away (a database restart): what has no job yet goes back to pending (on a shared
+            // store the rollback did that already), so that nothing is left queued with no job to screen it.
+            log.LogWarning("enqueuing failed ({Problem}); the candidates without a job stay pending ({Count} had their job made)", e.Message, enqueued);
+            if (!_shared && work.Ids.Count > enqueued) store.Release(work.Ids.Skip(enqueued).ToList());
             throw;
         }
         if (work.Ids.Count > 0) log.LogInformation("enqueued {Count} candidates for stage {Stage}", work.Ids.Count, work.Stage);
