@@ -433,31 +433,32 @@ public class BlockEvaluatorTests
             .Append((Compile("x^12345 * (x + 1/3) = y^7 / (x - y)"), "powers, a constant 1/3 and a division"))
             .Append((SyntheticPrograms.RandomMultiplyAdd(16, 300, seed), "synthetic multiply-add program"));
 
+    private delegate TField FieldDraw<TField>(ref Xoshiro256 random);
+
+    /// <summary>Each lane its own random prime of the rung, on every program of <see cref="LaneFieldPrograms"/>.</summary>
+    private static void OneFieldPerLane<TField, T>(int blockSize, ulong seed, FieldDraw<TField> draw)
+        where TField : struct, IField<T> where T : struct
+    {
+        var random = new Xoshiro256(seed);
+        var fields = new TField[blockSize];
+        for (var l = 0; l < blockSize; l++) fields[l] = draw(ref random);
+        foreach (var (program, text) in LaneFieldPrograms(seed))
+            AgreeLaneByLane<TField, T>(fields, program, ref random, text);
+    }
+
     [Theory]
     [InlineData(16)]
     [InlineData(13)]
     [InlineData(64)]
-    public void OneFieldPerLane_Rung31_EachLaneAgreesWithItsOwnField(int blockSize)
-    {
-        var random = new Xoshiro256(7101);
-        var fields = new PrimeField31[blockSize];
-        for (var l = 0; l < blockSize; l++) fields[l] = PrimeField31.CreateRandom(ref random);
-        foreach (var (program, text) in LaneFieldPrograms(71))
-            AgreeLaneByLane<PrimeField31, Residue31>(fields, program, ref random, text);
-    }
+    public void OneFieldPerLane_Rung31_EachLaneAgreesWithItsOwnField(int blockSize) =>
+        OneFieldPerLane<PrimeField31, Residue31>(blockSize, 7101, static (ref Xoshiro256 r) => PrimeField31.CreateRandom(ref r));
 
     [Theory]
     [InlineData(8)]
     [InlineData(5)]
     [InlineData(24)]
-    public void OneFieldPerLane_Rung62_EachLaneAgreesWithItsOwnField(int blockSize)
-    {
-        var random = new Xoshiro256(7102);
-        var fields = new PrimeField62[blockSize];
-        for (var l = 0; l < blockSize; l++) fields[l] = PrimeField62.CreateRandom(ref random);
-        foreach (var (program, text) in LaneFieldPrograms(72))
-            AgreeLaneByLane<PrimeField62, Residue62>(fields, program, ref random, text);
-    }
+    public void OneFieldPerLane_Rung62_EachLaneAgreesWithItsOwnField(int blockSize) =>
+        OneFieldPerLane<PrimeField62, Residue62>(blockSize, 7102, static (ref Xoshiro256 r) => PrimeField62.CreateRandom(ref r));
 
     [Fact]
     public void OneFieldPerLane_SmallPrimes_ConstantsUndefinedOnlyWhereTheirDenominatorVanishes()
