@@ -40,22 +40,28 @@ public class BlockEvaluatorTests
         var defined = new bool[blockSize];
         var count = evaluator.Evaluate(points, outputs, defined);
 
-        var constantsDefined = Evaluator.TryPrepareConstants<TField, T>(field, program, out var constants);
-        var point = new T[variables];
-        var registers = new T[program.Length];
         var expectedCount = 0;
         for (var l = 0; l < blockSize; l++)
-        {
-            for (var v = 0; v < variables; v++) point[v] = points[v * blockSize + l];
-            var ok = constantsDefined && Evaluator.Evaluate<TField, T>(field, program, constants, point, registers);
-            Assert.True(ok == defined[l], $"{what}: lane {l} is {(defined[l] ? "defined" : "undefined")} in the block, {(ok ? "defined" : "undefined")} alone");
-            if (!ok) continue;
-            expectedCount++;
-            for (var o = 0; o < program.Outputs.Length; o++)
-                Assert.True(field.AreEqual(registers[program.Outputs[o]], outputs[o * blockSize + l]), $"{what}: lane {l}, output {o} differs");
-        }
+            if (LaneAgrees(field, program, points, outputs, defined, l, what)) expectedCount++;
         Assert.Equal(expectedCount, count);
         return count;
+    }
+
+    /// <summary>Evaluates lane <paramref name="l"/> alone in <paramref name="field"/>, asserts the block agrees, and says whether the lane is defined.</summary>
+    private static bool LaneAgrees<TField, T>(TField field, StraightLineProgram program, T[] points, T[] outputs, bool[] defined, int l, string? what)
+        where TField : struct, IField<T> where T : struct
+    {
+        var b = defined.Length;
+        var point = new T[program.Variables.Length];
+        for (var v = 0; v < point.Length; v++) point[v] = points[v * b + l];
+        var registers = new T[program.Length];
+        var ok = Evaluator.TryPrepareConstants<TField, T>(field, program, out var constants)
+            && Evaluator.Evaluate<TField, T>(field, program, constants, point, registers);
+        Assert.True(ok == defined[l], $"{what}: lane {l} is {(defined[l] ? "defined" : "undefined")} in the block, {(ok ? "defined" : "undefined")} alone");
+        if (ok)
+            for (var o = 0; o < program.Outputs.Length; o++)
+                Assert.True(field.AreEqual(registers[program.Outputs[o]], outputs[o * b + l]), $"{what}: lane {l}, output {o} differs");
+        return ok;
     }
 
     private static StraightLineProgram Compile(Expr left, Expr right, string text)
@@ -407,20 +413,10 @@ public class BlockEvaluatorTests
             var count = evaluator.Evaluate(points, outputs, defined);
             var expectedCount = 0;
             var expectedConstants = 0;
-            var point = new T[variables];
-            var registers = new T[program.Length];
             for (var l = 0; l < b; l++)
             {
-                var field = fields[l];
-                var constantsDefined = Evaluator.TryPrepareConstants<TField, T>(field, program, out var constants);
-                if (constantsDefined) expectedConstants++;
-                for (var v = 0; v < variables; v++) point[v] = points[v * b + l];
-                var ok = constantsDefined && Evaluator.Evaluate<TField, T>(field, program, constants, point, registers);
-                Assert.True(ok == defined[l], $"{what} ({kernel}): lane {l} is {(defined[l] ? "defined" : "undefined")} in the block, {(ok ? "defined" : "undefined")} alone");
-                if (!ok) continue;
-                expectedCount++;
-                for (var o = 0; o < program.Outputs.Length; o++)
-                    Assert.True(field.AreEqual(registers[program.Outputs[o]], outputs[o * b + l]), $"{what} ({kernel}): lane {l}, output {o} differs");
+                if (Evaluator.TryPrepareConstants<TField, T>(fields[l], program, out _)) expectedConstants++;
+                if (LaneAgrees(fields[l], program, points, outputs, defined, l, $"{what} ({kernel})")) expectedCount++;
             }
             Assert.Equal(expectedCount, count);
             Assert.Equal(expectedConstants, definedConstants);
