@@ -83,9 +83,9 @@ internal sealed class StoreWorkerBinding(StoreLocation location, Limits limits, 
 
     // Not retried: if the server went away after committing, a retry would take a second set and leave the first queued
     // with no job until the stale-queue sweep. The planner simply tries again at its next round.
-    public PlannedWork TakePending(int max, Action<int, IReadOnlyList<long>> enqueue) => With(c =>
+    public PlannedWork TakePending(int max, Action<int, IReadOnlyList<long>>? beforeCommit = null) => With(c =>
     {
-        var (stage, ids) = new WorkQueue(c).TakePending(max, enqueue);
+        var (stage, ids) = new WorkQueue(c).TakePending(max, beforeCommit);
         return new PlannedWork(stage, ids);
     }, retry: false);
 

@@ -54,8 +54,7 @@ public static class BlockTrialRunner
             fields[l] = draw(ref random);
             for (var v = 0; v < variables; v++) points[v * b + l] = fields[l].Sample(ref random);
         }
-        var evaluator = new BlockEvaluator<TField, T>(fields[0], program, b);
-        evaluator.UseFields(fields);
+        var evaluator = new BlockEvaluator<TField, T>(fields, program);
         var outputs = new T[source.Outputs.Length * b];
         var defined = new bool[b];
         evaluator.Evaluate(points, outputs, defined);
@@ -66,19 +65,7 @@ public static class BlockTrialRunner
         for (var l = 0; l < count; l++)
         {
             for (var v = 0; v < variables; v++) point[v] = points[v * b + l];
-            RecheckResult difference;
-            if (!defined[l]) difference = new RecheckResult(false, null, null);
-            else
-            {
-                difference = new RecheckResult(true, null, null);
-                for (var o = 0; o < source.Outputs.Length; o++)
-                {
-                    var value = outputs[o * b + l];
-                    if (fields[l].IsZero(value)) continue;
-                    difference = new RecheckResult(true, fields[l].ToCoefficients(value), source.OutputNames.Length > 0 ? source.OutputNames[o] : null);
-                    break;
-                }
-            }
+            var difference = defined[l] ? TrialRunner.FromOutputs<TField, T>(fields[l], source, outputs, b, l) : new RecheckResult(false, null, null);
             records[l] = TrialRunner.Record<TField, T>(fields[l], identity, firstSeq + l, seeds[l], point, null, difference, elapsed);
         }
         return records;

@@ -27,13 +27,12 @@ public static class Screener
             return new ScreenResult(Verdict.Invalid, bounds.Degree, bounds.HeightLog2, null, trials, null, false,
                 $"the constant {constant} is not defined in {identity.Field}: its denominator is divisible by {identity.Field.Characteristic}");
         var accumulated = 0.0;
-        var zeroTrials = 0;
         var consecutiveUndefined = 0;
         var climbed = new HashSet<int>(); // the rungs with a zero trial: the ladder's position
         foreach (var t in trials)
         {
             if (t.Outcome == TrialOutcome.Nonzero) return Refuted(identity, options, trials, t);
-            if (t.Outcome == TrialOutcome.Zero) { accumulated += t.BoundLog2 ?? 0; zeroTrials++; consecutiveUndefined = 0; climbed.Add(FieldLadder.RungOf(identity, t.Field)); }
+            if (t.Outcome == TrialOutcome.Zero) { accumulated += t.BoundLog2 ?? 0; consecutiveUndefined = 0; climbed.Add(FieldLadder.RungOf(identity, t.Field)); }
             else consecutiveUndefined++;
         }
         var rungs = FieldLadder.Rungs(identity.Field, options.Limits.MaxFieldBits);
@@ -79,7 +78,6 @@ public static class Screener
                         break;
                     default:
                         consecutiveUndefined = 0;
-                        zeroTrials++;
                         stageZero = true;
                         accumulated += trial.BoundLog2 ?? 0;
                         climbed.Add(rung.Key);

@@ -76,9 +76,21 @@ public static class TrialRunner
         if (!Evaluator.TryPrepareConstants<TField, T>(field, program, out var constants)) return new RecheckResult(false, null, null);
         var registers = new T[program.Length];
         if (!Evaluator.Evaluate<TField, T>(field, program, constants, point, registers)) return new RecheckResult(false, null, null);
+        var outputs = new T[program.Outputs.Length];
+        for (var o = 0; o < outputs.Length; o++) outputs[o] = registers[program.Outputs[o]];
+        return FromOutputs(field, program, outputs, 1, 0);
+    }
+
+    /// <summary>
+    /// lhs − rhs at a defined point from its outputs (output o of lane <paramref name="lane"/> at o·stride + lane): zero
+    /// when every output vanishes, else the first nonzero output and its entry name.
+    /// </summary>
+    internal static RecheckResult FromOutputs<TField, T>(TField field, StraightLineProgram program, ReadOnlySpan<T> outputs, int stride, int lane)
+        where TField : struct, IField<T> where T : struct
+    {
         for (var o = 0; o < program.Outputs.Length; o++)
         {
-            var value = registers[program.Outputs[o]];
+            var value = outputs[o * stride + lane];
             if (!field.IsZero(value))
                 return new RecheckResult(true, field.ToCoefficients(value), program.OutputNames.Length > 0 ? program.OutputNames[o] : null);
         }

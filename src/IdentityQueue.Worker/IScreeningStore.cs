@@ -20,10 +20,10 @@ public interface IScreeningStore
 
     /// <summary>
     /// Takes up to <paramref name="max"/> pending candidates of the earliest stage that has any (stage 1: no zero trial yet;
-    /// stage 2: the rest) and marks them queued, atomically. Empty when nothing is pending. <paramref name="enqueue"/> runs
-    /// before the rows are committed as queued; if it throws (or the process dies first) they stay pending.
+    /// stage 2: the rest) and marks them queued, atomically. Empty when nothing is pending. <paramref name="beforeCommit"/>
+    /// runs before the rows are committed as queued; if it throws (or the process dies first) they stay pending.
     /// </summary>
-    PlannedWork TakePending(int max, Action<int, IReadOnlyList<long>> enqueue);
+    PlannedWork TakePending(int max, Action<int, IReadOnlyList<long>>? beforeCommit = null);
 
     /// <summary>Marks the given candidates as being screened by <paramref name="worker"/> and loads them; settled ones are skipped.</summary>
     IReadOnlyList<CandidateWork> Claim(IReadOnlyList<long> ids, string worker);

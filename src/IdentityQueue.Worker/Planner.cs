@@ -32,7 +32,7 @@ public sealed class Planner(IScreeningStore store, IBackgroundJobClient jobs, Wo
         PlannedWork work = new(1, []);
         void Enqueue(int stage, IReadOnlyList<long> ids)
         {
-            foreach (var chunk in ids.Skip(enqueued).Chunk(settings.ChunkSize))
+            foreach (var chunk in ids.Chunk(settings.ChunkSize))
             {
                 jobs.Enqueue<ScreeningJob>(j => j.Run(stage, chunk, CancellationToken.None));
                 enqueued += chunk.Length;
@@ -42,7 +42,11 @@ public sealed class Planner(IScreeningStore store, IBackgroundJobClient jobs, Wo
         {
             var max = (int)Math.Min(room, int.MaxValue);
             if (_shared) work = store.TakePending(max, Enqueue);
-            else Enqueue((work = store.TakePending(max, static (_, _) => { })).Stage, work.Ids);
+            else
+            {
+                work = store.TakePending(max);
+                Enqueue(work.Stage, work.Ids);
+            }
         }
         catch (Exception e) when (e is not OutOfMemoryException)
         {

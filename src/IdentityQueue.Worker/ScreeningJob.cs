@@ -1,6 +1,5 @@
 using System.ComponentModel;
 using Hangfire;
-using IdentityQueue.Algebra.Compile;
 using IdentityQueue.Screening;
 using Microsoft.Extensions.Logging;
 

@@ -64,7 +64,6 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
     // the lanes' fields and what is derived from them (replaced by UseField and UseFields)
     private readonly TField[] _fields;
     private readonly bool[] _constantUndefined;
-    private readonly bool[] _laneSame;
     private bool _uniform;
     private bool _oddCharacteristic;
     private readonly ulong[] _p62, _p62High, _q62;
@@ -76,8 +75,16 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
     {
     }
 
+    /// <summary>An evaluator of <paramref name="program"/> with lane l in <paramref name="fields"/>[l] (see <see cref="UseFields"/>).</summary>
+    public BlockEvaluator(ReadOnlySpan<TField> fields, BlockProgram program)
+        : this(program, fields.Length, LaneKernel.Avx512) => UseFields(fields);
+
     /// <summary>As the public constructor, with the widest lane kernel allowed (each rung falls back to what the CPU supports).</summary>
     internal BlockEvaluator(TField field, BlockProgram program, int blockSize, LaneKernel kernel)
+        : this(program, blockSize, kernel) => UseField(field);
+
+    /// <summary>The buffers, before any lane has a field.</summary>
+    private BlockEvaluator(BlockProgram program, int blockSize, LaneKernel kernel)
     {
         ArgumentNullException.ThrowIfNull(program);
         ArgumentOutOfRangeException.ThrowIfLessThan(blockSize, 1);
@@ -93,12 +100,10 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
         _kernel62 = Lanes62.Supported(kernel);
         _fields = new TField[blockSize];
         _constantUndefined = new bool[blockSize];
-        _laneSame = new bool[blockSize];
         var is62 = typeof(TField) == typeof(PrimeField62);
         var is31 = typeof(TField) == typeof(PrimeField31);
         (_p62, _p62High, _q62) = is62 ? (new ulong[blockSize], new ulong[blockSize], new ulong[blockSize]) : ([], [], []);
         (_p31, _q31) = is31 ? (new uint[blockSize], new uint[blockSize]) : ([], []);
-        UseField(field);
     }
 
     /// <summary>
@@ -133,7 +138,7 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
         if (fields.Length != _b) throw new ArgumentException($"need one field per lane ({_b}), got {fields.Length}", nameof(fields));
         _uniform = true;
         _oddCharacteristic = true;
-        var sameAsFirst = _laneSame;
+        Span<bool> sameAsFirst = stackalloc bool[_b];
         for (var l = 0; l < _b; l++)
         {
             SetLaneField(l, fields[l]);

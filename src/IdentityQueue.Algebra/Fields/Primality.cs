@@ -18,12 +18,9 @@ public static class Primality
     public static bool IsPrime(BigInteger n)
     {
         if (n < 2) return false;
-        foreach (var sp in SmallPrimes)
-        {
-            if (n == sp) return true;
-            if (n % sp == 0) return false;
-        }
         if (n <= ulong.MaxValue) return IsPrime((ulong)n);
+        foreach (var sp in SmallPrimes)
+            if (n % sp == 0) return false;
         var d = n - 1;
         var s = 0;
         while (d.IsEven) { d >>= 1; s++; }
