@@ -30,6 +30,9 @@ public sealed class ExprPrinter : IExprVisitor<StringBuilder>
         return output.ToString();
     }
 
+    /// <summary>The one-line identity of stored sides: <c>LHS = RHS</c>, then <c>over FIELD</c> unless the field is Q.</summary>
+    public static string Line(string lhs, string rhs, string field) => field == "Q" ? $"{lhs} = {rhs}" : $"{lhs} = {rhs} over {field}";
+
     /// <summary>The catalogue line of an entry: <c>label: LHS = RHS over FIELD for n in A..B, …</c> (no <c>over</c> for Q).</summary>
     public static string Print(IdentityEntry entry)
     {

@@ -1,5 +1,6 @@
 using System.Globalization;
 using System.Text.Json;
+using IdentityQueue.Algebra.Syntax;
 
 namespace IdentityQueue.Screening.HandOff;
 
@@ -21,7 +22,7 @@ public sealed record HandOffCandidate(
     long Trials)
 {
     /// <summary>The identity as one line of catalogue text (parameters fixed by <see cref="Params"/>).</summary>
-    public string Identity => Field == "Q" ? $"{Lhs} = {Rhs}" : $"{Lhs} = {Rhs} over {Field}";
+    public string Identity => ExprPrinter.Line(Lhs, Rhs, Field);
 
     /// <summary>The error bound as the exponent of 2, rounded up to one decimal (never stronger than stored); null when none.</summary>
     public string? ErrorBoundExponent => ErrorBoundLog2 is { } e && double.IsFinite(e)

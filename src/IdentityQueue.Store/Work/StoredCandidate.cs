@@ -20,7 +20,7 @@ public sealed record StoredCandidate(
     int CatalogueTargetBits)
 {
     /// <summary>The catalogue line this candidate stands for (without its family ranges; <see cref="Params"/> binds them).</summary>
-    public string Text => Field == "Q" ? $"{Lhs} = {Rhs}" : $"{Lhs} = {Rhs} over {Field}";
+    public string Text => ExprPrinter.Line(Lhs, Rhs, Field);
 
     /// <summary>
     /// Parses the stored sides and field and reads the parameters, giving an <see cref="IdentityEntry"/> (no family
