@@ -8,6 +8,7 @@
 set -euo pipefail
 action=${1:?usage: pg-cluster.sh start|restart|stop DIR [PORT]}
 dir=${2:?usage: pg-cluster.sh start|restart|stop DIR [PORT]}
+case "$dir" in /*) ;; *) dir=$PWD/$dir ;; esac # absolute: the server runs from /
 
 bindir=""
 for candidate in "${PG_BINDIR:-}" /usr/lib/postgresql/*/bin; do
@@ -16,7 +17,8 @@ done
 [ -n "$bindir" ] || { echo "pg-cluster: no PostgreSQL server binaries (apt-get install postgresql)" >&2; exit 1; }
 
 as_owner() {
-  if [ "$(id -u)" -eq 0 ]; then runuser -u postgres -- "$@"; else "$@"; fi
+  # from /, so that the postgres user is not left in a folder it may not read (a mktemp clone, say)
+  if [ "$(id -u)" -eq 0 ]; then (cd / && runuser -u postgres -- "$@"); else "$@"; fi
 }
 
 case "$action" in
