@@ -13,7 +13,8 @@ dotnet build "$root/src/IdentityQueue.Cli" -c Release -v quiet -nologo >/dev/nul
 idq="dotnet $root/src/IdentityQueue.Cli/bin/Release/net10.0/idq.dll"
 work=$(mktemp -d /tmp/idq-scale.XXXXXX)
 pg=$(mktemp -d /tmp/idq-scale-pg.XXXXXX)   # its own folder: the server runs as another user when we are root
-cleanup() { cd /; pkill -TERM -f "idq.dll worker --postgres" 2>/dev/null || true; bash "$root/tests/postgres/pg-cluster.sh" stop "$pg" || true; rm -rf "$work" "$pg"; }
+pids=()   # the worker processes this script started; cleanup stops these and no others
+cleanup() { cd /; if [ "${#pids[@]}" -gt 0 ]; then kill -TERM "${pids[@]}" 2>/dev/null || true; wait "${pids[@]}" 2>/dev/null || true; fi; bash "$root/tests/postgres/pg-cluster.sh" stop "$pg" || true; rm -rf "$work" "$pg"; }
 trap cleanup EXIT
 admin=$(bash "$root/tests/postgres/pg-cluster.sh" start "$pg" "$port")
 python3 "$gen" "$n" --seed 1 --truth "$work/truth.txt" > "$work/cat.idq"
@@ -60,6 +61,7 @@ for k in 1 2 4; do
   done
   end=$(now)
   kill -TERM "${pids[@]}"; wait "${pids[@]}" 2>/dev/null || true
+  pids=()
   $idq sql --postgres "$conn" "select label || '|' || state from verdicts" --csv | tail -n +2 > "verdicts-pg-$k.txt"
   report "PostgreSQL" "$k × 1 (idq worker)" "$(python3 -c "print($end - $start)")" "$(wrong_of "verdicts-pg-$k.txt")"
 done

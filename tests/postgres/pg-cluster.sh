@@ -4,6 +4,7 @@
 #   pg-cluster.sh start DIR PORT    initdb (first time) and start; prints the connection string
 #   pg-cluster.sh restart DIR       stop (fast) and start again, keeping the data
 #   pg-cluster.sh stop DIR          stop (fast); the folder stays until you delete it
+#   pg-cluster.sh start DIR PORT    on an existing folder: start it again, keeping the data
 # PostgreSQL refuses to run as root: as root, the server runs as the 'postgres' system user (from Debian's package).
 set -euo pipefail
 action=${1:?usage: pg-cluster.sh start|restart|stop DIR [PORT]}

@@ -53,14 +53,23 @@ internal static class PostgresServer
         }
     }
 
-    /// <summary>Restarts the server (fast shutdown, then start), as an operator would mid-run.</summary>
-    public static void Restart()
+    /// <summary>Stops the server (fast shutdown), as an operator would mid-run; <see cref="Start"/> brings it back with its data.</summary>
+    public static void Stop() => Cluster("stop");
+
+    /// <summary>Starts the stopped server again on its port, keeping the data.</summary>
+    public static void Start() => Cluster("start", new NpgsqlConnectionStringBuilder(Admin).Port.ToString(System.Globalization.CultureInfo.InvariantCulture));
+
+    private static void Cluster(string action, params string[] more)
     {
         var folder = ClusterFolder ?? throw new InvalidOperationException($"{ClusterVariable} is not set: the restart test needs the cluster's folder");
         var script = Path.Combine(RepositoryRoot(), "tests", "postgres", "pg-cluster.sh");
-        using var p = System.Diagnostics.Process.Start("bash", [script, "restart", folder])!;
-        if (!p.WaitForExit(120_000)) throw new TimeoutException("pg-cluster.sh restart did not finish in two minutes");
-        if (p.ExitCode != 0) throw new InvalidOperationException($"pg-cluster.sh restart failed with exit code {p.ExitCode}");
+        var start = new System.Diagnostics.ProcessStartInfo("bash") { RedirectStandardOutput = true, UseShellExecute = false };
+        foreach (var a in new[] { script, action, folder }.Concat(more)) start.ArgumentList.Add(a);
+        using var p = System.Diagnostics.Process.Start(start)!;
+        p.StandardOutput.ReadToEnd();
+        // pg_ctl itself waits at most 60 s (-w -t 60); this only guards against a hung script
+        if (!p.WaitForExit(300_000)) throw new TimeoutException($"pg-cluster.sh {action} did not finish in five minutes");
+        if (p.ExitCode != 0) throw new InvalidOperationException($"pg-cluster.sh {action} failed with exit code {p.ExitCode}");
     }
 
     public static string RepositoryRoot()

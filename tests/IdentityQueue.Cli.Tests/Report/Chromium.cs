@@ -8,7 +8,7 @@ internal static class Chromium
     public const string Executable = "/usr/bin/chromium";
 
     /// <summary>A guard against a hung browser, not a measurement.</summary>
-    private static readonly TimeSpan Patience = TimeSpan.FromMinutes(3);
+    private static readonly TimeSpan Patience = TimeSpan.FromMinutes(10);
 
     public static void Require()
     {
