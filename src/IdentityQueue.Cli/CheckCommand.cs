@@ -1,7 +1,5 @@
 using System.CommandLine;
 using System.Numerics;
-using System.Security.Cryptography;
-using System.Text;
 using IdentityQueue.Algebra;
 using IdentityQueue.Algebra.Compile;
 using IdentityQueue.Algebra.Syntax;
@@ -42,11 +40,17 @@ public static class CheckCommand
                 error.WriteLine($"idq check: --target-bits must be between 1 and 4096, got {targetBits}");
                 return ExitCodes.BadInput;
             }
-            var options = new ScreeningOptions
+            var runSeed = RunSeed.Random();
+            if (parse.GetValue(seed) is { } given)
             {
-                TargetBits = targetBits,
-                Seed = parse.GetValue(seed) ?? BitConverter.ToUInt64(RandomNumberGenerator.GetBytes(8)),
-            };
+                if (RunSeed.FromUser(given, out var problem) is not { } valid)
+                {
+                    error.WriteLine($"idq check: --seed: {problem}");
+                    return ExitCodes.BadInput;
+                }
+                runSeed = valid;
+            }
+            var options = new ScreeningOptions { TargetBits = targetBits, Seed = runSeed.Value };
             return Execute(parse.GetValue(identity) ?? "", parse.GetValue(over), options, parse.GetValue(json), output, error);
         });
         return command;
@@ -81,8 +85,7 @@ public static class CheckCommand
                 outcomes.Add(new InstanceOutcome(parameters, null, compiled.Error!.ToString()));
                 continue;
             }
-            var key = CandidateKey(entry, parameters);
-            outcomes.Add(new InstanceOutcome(parameters, Screener.Screen(compiled.Value!, options, key), null));
+            outcomes.Add(new InstanceOutcome(parameters, Screener.Screen(compiled.Value!, options, CandidateKey.Of(entry, parameters)), null));
         }
         if (json) JsonReport.Write(output, entry, options, outcomes);
         else TextReport.Write(output, entry, options, outcomes);
@@ -96,16 +99,6 @@ public static class CheckCommand
         if (all.Contains(Verdict.Invalid)) return ExitCodes.BadInput;
         if (all.Contains(Verdict.Undecided)) return ExitCodes.Undecided;
         return ExitCodes.Success;
-    }
-
-    /// <summary>A stable 64-bit key for a candidate (FNV-1a over its text and parameters), so the same seed gives the same trials.</summary>
-    internal static ulong CandidateKey(IdentityEntry entry, IReadOnlyDictionary<string, BigInteger> parameters)
-    {
-        var text = new StringBuilder(entry.Text).Append('|').Append(entry.Field);
-        foreach (var (name, value) in parameters.OrderBy(p => p.Key, StringComparer.Ordinal)) text.Append('|').Append(name).Append('=').Append(value);
-        var hash = 14695981039346656037UL;
-        foreach (var b in Encoding.UTF8.GetBytes(text.ToString())) hash = unchecked((hash ^ b) * 1099511628211UL);
-        return hash;
     }
 
     private static int Invalid(string text, Diagnostic diagnostic, bool json, TextWriter output, TextWriter error, string? what = null)

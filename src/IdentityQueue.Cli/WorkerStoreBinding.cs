@@ -94,7 +94,7 @@ internal sealed class StoreWorkerBinding(StoreLocation location, Limits limits, 
         {
             var s = claimed.Candidate;
             var bound = s.Bind(limits);
-            return new CandidateWork(s.Id, unchecked((ulong)s.CatalogueSeed), s.CatalogueTargetBits, bound.Entry, bound.Parameters, bound.Error, claimed.Trials);
+            return new CandidateWork(s.Id, s.Seed.Value, s.TrialKey(bound), s.CatalogueTargetBits, bound.Entry, bound.Parameters, bound.Error, claimed.Trials);
         }).ToList());
 
     public void Save(IReadOnlyList<WorkerOutcome> outcomes, string worker)

@@ -80,6 +80,7 @@ public sealed record PlannedWork(int Stage, IReadOnlyList<long> Ids);
 public sealed record CandidateWork(
     long Id,
     ulong Seed,
+    ulong Key,
     int TargetBits,
     IdentityEntry? Entry,
     IReadOnlyDictionary<string, BigInteger> Parameters,

@@ -60,7 +60,7 @@ public sealed class ScreeningJob(IScreeningStore store, WorkerSettings settings,
                 Limits = settings.Limits,
                 MaxNewStages = settings.TwoPass && stage == 1 ? 1 : null,
             };
-            return new CandidateOutcome(work.Id, Screener.Screen(compiled.Value!, options, (ulong)work.Id, work.Trials, cancellation), null, null);
+            return new CandidateOutcome(work.Id, Screener.Screen(compiled.Value!, options, work.Key, work.Trials, cancellation), null, null);
         }
         catch (Exception e) when (e is not OutOfMemoryException and not OperationCanceledException)
         {

@@ -19,8 +19,8 @@ internal static class Some
         Assert.True(bound.Success, bound.Error);
         var compiled = IdentityCompiler.Compile(bound.Entry!, bound.Parameters);
         Assert.True(compiled.Success, compiled.Error?.ToString());
-        var options = new ScreeningOptions { TargetBits = targetBits, Seed = (ulong)candidate.CatalogueSeed };
-        return Screener.Screen(compiled.Value!, options, (ulong)candidateId, candidates.LoadTrials(candidateId));
+        var options = new ScreeningOptions { TargetBits = targetBits, Seed = candidate.Seed.Value };
+        return Screener.Screen(compiled.Value!, options, candidate.TrialKey(bound), candidates.LoadTrials(candidateId));
     }
 
     /// <summary>Imports one catalogue text as <c>c.idq</c> with a fixed seed.</summary>

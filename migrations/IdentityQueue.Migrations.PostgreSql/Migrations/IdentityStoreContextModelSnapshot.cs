@@ -110,6 +110,12 @@ namespace IdentityQueue.Migrations.PostgreSql.Migrations
                         .HasColumnType("integer")
                         .HasColumnName("instances");
 
+                    b.Property<int>("KeyScheme")
+                        .ValueGeneratedOnAdd()
+                        .HasColumnType("integer")
+                        .HasDefaultValue(1)
+                        .HasColumnName("key_scheme");
+
                     b.Property<string>("Name")
                         .IsRequired()
                         .HasColumnType("text")

@@ -101,6 +101,12 @@ namespace IdentityQueue.Migrations.Sqlite.Migrations
                         .HasColumnType("INTEGER")
                         .HasColumnName("instances");
 
+                    b.Property<int>("KeyScheme")
+                        .ValueGeneratedOnAdd()
+                        .HasColumnType("INTEGER")
+                        .HasDefaultValue(1)
+                        .HasColumnName("key_scheme");
+
                     b.Property<string>("Name")
                         .IsRequired()
                         .HasColumnType("TEXT")

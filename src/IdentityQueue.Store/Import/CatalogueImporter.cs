@@ -5,6 +5,7 @@ using System.Numerics;
 using System.Text;
 using IdentityQueue.Algebra.Compile;
 using IdentityQueue.Algebra.Syntax;
+using IdentityQueue.Screening;
 using IdentityQueue.Store.Schema;
 using IdentityQueue.Store.Work;
 
@@ -56,7 +57,7 @@ public sealed class CatalogueImporter(StoreConnection store)
         options ??= new ImportOptions();
         if (Check(path, options) is { } refusal) return ImportResult.Refused(refusal);
         var name = options.CatalogueName ?? DefaultName(path);
-        var seed = options.Seed ?? Random.Shared.NextInt64(0, long.MaxValue);
+        var seed = options.Seed ?? RunSeed.Random().Stored;
         var clock = Stopwatch.StartNew();
 
         long catalogueId;

@@ -31,6 +31,7 @@ public sealed class IdentityStoreContext(DbContextOptions<IdentityStoreContext> 
             e.Property(x => x.ImportedAt).HasColumnName("imported_at").HasDefaultValueSql(Now);
             e.Property(x => x.Seed).HasColumnName("seed").HasDefaultValue(0L);
             e.Property(x => x.TargetBits).HasColumnName("target_bits").HasDefaultValue(64);
+            e.Property(x => x.KeyScheme).HasColumnName("key_scheme").HasDefaultValue(1);
             e.Property(x => x.Entries).HasColumnName("entries");
             e.Property(x => x.Instances).HasColumnName("instances");
             e.Property(x => x.Rejections).HasColumnName("rejections");

@@ -14,6 +14,12 @@ public sealed class CatalogueRow
     public DateTime ImportedAt { get; set; }
     /// <summary>The run seed of the catalogue's candidates (0 ≤ seed &lt; 2^63), chosen at import.</summary>
     public long Seed { get; set; }
+    /// <summary>
+    /// How trials are keyed: 1 (every catalogue made by this version) by the candidate's canonical identity
+    /// (<c>CandidateKey</c>), so that the same seed gives the same trials in any store and in <c>idq check</c>; 0 for the
+    /// catalogues of stores made before that, whose trials were keyed by the candidate's id and stay reproducible so.
+    /// </summary>
+    public int KeyScheme { get; set; }
     /// <summary>The evidence target (bits) of the catalogue's last run; 64 until a run records another.</summary>
     public int TargetBits { get; set; }
     /// <summary>Counts at import: entries accepted, candidates made, rejections; null until an import has finished.</summary>

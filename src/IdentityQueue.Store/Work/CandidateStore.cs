@@ -97,13 +97,13 @@ public sealed class CandidateStore(StoreConnection store)
 
     /// <summary>The select of <see cref="ReadCandidate"/>'s columns; add a WHERE clause.</summary>
     internal const string CandidateColumns = """
-        SELECT c.id, c.catalogue_id, k.name, c.label, c.family, c.params, c.lhs, c.rhs, c.field, c.position, k.seed, k.target_bits
+        SELECT c.id, c.catalogue_id, k.name, c.label, c.family, c.params, c.lhs, c.rhs, c.field, c.position, k.seed, k.target_bits, k.key_scheme
         FROM candidate c JOIN catalogue k ON k.id = c.catalogue_id
         """;
 
     internal static StoredCandidate ReadCandidate(DbDataReader r) =>
         new(r.GetInt64(0), r.GetInt64(1), r.GetString(2), r.GetString(3), r.NullableString(4), r.NullableString(5),
-            r.GetString(6), r.GetString(7), r.GetString(8), r.NullableInt(9), r.GetInt64(10), r.GetInt32(11));
+            r.GetString(6), r.GetString(7), r.GetString(8), r.NullableInt(9), r.GetInt64(10), r.GetInt32(11), r.GetInt32(12));
 
     /// <summary>The stored trials of a candidate in seq order, as the screener takes them for prior evidence.</summary>
     public IReadOnlyList<TrialRecord> LoadTrials(long candidateId)

@@ -1,6 +1,7 @@
 using System.Numerics;
 using IdentityQueue.Algebra;
 using IdentityQueue.Algebra.Syntax;
+using IdentityQueue.Screening;
 
 namespace IdentityQueue.Store.Work;
 
@@ -17,8 +18,19 @@ public sealed record StoredCandidate(
     string Field,
     int? Position,
     long CatalogueSeed,
-    int CatalogueTargetBits)
+    int CatalogueTargetBits,
+    int KeyScheme = 1)
 {
+    /// <summary>The catalogue's run seed.</summary>
+    public RunSeed Seed => RunSeed.FromStored(CatalogueSeed);
+
+    /// <summary>
+    /// The key the trials of this candidate are seeded with: its canonical identity (<see cref="CandidateKey"/>), or its id
+    /// in a catalogue made before canonical keys (<c>catalogue.key_scheme</c> 0), whose stored trials stay reproducible so.
+    /// </summary>
+    public ulong TrialKey(BoundCandidate bound) =>
+        KeyScheme == 0 || !bound.Success ? unchecked((ulong)Id) : CandidateKey.Of(bound.Entry!, bound.Parameters);
+
     /// <summary>The catalogue line this candidate stands for (without its family ranges; <see cref="Params"/> binds them).</summary>
     public string Text => ExprPrinter.Line(Lhs, Rhs, Field);
 

@@ -1,3 +1,4 @@
+using Microsoft.EntityFrameworkCore.Infrastructure;
 using Microsoft.EntityFrameworkCore;
 namespace IdentityQueue.Store.Tests.Schema;
 
@@ -142,5 +143,30 @@ public sealed class MigrationTests
         store.Execute("DELETE FROM catalogue");
         foreach (var table in new[] { "candidate", "result", "trial", "rejection" })
             Assert.Equal(0, store.Count($"SELECT COUNT(*) FROM {table}"));
+    }
+}
+
+public sealed class KeySchemeMigrationTests
+{
+    [Fact]
+    public void CataloguesOfAnOlderStoreKeepIdKeyedTrials_NewImportsUseCanonicalKeys()
+    {
+        using var store = TempStore.Create(migrate: false);
+        using (var context = store.Connection.CreateContext())
+            context.GetService<Microsoft.EntityFrameworkCore.Migrations.IMigrator>().Migrate("20261201224457_AddWorkerTable");
+        store.Execute("INSERT INTO catalogue (name, seed) VALUES ('old', 7)");
+        store.Execute("INSERT INTO candidate (catalogue_id, label, lhs, rhs) VALUES (1, 'o', '(x+1)^2', 'x^2+1')");
+        store.Connection.Migrate();
+        Assert.Equal(0L, store.Scalar("SELECT key_scheme FROM catalogue WHERE name = 'old'"));
+        Some.Catalogue(store, "n: (x+1)^2 = x^2+1\n");
+        Assert.Equal(1L, store.Scalar("SELECT key_scheme FROM catalogue WHERE name = 'c'"));
+
+        // the old catalogue's candidate is seeded by its id, the new one's by its canonical identity
+        var candidates = new IdentityQueue.Store.Work.CandidateStore(store.Connection);
+        var old = candidates.LoadCandidate(1)!;
+        var fresh = candidates.LoadCandidate(Some.Id(store, "n"))!;
+        Assert.Equal(1UL, old.TrialKey(old.Bind()));
+        var bound = fresh.Bind();
+        Assert.Equal(IdentityQueue.Screening.CandidateKey.Of(bound.Entry!, bound.Parameters), fresh.TrialKey(bound));
     }
 }
