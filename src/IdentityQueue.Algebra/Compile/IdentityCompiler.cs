@@ -236,19 +236,37 @@ public static class IdentityCompiler
             return Value.Matrix(v.Rows, v.Columns, e);
         }
 
+        public Value VisitSum(SumExpr node)
+        {
+            Step(node);
+            var terms = node.Terms;
+            var acc = terms[0].Value.Accept(this);
+            for (var i = 1; i < terms.Count; i++)
+            {
+                var term = terms[i];
+                acc = AddOrSubtract(acc, term.Value.Accept(this), term.OperatorPosition, term.Subtract);
+            }
+            return acc;
+        }
+
+        public Value VisitProduct(ProductExpr node)
+        {
+            Step(node);
+            var factors = node.Factors;
+            var acc = factors[0].Value.Accept(this);
+            for (var i = 1; i < factors.Count; i++)
+            {
+                var factor = factors[i];
+                var value = factor.Value.Accept(this);
+                acc = factor.Divide ? Divide(acc, value, factor) : Multiply(acc, value, factor.OperatorPosition);
+            }
+            return acc;
+        }
+
         public Value VisitBinary(BinaryExpr node)
         {
             Step(node);
-            if (node.Operator == BinaryOperator.Power) return Power(node);
-            var l = node.Left.Accept(this);
-            var r = node.Right.Accept(this);
-            return node.Operator switch
-            {
-                BinaryOperator.Add => AddOrSubtract(l, r, node.OperatorPosition, subtract: false),
-                BinaryOperator.Subtract => AddOrSubtract(l, r, node.OperatorPosition, subtract: true),
-                BinaryOperator.Multiply => Multiply(l, r, node.OperatorPosition),
-                _ => Divide(l, r, node),
-            };
+            return Power(node);
         }
 
         private Value AddOrSubtract(Value l, Value r, SourcePosition at, bool subtract)
@@ -284,11 +302,11 @@ public static class IdentityCompiler
             return Value.Matrix(l.Rows, r.Columns, e);
         }
 
-        private Value Divide(Value l, Value r, BinaryExpr node)
+        private Value Divide(Value l, Value r, ProductFactor divisor)
         {
-            if (r.IsMatrix) throw new CompileError(node.Right.Position, $"cannot divide by a matrix ({r.Describe()})");
+            if (r.IsMatrix) throw new CompileError(divisor.Value.Position, $"cannot divide by a matrix ({r.Describe()})");
             if (_b.TryGetConstant(r.Scalar, out var c) && c.IsZero)
-                throw new CompileError(node.OperatorPosition, "division by zero");
+                throw new CompileError(divisor.OperatorPosition, "division by zero");
             var inverse = _b.Invert(r.Scalar);
             return Map(l, x => _b.Multiply(x, inverse));
         }

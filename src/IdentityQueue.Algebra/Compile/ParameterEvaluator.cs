@@ -40,31 +40,47 @@ internal sealed class ParameterEvaluator(IReadOnlyDictionary<string, BigInteger>
 
     public Rational VisitUnary(UnaryExpr node) => -node.Operand.Accept(this);
 
+    public Rational VisitSum(SumExpr node)
+    {
+        var acc = node.Terms[0].Value.Accept(this);
+        for (var i = 1; i < node.Terms.Count; i++)
+        {
+            var term = node.Terms[i];
+            var value = term.Value.Accept(this);
+            acc = Checked(term.Subtract ? acc - value : acc + value, node.Position);
+        }
+        return acc;
+    }
+
+    public Rational VisitProduct(ProductExpr node)
+    {
+        var acc = node.Factors[0].Value.Accept(this);
+        for (var i = 1; i < node.Factors.Count; i++)
+        {
+            var factor = node.Factors[i];
+            var value = factor.Value.Accept(this);
+            if (factor.Divide && value.IsZero) throw new CompileError(factor.OperatorPosition, $"division by zero in {context}");
+            acc = Checked(factor.Divide ? acc / value : acc * value, node.Position);
+        }
+        return acc;
+    }
+
     public Rational VisitBinary(BinaryExpr node)
     {
+        // '^', the only binary operator.
         var left = node.Left.Accept(this);
         var right = node.Right.Accept(this);
-        switch (node.Operator)
-        {
-            case BinaryOperator.Add: return Checked(left + right, node.Position);
-            case BinaryOperator.Subtract: return Checked(left - right, node.Position);
-            case BinaryOperator.Multiply: return Checked(left * right, node.Position);
-            case BinaryOperator.Divide:
-                if (right.IsZero) throw new CompileError(node.OperatorPosition, $"division by zero in {context}");
-                return Checked(left / right, node.Position);
-            default:
-                if (!right.IsInteger)
-                    throw new CompileError(node.Right.Position, $"an exponent must be an integer, but it is {right}");
-                var exponent = right.Numerator;
-                if (left.IsZero || left == Rational.One) return exponent.Sign < 0 && left.IsZero
-                    ? throw new CompileError(node.OperatorPosition, $"0 raised to a negative power in {context}")
-                    : exponent.IsZero ? Rational.One : left;
-                if (left == -Rational.One) return exponent.IsEven ? Rational.One : left;
-                var bits = Math.Max(left.Numerator.GetBitLength(), left.Denominator.GetBitLength());
-                if (BigInteger.Abs(exponent) * bits > limits.MaxParameterBits)
-                    throw new CompileError(node.OperatorPosition, $"{context} has a value larger than 2^{limits.MaxParameterBits} (the limit MaxParameterBits)");
-                return Rational.Pow(left, (int)exponent);
-        }
+        if (!right.IsInteger)
+            throw new CompileError(node.Right.Position, $"an exponent must be an integer, but it is {right}");
+        var exponent = right.Numerator;
+        if (left.IsZero || left == Rational.One) return exponent.Sign < 0 && left.IsZero
+            ? throw new CompileError(node.OperatorPosition, $"0 raised to a negative power in {context}")
+            : exponent.IsZero ? Rational.One : left;
+        if (left == -Rational.One) return exponent.IsEven ? Rational.One : left;
+        var bits = Math.Max(left.Numerator.GetBitLength(), left.Denominator.GetBitLength());
+        if (BigInteger.Abs(exponent) * bits > limits.MaxParameterBits)
+            throw new CompileError(node.OperatorPosition, $"{context} has a value larger than 2^{limits.MaxParameterBits} (the limit MaxParameterBits)");
+        return Rational.Pow(left, (int)exponent);
     }
 
     public Rational VisitCall(CallExpr node)

@@ -45,9 +45,35 @@ public sealed record UnaryExpr(UnaryOperator Operator, Expr Operand, SourcePosit
     public override TResult Accept<TResult>(IExprVisitor<TResult> visitor) => visitor.VisitUnary(this);
 }
 
-public enum BinaryOperator { Add, Subtract, Multiply, Divide, Power }
+/// <summary>One term of a <see cref="SumExpr"/>: added, or subtracted when <see cref="Subtract"/>; <see cref="OperatorPosition"/> is that of its '+' or '-' (the term's own for the first).</summary>
+public readonly record struct SumTerm(Expr Value, bool Subtract, SourcePosition OperatorPosition);
 
-/// <summary><c>+ - * / ^</c>; <see cref="SourcePosition"/> is that of the operator's left operand, <see cref="OperatorPosition"/> that of the operator.</summary>
+/// <summary>
+/// A flat chain <c>a + b - c + …</c> of two or more terms, evaluated left to right; the first term is never subtracted
+/// (a leading minus is a <see cref="UnaryExpr"/>). A chain of any length is one level of nesting, and every walk of it
+/// loops over <see cref="Terms"/> instead of recursing per term.
+/// </summary>
+public sealed record SumExpr(IReadOnlyList<SumTerm> Terms, SourcePosition At) : Expr(At)
+{
+    public override TResult Accept<TResult>(IExprVisitor<TResult> visitor) => visitor.VisitSum(this);
+}
+
+/// <summary>One factor of a <see cref="ProductExpr"/>: multiplied, or divided by when <see cref="Divide"/>; <see cref="OperatorPosition"/> is that of its '*' or '/' (the factor's own for the first).</summary>
+public readonly record struct ProductFactor(Expr Value, bool Divide, SourcePosition OperatorPosition);
+
+/// <summary>
+/// A flat chain <c>a * b / c * …</c> of two or more factors, evaluated left to right (<c>a/b*c</c> is <c>(a/b)*c</c>); the
+/// first factor is never a divisor. Like <see cref="SumExpr"/>, one level of nesting whatever its length.
+/// </summary>
+public sealed record ProductExpr(IReadOnlyList<ProductFactor> Factors, SourcePosition At) : Expr(At)
+{
+    public override TResult Accept<TResult>(IExprVisitor<TResult> visitor) => visitor.VisitProduct(this);
+}
+
+/// <summary>The binary operators that are not chains: only '^' (sums and products are <see cref="SumExpr"/> and <see cref="ProductExpr"/>).</summary>
+public enum BinaryOperator { Power }
+
+/// <summary><c>a ^ b</c>; <see cref="SourcePosition"/> is that of the base, <see cref="OperatorPosition"/> that of the '^'.</summary>
 public sealed record BinaryExpr(BinaryOperator Operator, Expr Left, Expr Right, SourcePosition At, SourcePosition OperatorPosition) : Expr(At)
 {
     public override TResult Accept<TResult>(IExprVisitor<TResult> visitor) => visitor.VisitBinary(this);
@@ -89,6 +115,8 @@ public interface IExprVisitor<out TResult>
     TResult VisitName(NameRef node);
     TResult VisitIndexed(IndexedName node);
     TResult VisitUnary(UnaryExpr node);
+    TResult VisitSum(SumExpr node);
+    TResult VisitProduct(ProductExpr node);
     TResult VisitBinary(BinaryExpr node);
     TResult VisitCall(CallExpr node);
     TResult VisitBound(BoundExpr node);

@@ -74,19 +74,35 @@ public sealed class ExprPrinter : IExprVisitor<StringBuilder>
         return _output;
     }
 
+    public StringBuilder VisitSum(SumExpr node)
+    {
+        var terms = node.Terms;
+        WriteOperand(terms[0].Value, AdditiveLevel);
+        for (var i = 1; i < terms.Count; i++)
+        {
+            _output.Append(terms[i].Subtract ? " - " : " + ");
+            WriteOperand(terms[i].Value, MultiplicativeLevel);
+        }
+        return _output;
+    }
+
+    public StringBuilder VisitProduct(ProductExpr node)
+    {
+        var factors = node.Factors;
+        WriteOperand(factors[0].Value, MultiplicativeLevel);
+        for (var i = 1; i < factors.Count; i++)
+        {
+            _output.Append(factors[i].Divide ? '/' : '*');
+            WriteOperand(factors[i].Value, UnaryLevel);
+        }
+        return _output;
+    }
+
     public StringBuilder VisitBinary(BinaryExpr node)
     {
-        var (symbol, leftLevel, rightLevel) = node.Operator switch
-        {
-            BinaryOperator.Add => (" + ", AdditiveLevel, MultiplicativeLevel),
-            BinaryOperator.Subtract => (" - ", AdditiveLevel, MultiplicativeLevel),
-            BinaryOperator.Multiply => ("*", MultiplicativeLevel, UnaryLevel),
-            BinaryOperator.Divide => ("/", MultiplicativeLevel, UnaryLevel),
-            _ => ("^", AtomLevel, UnaryLevel),
-        };
-        WriteOperand(node.Left, leftLevel);
-        _output.Append(symbol);
-        WriteOperand(node.Right, rightLevel);
+        WriteOperand(node.Left, AtomLevel);
+        _output.Append('^');
+        WriteOperand(node.Right, UnaryLevel);
         return _output;
     }
 
@@ -133,8 +149,8 @@ public sealed class ExprPrinter : IExprVisitor<StringBuilder>
     /// <summary>How tightly the printed form of a node binds (higher binds tighter); a negative literal prints like a negation.</summary>
     internal static int Level(Expr expr) => expr switch
     {
-        BinaryExpr { Operator: BinaryOperator.Add or BinaryOperator.Subtract } => AdditiveLevel,
-        BinaryExpr { Operator: BinaryOperator.Multiply or BinaryOperator.Divide } => MultiplicativeLevel,
+        SumExpr => AdditiveLevel,
+        ProductExpr => MultiplicativeLevel,
         BinaryExpr => PowerLevel,
         UnaryExpr => UnaryLevel,
         IntegerLiteral { Value.Sign: < 0 } => UnaryLevel,

@@ -10,15 +10,12 @@ namespace IdentityQueue.Algebra.Syntax;
 /// Recursive-descent parser with precedence climbing for one catalogue line (SPEC §3). It never throws on bad
 /// input: a failing method reports the first problem in <see cref="Error"/> and returns null, and every caller
 /// passes the null up. Nesting is bounded by <see cref="Limits.MaxNestingDepth"/> twice over: the recursion
-/// depth (parentheses, brackets, calls, unary minus, exponents) and the height of the tree built (which also
-/// grows along a flat chain like <c>x+x+…+x</c>), so that no later recursive walk of the tree can run out of stack.
+/// depth (parentheses, brackets, calls, unary minus, exponents) and the height of the tree built, so that no later
+/// recursive walk of the tree can run out of stack. A flat chain <c>x+x-…+x</c> or <c>x*x/…*x</c> is read in a loop
+/// into one n-ary node (<see cref="SumExpr"/>, <see cref="ProductExpr"/>) and counts one level, however long.
 /// </summary>
 internal sealed class Parser
 {
-    // Binding powers of the left-associative infix operators; '^' and unary minus are handled by their own methods.
-    private const int AdditivePrecedence = 1;
-    private const int MultiplicativePrecedence = 2;
-
     private readonly string _text;
     private readonly int _line;
     private readonly Limits _limits;
@@ -236,33 +233,49 @@ internal sealed class Parser
 
     // ---------------------------------------------------------------- expressions
 
-    /// <summary>expr := term {('+'|'-') term}; term := unary {('*'|'/') unary} — by precedence climbing.</summary>
-    private Expr? ParseExpression(int depth, out int height) => ParseBinary(AdditivePrecedence, depth, out height);
-
-    private Expr? ParseBinary(int minPrecedence, int depth, out int height)
+    /// <summary>
+    /// expr := term {('+'|'-') term}; a chain of two or more terms is one <see cref="SumExpr"/>, read in a loop, and counts
+    /// one level of nesting whatever its length.
+    /// </summary>
+    private Expr? ParseExpression(int depth, out int height)
     {
-        var left = ParseUnary(depth, out height);
-        if (left is null) return null;
-        while (true)
+        var first = ParseTerm(depth, out height);
+        if (first is null) return null;
+        if (_token.Kind is not (TokenKind.Plus or TokenKind.Minus)) return first;
+        var terms = new List<SumTerm> { new(first, false, first.Position) };
+        var firstOperator = _token;
+        while (_token.Kind is TokenKind.Plus or TokenKind.Minus)
         {
-            var (op, precedence) = _token.Kind switch
-            {
-                TokenKind.Plus => (BinaryOperator.Add, AdditivePrecedence),
-                TokenKind.Minus => (BinaryOperator.Subtract, AdditivePrecedence),
-                TokenKind.Star => (BinaryOperator.Multiply, MultiplicativePrecedence),
-                TokenKind.Slash => (BinaryOperator.Divide, MultiplicativePrecedence),
-                _ => (BinaryOperator.Add, 0),
-            };
-            if (precedence == 0 || precedence < minPrecedence) return left;
-            var opToken = _token;
+            var op = _token;
             Advance();
-            // Left associativity: the right operand binds only tighter operators.
-            var right = ParseBinary(precedence + 1, depth, out var rightHeight);
-            if (right is null) return null;
-            height = Math.Max(height, rightHeight) + 1;
-            if (height > _maxDepth) return Fail<Expr>(opToken, SyntaxMessages.ChainTooDeep(_maxDepth));
-            left = new BinaryExpr(op, left, right, left.Position, At(opToken));
+            var term = ParseTerm(depth, out var termHeight);
+            if (term is null) return null;
+            height = Math.Max(height, termHeight);
+            terms.Add(new SumTerm(term, op.Kind == TokenKind.Minus, At(op)));
         }
+        if (++height > _maxDepth) return Fail<Expr>(firstOperator, SyntaxMessages.NestingTooDeep(_maxDepth));
+        return new SumExpr(terms.ToArray(), first.Position);
+    }
+
+    /// <summary>term := unary {('*'|'/') unary}; a chain of two or more factors is one <see cref="ProductExpr"/>, one level of nesting.</summary>
+    private Expr? ParseTerm(int depth, out int height)
+    {
+        var first = ParseUnary(depth, out height);
+        if (first is null) return null;
+        if (_token.Kind is not (TokenKind.Star or TokenKind.Slash)) return first;
+        var factors = new List<ProductFactor> { new(first, false, first.Position) };
+        var firstOperator = _token;
+        while (_token.Kind is TokenKind.Star or TokenKind.Slash)
+        {
+            var op = _token;
+            Advance();
+            var factor = ParseUnary(depth, out var factorHeight);
+            if (factor is null) return null;
+            height = Math.Max(height, factorHeight);
+            factors.Add(new ProductFactor(factor, op.Kind == TokenKind.Slash, At(op)));
+        }
+        if (++height > _maxDepth) return Fail<Expr>(firstOperator, SyntaxMessages.NestingTooDeep(_maxDepth));
+        return new ProductExpr(factors.ToArray(), first.Position);
     }
 
     /// <summary>unary := ('-'|'+') unary | power. Unary minus binds looser than '^': <c>-x^2</c> is <c>-(x^2)</c>.</summary>

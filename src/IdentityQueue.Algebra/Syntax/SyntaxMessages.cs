@@ -23,10 +23,6 @@ public static class SyntaxMessages
     public static string NestingTooDeep(int limit) =>
         $"expression nested deeper than MaxNestingDepth ({limit})";
 
-    public static string ChainTooDeep(int limit) =>
-        $"expression nested deeper than MaxNestingDepth ({limit}): a chain of operators counts one level per operator; " +
-        "group the terms with parentheses or write them as sum(...)";
-
     public static string StackExhausted(int limit) =>
         $"expression nested too deeply for the parser's stack (MaxNestingDepth is {limit})";
 

@@ -56,35 +56,59 @@ public sealed class LatexPrinter : IExprVisitor<StringBuilder>
         return _output;
     }
 
+    public StringBuilder VisitSum(SumExpr node)
+    {
+        var terms = node.Terms;
+        Operand(terms[0].Value, AdditiveLevel);
+        for (var i = 1; i < terms.Count; i++)
+        {
+            _output.Append(terms[i].Subtract ? " - " : " + ");
+            Right(terms[i].Value, MultiplicativeLevel);
+        }
+        return _output;
+    }
+
+    /// <summary>
+    /// Left to right: a factor multiplied is <c>E \cdot f</c>, a divisor makes <c>\frac{E}{f}</c>. All the <c>\frac{</c> are
+    /// opened first (one per divisor), so a long chain is written in one loop: <c>a*b/c*d</c> is <c>\frac{a \cdot b}{c} \cdot d</c>.
+    /// </summary>
+    public StringBuilder VisitProduct(ProductExpr node)
+    {
+        var factors = node.Factors;
+        for (var i = 1; i < factors.Count; i++)
+            if (factors[i].Divide) _output.Append("\\frac{");
+        if (factors[1].Divide) Write(factors[0].Value);
+        else Operand(factors[0].Value, MultiplicativeLevel);
+        for (var i = 1; i < factors.Count; i++)
+        {
+            if (factors[i].Divide)
+            {
+                _output.Append("}{");
+                Write(factors[i].Value);
+                _output.Append('}');
+            }
+            else
+            {
+                _output.Append(" \\cdot ");
+                Right(factors[i].Value, UnaryLevel);
+            }
+        }
+        return _output;
+    }
+
     public StringBuilder VisitBinary(BinaryExpr node)
     {
-        switch (node.Operator)
-        {
-            case BinaryOperator.Divide:
-                _output.Append("\\frac{");
-                Write(node.Left);
-                _output.Append("}{");
-                Write(node.Right);
-                return _output.Append('}');
-            case BinaryOperator.Power:
-                Operand(node.Left, AtomLevel);
-                _output.Append("^{");
-                Write(node.Right);
-                return _output.Append('}');
-            default:
-                var (symbol, right) = node.Operator switch
-                {
-                    BinaryOperator.Add => (" + ", MultiplicativeLevel),
-                    BinaryOperator.Subtract => (" - ", MultiplicativeLevel),
-                    _ => (" \\cdot ", UnaryLevel),
-                };
-                Operand(node.Left, node.Operator == BinaryOperator.Multiply ? MultiplicativeLevel : AdditiveLevel);
-                _output.Append(symbol);
-                // "a - (-b)", not "a - -b"
-                Operand(node.Right, Level(node.Right) == UnaryLevel && node.Right is not BinaryExpr ? AtomLevel : right);
-                return _output;
-        }
+        // '^', the only binary operator.
+        Operand(node.Left, AtomLevel);
+        _output.Append("^{");
+        Write(node.Right);
+        return _output.Append('}');
     }
+
+    /// <summary>The right operand of '+', '-' or '\cdot': "a - (-b)", not "a - -b" (a fraction needs no parentheses).</summary>
+    private void Right(Expr e, int needed) => Operand(e, Level(e) == UnaryLevel && !IsFraction(e) ? AtomLevel : needed);
+
+    private static bool IsFraction(Expr e) => e is ProductExpr { Factors: var f } && f[^1].Divide;
 
     public StringBuilder VisitCall(CallExpr node)
     {
@@ -187,9 +211,8 @@ public sealed class LatexPrinter : IExprVisitor<StringBuilder>
 
     private static int Level(Expr e) => e switch
     {
-        BinaryExpr { Operator: BinaryOperator.Add or BinaryOperator.Subtract } => AdditiveLevel,
-        BinaryExpr { Operator: BinaryOperator.Multiply } => MultiplicativeLevel,
-        BinaryExpr { Operator: BinaryOperator.Divide } => UnaryLevel, // \frac{}{} needs no parentheses except as a base
+        SumExpr => AdditiveLevel,
+        ProductExpr { Factors: var f } => f[^1].Divide ? UnaryLevel : MultiplicativeLevel, // \frac{}{} needs no parentheses except as a base
         BinaryExpr => PowerLevel,
         UnaryExpr or IntegerLiteral { Value.Sign: < 0 } => UnaryLevel,
         BoundExpr => MultiplicativeLevel,

@@ -312,21 +312,33 @@ public static class SmtLibWriter
             return Map(node.Operand.Accept(this), Negate);
         }
 
+        public Value VisitSum(SumExpr node)
+        {
+            Visit();
+            var acc = node.Terms[0].Value.Accept(this);
+            for (var i = 1; i < node.Terms.Count; i++)
+                acc = AddValues(acc, node.Terms[i].Value.Accept(this), node.Terms[i].Subtract);
+            return acc;
+        }
+
+        public Value VisitProduct(ProductExpr node)
+        {
+            Visit();
+            var acc = node.Factors[0].Value.Accept(this);
+            for (var i = 1; i < node.Factors.Count; i++)
+            {
+                var r = node.Factors[i].Value.Accept(this);
+                if (!node.Factors[i].Divide) acc = MultiplyValues(acc, r);
+                else if (r.IsMatrix) throw new HandOffSkip($"it divides by a matrix ({r.Describe()})");
+                else acc = Map(acc, x => Divide(x, r.Scalar));
+            }
+            return acc;
+        }
+
         public Value VisitBinary(BinaryExpr node)
         {
             Visit();
-            if (node.Operator == BinaryOperator.Power) return PowerOf(node);
-            var l = node.Left.Accept(this);
-            var r = node.Right.Accept(this);
-            switch (node.Operator)
-            {
-                case BinaryOperator.Add: return AddValues(l, r, subtract: false);
-                case BinaryOperator.Subtract: return AddValues(l, r, subtract: true);
-                case BinaryOperator.Multiply: return MultiplyValues(l, r);
-                default:
-                    if (r.IsMatrix) throw new HandOffSkip($"it divides by a matrix ({r.Describe()})");
-                    return Map(l, x => Divide(x, r.Scalar));
-            }
+            return PowerOf(node);
         }
 
         private Value PowerOf(BinaryExpr node)

@@ -50,18 +50,28 @@ public static class CatalogueText
                 Write(u.Operand, text);
                 text.Append(')');
                 break;
+            case SumExpr sum:
+                text.Append('(');
+                for (var i = 0; i < sum.Terms.Count; i++)
+                {
+                    if (i > 0) text.Append(sum.Terms[i].Subtract ? " - " : " + ");
+                    Write(sum.Terms[i].Value, text);
+                }
+                text.Append(')');
+                break;
+            case ProductExpr product:
+                text.Append('(');
+                for (var i = 0; i < product.Factors.Count; i++)
+                {
+                    if (i > 0) text.Append(product.Factors[i].Divide ? '/' : '*');
+                    Write(product.Factors[i].Value, text);
+                }
+                text.Append(')');
+                break;
             case BinaryExpr b:
                 text.Append('(');
                 Write(b.Left, text);
-                text.Append(b.Operator switch
-                {
-                    BinaryOperator.Add => " + ",
-                    BinaryOperator.Subtract => " - ",
-                    BinaryOperator.Multiply => "*",
-                    BinaryOperator.Divide => "/",
-                    BinaryOperator.Power => "^",
-                    _ => throw new ReferenceException($"unknown operator {b.Operator}"),
-                });
+                text.Append('^');
                 Write(b.Right, text);
                 text.Append(')');
                 break;
@@ -123,10 +133,10 @@ public static class CatalogueText
     public static Expr Indexed(string name, params Expr[] indices) => new IndexedName(name, indices, At);
     public static Expr Indexed(string name, params int[] indices) => new IndexedName(name, indices.Select(i => Int(i)).ToArray(), At);
     public static Expr Neg(Expr a) => new UnaryExpr(UnaryOperator.Negate, a, At);
-    public static Expr Add(Expr a, Expr b) => new BinaryExpr(BinaryOperator.Add, a, b, At, At);
-    public static Expr Sub(Expr a, Expr b) => new BinaryExpr(BinaryOperator.Subtract, a, b, At, At);
-    public static Expr Mul(Expr a, Expr b) => new BinaryExpr(BinaryOperator.Multiply, a, b, At, At);
-    public static Expr Div(Expr a, Expr b) => new BinaryExpr(BinaryOperator.Divide, a, b, At, At);
+    public static Expr Add(Expr a, Expr b) => new SumExpr([new SumTerm(a, false, At), new SumTerm(b, false, At)], At);
+    public static Expr Sub(Expr a, Expr b) => new SumExpr([new SumTerm(a, false, At), new SumTerm(b, true, At)], At);
+    public static Expr Mul(Expr a, Expr b) => new ProductExpr([new ProductFactor(a, false, At), new ProductFactor(b, false, At)], At);
+    public static Expr Div(Expr a, Expr b) => new ProductExpr([new ProductFactor(a, false, At), new ProductFactor(b, true, At)], At);
     public static Expr Pow(Expr a, Expr b) => new BinaryExpr(BinaryOperator.Power, a, b, At, At);
     public static Expr Pow(Expr a, int e) => Pow(a, Int(e));
     public static Expr Call(string function, params Expr[] arguments) => new CallExpr(function, arguments, At);
@@ -148,32 +158,36 @@ public static class CatalogueText
     }
 
     /// <summary>
-    /// A polynomial as an expression: terms in graded order joined by + and −, each term <c>c*m</c> with the
-    /// coefficient an integer or <c>(p/q)</c> and the monomial a product of powers.
+    /// A polynomial as an expression: terms in graded order in one sum joined by + and −, each term one product
+    /// <c>c*m</c> with the coefficient an integer or <c>(p/q)</c> and the monomial a product of powers.
     /// </summary>
     public static Expr FromPolynomial(ReferencePolynomial polynomial)
     {
-        Expr? result = null;
+        var terms = new List<SumTerm>();
         foreach (var (m, c) in polynomial.Terms.OrderBy(t => t.Key, Comparer<Monomial>.Create(Monomial.CompareGraded)))
         {
             var magnitude = c.Sign < 0 ? -c : c;
             var term = Term(magnitude, m);
-            result = result is null ? (c.Sign < 0 ? Neg(term) : term) : c.Sign < 0 ? Sub(result, term) : Add(result, term);
+            terms.Add(terms.Count == 0 ? new SumTerm(c.Sign < 0 ? Neg(term) : term, false, At) : new SumTerm(term, c.Sign < 0, At));
         }
-        return result ?? Int(0);
+        return terms.Count switch
+        {
+            0 => Int(0),
+            1 => terms[0].Value,
+            _ => new SumExpr(terms.ToArray(), At),
+        };
     }
 
     private static Expr Term(Rational magnitude, Monomial m)
     {
-        Expr? monomial = null;
-        foreach (var (v, e) in m.Powers)
+        var factors = new List<ProductFactor>();
+        if (magnitude != Rational.One || m.Powers.Count == 0)
         {
-            var factor = e == 1 ? Variable(v) : Pow(Variable(v), e);
-            monomial = monomial is null ? factor : Mul(monomial, factor);
+            Expr coefficient = magnitude.IsInteger ? Int(magnitude.Numerator) : Div(Int(magnitude.Numerator), Int(magnitude.Denominator));
+            factors.Add(new ProductFactor(coefficient, false, At));
         }
-        Expr coefficient = magnitude.IsInteger ? Int(magnitude.Numerator) : Div(Int(magnitude.Numerator), Int(magnitude.Denominator));
-        if (monomial is null) return coefficient;
-        return magnitude == Rational.One ? monomial : Mul(coefficient, monomial);
+        foreach (var (v, e) in m.Powers) factors.Add(new ProductFactor(e == 1 ? Variable(v) : Pow(Variable(v), e), false, At));
+        return factors.Count == 1 ? factors[0].Value : new ProductExpr(factors.ToArray(), At);
     }
 
     /// <summary>
@@ -189,6 +203,8 @@ public static class CatalogueText
             IntegerLiteral => e,
             IndexedName x => new IndexedName(x.Name, x.Indices.Select(S).ToArray(), x.At),
             UnaryExpr u => u with { Operand = S(u.Operand) },
+            SumExpr sum => sum with { Terms = sum.Terms.Select(t => t with { Value = S(t.Value) }).ToArray() },
+            ProductExpr product => product with { Factors = product.Factors.Select(f => f with { Value = S(f.Value) }).ToArray() },
             BinaryExpr b => b with { Left = S(b.Left), Right = S(b.Right) },
             CallExpr c => new CallExpr(c.Function, c.Arguments.Select(S).ToArray(), c.At),
             BoundExpr s => s with { From = S(s.From), To = S(s.To), Body = s.Variable == name ? s.Body : S(s.Body) },

@@ -57,27 +57,39 @@ public static class ParameterEvaluator
 
         public BigInteger VisitUnary(UnaryExpr node) => -node.Operand.Accept(this);
 
+        public BigInteger VisitSum(SumExpr node)
+        {
+            var acc = node.Terms[0].Value.Accept(this);
+            foreach (var term in node.Terms.Skip(1)) acc = term.Subtract ? acc - term.Value.Accept(this) : acc + term.Value.Accept(this);
+            return acc;
+        }
+
+        public BigInteger VisitProduct(ProductExpr node)
+        {
+            var acc = node.Factors[0].Value.Accept(this);
+            foreach (var factor in node.Factors.Skip(1))
+            {
+                var b = factor.Value.Accept(this);
+                if (!factor.Divide)
+                {
+                    acc *= b;
+                    continue;
+                }
+                if (b.IsZero) throw new ReferenceException($"division by zero in an integer parameter expression at {factor.OperatorPosition}");
+                var q = BigInteger.DivRem(acc, b, out var r);
+                if (!r.IsZero) throw new ReferenceException($"{acc}/{b} at {factor.OperatorPosition} is not an integer");
+                acc = q;
+            }
+            return acc;
+        }
+
         public BigInteger VisitBinary(BinaryExpr node)
         {
             var a = node.Left.Accept(this);
             var b = node.Right.Accept(this);
-            switch (node.Operator)
-            {
-                case BinaryOperator.Add: return a + b;
-                case BinaryOperator.Subtract: return a - b;
-                case BinaryOperator.Multiply: return a * b;
-                case BinaryOperator.Divide:
-                    if (b.IsZero) throw new ReferenceException($"division by zero in an integer parameter expression at {node.OperatorPosition}");
-                    var q = BigInteger.DivRem(a, b, out var r);
-                    if (!r.IsZero) throw new ReferenceException($"{a}/{b} at {node.OperatorPosition} is not an integer");
-                    return q;
-                case BinaryOperator.Power:
-                    if (b.Sign < 0) throw new ReferenceException($"negative exponent {b} in an integer parameter expression at {node.OperatorPosition}");
-                    if (b > ReferenceLimits.MaxExponent) throw new ReferenceException($"exponent {b} is beyond the reference limit {ReferenceLimits.MaxExponent}");
-                    return BigInteger.Pow(a, (int)b);
-                default:
-                    throw new ReferenceException($"unknown operator {node.Operator}");
-            }
+            if (b.Sign < 0) throw new ReferenceException($"negative exponent {b} in an integer parameter expression at {node.OperatorPosition}");
+            if (b > ReferenceLimits.MaxExponent) throw new ReferenceException($"exponent {b} is beyond the reference limit {ReferenceLimits.MaxExponent}");
+            return BigInteger.Pow(a, (int)b);
         }
 
         public BigInteger VisitCall(CallExpr node)

@@ -115,8 +115,9 @@ public sealed class PolynomialExpander : IExprVisitor<ReferencePolynomial>
         MatrixLiteral or MatrixComprehension => true,
         CallExpr c => c.Function is Builtins.Transpose or Builtins.Identity,
         UnaryExpr u => IsMatrixValued(u.Operand),
-        BinaryExpr { Operator: BinaryOperator.Power or BinaryOperator.Divide } b => IsMatrixValued(b.Left),
-        BinaryExpr b => IsMatrixValued(b.Left) || IsMatrixValued(b.Right),
+        BinaryExpr b => IsMatrixValued(b.Left),
+        SumExpr s => s.Terms.Any(t => IsMatrixValued(t.Value)),
+        ProductExpr p => p.Factors.Any(f => !f.Divide && IsMatrixValued(f.Value)),
         BoundExpr s => IsMatrixValued(s.Body),
         _ => false,
     };
@@ -136,24 +137,37 @@ public sealed class PolynomialExpander : IExprVisitor<ReferencePolynomial>
 
     public ReferencePolynomial VisitUnary(UnaryExpr node) => Scalar(node.Operand).Negate();
 
+    public ReferencePolynomial VisitSum(SumExpr node)
+    {
+        if (IsMatrixValued(node)) throw new ReferenceException($"the sum at {node.Position} is matrix-valued where a scalar is needed");
+        var result = Scalar(node.Terms[0].Value);
+        foreach (var term in node.Terms.Skip(1)) result = term.Subtract ? result - Scalar(term.Value) : result + Scalar(term.Value);
+        return result;
+    }
+
+    public ReferencePolynomial VisitProduct(ProductExpr node)
+    {
+        if (IsMatrixValued(node)) throw new ReferenceException($"the product at {node.Position} is matrix-valued where a scalar is needed");
+        var result = Scalar(node.Factors[0].Value);
+        foreach (var factor in node.Factors.Skip(1))
+        {
+            if (!factor.Divide)
+            {
+                result *= Scalar(factor.Value);
+                continue;
+            }
+            if (!Scalar(factor.Value).TryGetConstant(out var divisor))
+                throw new ReferenceException($"the reference expander handles division by constants only (the divisor at {factor.OperatorPosition} is not constant); it is meant for polynomial expressions");
+            if (divisor.IsZero) throw new ReferenceException($"division by zero at {factor.OperatorPosition}");
+            result = result.Scale(Rational.One / divisor);
+        }
+        return result;
+    }
+
     public ReferencePolynomial VisitBinary(BinaryExpr node)
     {
         if (IsMatrixValued(node)) throw new ReferenceException($"the operation at {node.OperatorPosition} is matrix-valued where a scalar is needed");
-        switch (node.Operator)
-        {
-            case BinaryOperator.Add: return Scalar(node.Left) + Scalar(node.Right);
-            case BinaryOperator.Subtract: return Scalar(node.Left) - Scalar(node.Right);
-            case BinaryOperator.Multiply: return Scalar(node.Left) * Scalar(node.Right);
-            case BinaryOperator.Power: return Scalar(node.Left).Pow(Exponent(node.Right));
-            case BinaryOperator.Divide:
-                var numerator = Scalar(node.Left);
-                if (!Scalar(node.Right).TryGetConstant(out var divisor))
-                    throw new ReferenceException($"the reference expander handles division by constants only (the divisor at {node.OperatorPosition} is not constant); it is meant for polynomial expressions");
-                if (divisor.IsZero) throw new ReferenceException($"division by zero at {node.OperatorPosition}");
-                return numerator.Scale(Rational.One / divisor);
-            default:
-                throw new ReferenceException($"unknown operator {node.Operator}");
-        }
+        return Scalar(node.Left).Pow(Exponent(node.Right));
     }
 
     public ReferencePolynomial VisitCall(CallExpr node)
@@ -295,30 +309,30 @@ public sealed class PolynomialExpander : IExprVisitor<ReferencePolynomial>
 
         public ReferenceMatrix VisitUnary(UnaryExpr node) => owner.ExpandMatrix(node.Operand).Negate();
 
-        public ReferenceMatrix VisitBinary(BinaryExpr node)
+        public ReferenceMatrix VisitSum(SumExpr node)
         {
-            var leftMatrix = IsMatrixValued(node.Left);
-            var rightMatrix = IsMatrixValued(node.Right);
-            switch (node.Operator)
-            {
-                case BinaryOperator.Add or BinaryOperator.Subtract:
-                    if (!leftMatrix || !rightMatrix) throw new ReferenceException($"'{(node.Operator == BinaryOperator.Add ? "+" : "-")}' of a matrix and a scalar at {node.OperatorPosition}");
-                    return node.Operator == BinaryOperator.Add
-                        ? owner.ExpandMatrix(node.Left).Add(owner.ExpandMatrix(node.Right))
-                        : owner.ExpandMatrix(node.Left).Subtract(owner.ExpandMatrix(node.Right));
-                case BinaryOperator.Multiply:
-                    if (leftMatrix && rightMatrix) return owner.ExpandMatrix(node.Left).Multiply(owner.ExpandMatrix(node.Right));
-                    return leftMatrix
-                        ? owner.ExpandMatrix(node.Left).Scale(owner.Expand(node.Right))
-                        : owner.ExpandMatrix(node.Right).Scale(owner.Expand(node.Left));
-                case BinaryOperator.Power:
-                    return owner.ExpandMatrix(node.Left).Pow(owner.Exponent(node.Right));
-                case BinaryOperator.Divide:
-                    throw new ReferenceException($"a matrix cannot be divided (at {node.OperatorPosition})");
-                default:
-                    throw new ReferenceException($"unknown operator {node.Operator}");
-            }
+            if (!node.Terms.All(t => IsMatrixValued(t.Value))) throw new ReferenceException($"'+' or '-' of a matrix and a scalar in the sum at {node.Position}");
+            var result = owner.ExpandMatrix(node.Terms[0].Value);
+            foreach (var term in node.Terms.Skip(1))
+                result = term.Subtract ? result.Subtract(owner.ExpandMatrix(term.Value)) : result.Add(owner.ExpandMatrix(term.Value));
+            return result;
         }
+
+        public ReferenceMatrix VisitProduct(ProductExpr node)
+        {
+            // Left to right; the value so far is a matrix or a scalar.
+            ReferenceMatrix? matrix = null;
+            var scalar = ReferencePolynomial.One;
+            foreach (var factor in node.Factors)
+            {
+                if (factor.Divide) throw new ReferenceException($"a matrix cannot be divided (at {factor.OperatorPosition})");
+                if (!IsMatrixValued(factor.Value)) scalar *= owner.Expand(factor.Value);
+                else matrix = matrix is null ? owner.ExpandMatrix(factor.Value) : matrix.Multiply(owner.ExpandMatrix(factor.Value));
+            }
+            return matrix is null ? throw NotMatrix(node) : matrix.Scale(scalar);
+        }
+
+        public ReferenceMatrix VisitBinary(BinaryExpr node) => owner.ExpandMatrix(node.Left).Pow(owner.Exponent(node.Right));
 
         public ReferenceMatrix VisitCall(CallExpr node)
         {

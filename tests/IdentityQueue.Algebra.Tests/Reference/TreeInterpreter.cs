@@ -124,49 +124,54 @@ public sealed class TreeInterpreter<TField, T> : IExprVisitor<FieldValue<T>>
 
     public FieldValue<T> VisitUnary(UnaryExpr node) => Map(node.Operand.Accept(this), _field.Negate);
 
+    public FieldValue<T> VisitSum(SumExpr node)
+    {
+        var acc = node.Terms[0].Value.Accept(this);
+        foreach (var term in node.Terms.Skip(1))
+            acc = term.Subtract ? Combine(acc, term.Value.Accept(this), "-", _field.Subtract) : Combine(acc, term.Value.Accept(this), "+", _field.Add);
+        return acc;
+    }
+
+    public FieldValue<T> VisitProduct(ProductExpr node)
+    {
+        var a = node.Factors[0].Value.Accept(this);
+        foreach (var factor in node.Factors.Skip(1))
+        {
+            var b = factor.Value.Accept(this);
+            if (factor.Divide)
+            {
+                if (a.IsMatrix || b.IsMatrix) throw new ReferenceException($"'/' on a matrix at {factor.OperatorPosition}");
+                if (!_field.TryInvert(b.Scalar, out var inverse)) throw new UndefinedException($"division by zero at {factor.OperatorPosition}");
+                a = Scalar(_field.Multiply(a.Scalar, inverse));
+            }
+            else if (!a.IsMatrix && !b.IsMatrix) a = Scalar(_field.Multiply(a.Scalar, b.Scalar));
+            else if (!a.IsMatrix)
+            {
+                var s = a.Scalar;
+                a = Map(b, x => _field.Multiply(s, x));
+            }
+            else if (!b.IsMatrix) a = Map(a, x => _field.Multiply(x, b.Scalar));
+            else a = FieldValue<T>.FromMatrix(MatrixProduct(a.Matrix, b.Matrix));
+        }
+        return a;
+    }
+
     public FieldValue<T> VisitBinary(BinaryExpr node)
     {
-        switch (node.Operator)
+        var baseValue = node.Left.Accept(this);
+        var e = ParameterEvaluator.Evaluate(node.Right, _environment);
+        if (e.Sign < 0) throw new ReferenceException($"negative exponent {e} at {node.OperatorPosition}");
+        if (!baseValue.IsMatrix) return Scalar(Power(baseValue.Scalar, e));
+        var m = RequireSquare(baseValue, "a matrix power");
+        var result = IdentityMatrix(m.GetLength(0));
+        var square = m;
+        while (!e.IsZero)
         {
-            case BinaryOperator.Add: return Combine(node.Left.Accept(this), node.Right.Accept(this), "+", _field.Add);
-            case BinaryOperator.Subtract: return Combine(node.Left.Accept(this), node.Right.Accept(this), "-", _field.Subtract);
-            case BinaryOperator.Multiply:
-            {
-                var a = node.Left.Accept(this);
-                var b = node.Right.Accept(this);
-                if (!a.IsMatrix && !b.IsMatrix) return Scalar(_field.Multiply(a.Scalar, b.Scalar));
-                if (!a.IsMatrix) return Map(b, x => _field.Multiply(a.Scalar, x));
-                if (!b.IsMatrix) return Map(a, x => _field.Multiply(x, b.Scalar));
-                return FieldValue<T>.FromMatrix(MatrixProduct(a.Matrix, b.Matrix));
-            }
-            case BinaryOperator.Divide:
-            {
-                var a = node.Left.Accept(this);
-                var b = node.Right.Accept(this);
-                if (a.IsMatrix || b.IsMatrix) throw new ReferenceException($"'/' on a matrix at {node.OperatorPosition}");
-                if (!_field.TryInvert(b.Scalar, out var inverse)) throw new UndefinedException($"division by zero at {node.OperatorPosition}");
-                return Scalar(_field.Multiply(a.Scalar, inverse));
-            }
-            case BinaryOperator.Power:
-            {
-                var baseValue = node.Left.Accept(this);
-                var e = ParameterEvaluator.Evaluate(node.Right, _environment);
-                if (e.Sign < 0) throw new ReferenceException($"negative exponent {e} at {node.OperatorPosition}");
-                if (!baseValue.IsMatrix) return Scalar(Power(baseValue.Scalar, e));
-                var m = RequireSquare(baseValue, "a matrix power");
-                var result = IdentityMatrix(m.GetLength(0));
-                var square = m;
-                while (!e.IsZero)
-                {
-                    if (!e.IsEven) result = MatrixProduct(result, square);
-                    e >>= 1;
-                    if (!e.IsZero) square = MatrixProduct(square, square);
-                }
-                return FieldValue<T>.FromMatrix(result);
-            }
-            default:
-                throw new ReferenceException($"unknown operator {node.Operator}");
+            if (!e.IsEven) result = MatrixProduct(result, square);
+            e >>= 1;
+            if (!e.IsZero) square = MatrixProduct(square, square);
         }
+        return FieldValue<T>.FromMatrix(result);
     }
 
     public FieldValue<T> VisitCall(CallExpr node)

@@ -31,8 +31,7 @@ public class CatalogueParserLimitsTests
         { "indices", string.Concat(Enumerable.Repeat("x[", Deep)) + "1" + new string(']', Deep) + " = x" },
         { "calls", string.Concat(Enumerable.Repeat("fact(", Deep)) + "1" + new string(')', Deep) + " = x" },
         { "sums", string.Concat(Enumerable.Repeat("sum(k in 1..2: ", Deep)) + "k" + new string(')', Deep) + " = x" },
-        { "left-associative chain", "x" + string.Concat(Enumerable.Repeat("+x", Deep)) + " = x" },
-        { "product chain", "x" + string.Concat(Enumerable.Repeat("*x", Deep)) + " = x" },
+        { "chain inside parentheses", new string('(', Deep) + "x+x*x" + new string(')', Deep) + " = x" },
         { "right side", "x = " + new string('(', Deep) + "x" + new string(')', Deep) },
         { "range end", "x = x for n in 1.." + new string('-', Deep) + "1" },
     };
@@ -65,15 +64,28 @@ public class CatalogueParserLimitsTests
     }
 
     [Fact]
-    public void ChainOfMaxNestingDepthOperatorsParsesAndOneMoreDoesNot()
+    public void FlatChainOfAHundredThousandOperatorsIsOneNodeOfOneLevel()
     {
-        var depth = Limits.Default.MaxNestingDepth;
-        var ok = CatalogueParser.ParseExpression("x" + string.Concat(Enumerable.Repeat("+x", depth)));
-        Assert.True(ok.Success, ok.Error?.ToString());
+        // Issue #18: a flat sum is not deep nesting. Mixed '+'/'-' terms that are mixed '*'/'/' products.
+        var text = "x" + string.Concat(Enumerable.Range(0, Deep).Select(i => i % 2 == 0 ? "+x*y/2" : "-y"));
+        var result = CatalogueParser.ParseExpression(text, Limits.Default with { MaxLineLength = 1 << 24, MaxNestingDepth = 2 });
+        Assert.True(result.Success, result.Error?.ToString());
+        var sum = Assert.IsType<SumExpr>(result.Value);
+        Assert.Equal(Deep + 1, sum.Terms.Count);
+        Assert.True(sum.Terms[2].Subtract);
+        Assert.False(sum.Terms[1].Subtract);
+        var product = Assert.IsType<ProductExpr>(sum.Terms[1].Value);
+        Assert.Equal([false, false, true], product.Factors.Select(f => f.Divide));
+        Assert.Equal(new SourcePosition(1, 2), sum.Terms[1].OperatorPosition);
+    }
 
-        var error = CatalogueParser.ParseExpression("x" + string.Concat(Enumerable.Repeat("+x", depth + 1))).Error!;
-        Assert.Contains("a chain of operators counts one level per operator", error.Message);
-        Assert.Equal(new SourcePosition(1, 2 * depth + 2), error.Position);
+    [Fact]
+    public void ChainCountsOneLevelAndANestedChainOneMore()
+    {
+        var limits = Limits.Default with { MaxNestingDepth = 2 };
+        Assert.True(CatalogueParser.ParseExpression("a + b*c - d/e", limits).Success);
+        var error = CatalogueParser.ParseExpression("a + b*(c - d*e)", limits).Error!;
+        Assert.Equal("expression nested deeper than MaxNestingDepth (2)", error.Message);
     }
 
     [Fact]

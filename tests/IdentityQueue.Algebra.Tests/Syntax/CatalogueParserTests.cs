@@ -138,8 +138,8 @@ public class CatalogueParserTests
     [Fact]
     public void BoundFormNodeRecordsKindAndPosition()
     {
-        var sum = Assert.IsType<BinaryExpr>(CatalogueParser.ParseExpression("1 + prod(i in 1..3: i)").Value);
-        var product = Assert.IsType<BoundExpr>(sum.Right);
+        var sum = Assert.IsType<SumExpr>(CatalogueParser.ParseExpression("1 + prod(i in 1..3: i)").Value);
+        var product = Assert.IsType<BoundExpr>(sum.Terms[1].Value);
         Assert.Equal(BoundKind.Product, product.Kind);
         Assert.Equal("i", product.Variable);
         Assert.Equal(new SourcePosition(1, 5), product.Position);
@@ -277,10 +277,10 @@ public class CatalogueParserTests
     [Theory]
     [InlineData("a+b*c", "(+ a (* b c))")]
     [InlineData("a*b+c", "(+ (* a b) c)")]
-    [InlineData("a-b-c", "(- (- a b) c)")]
-    [InlineData("a/b/c", "(/ (/ a b) c)")]
-    [InlineData("a/b*c", "(* (/ a b) c)")]
-    [InlineData("a-b+c", "(+ (- a b) c)")]
+    [InlineData("a-b-c", "(- a b c)")]
+    [InlineData("a/b/c", "(/ a b c)")]
+    [InlineData("a/b*c", "(/* a b c)")]
+    [InlineData("a-b+c", "(-+ a b c)")]
     [InlineData("a*b^c", "(* a (^ b c))")]
     [InlineData("-a*b", "(* (neg a) b)")]
     [InlineData("a*-b", "(* a (neg b))")]
@@ -308,12 +308,12 @@ public class CatalogueParserTests
     public void NodesRecordOneBasedPositions()
     {
         var entry = Entry("  a + b*c = -x", 4);
-        var sum = Assert.IsType<BinaryExpr>(entry.Left);
+        var sum = Assert.IsType<SumExpr>(entry.Left);
         Assert.Equal(new SourcePosition(4, 3), sum.Position);
-        Assert.Equal(new SourcePosition(4, 5), sum.OperatorPosition);
-        var product = Assert.IsType<BinaryExpr>(sum.Right);
+        Assert.Equal(new SourcePosition(4, 5), sum.Terms[1].OperatorPosition);
+        var product = Assert.IsType<ProductExpr>(sum.Terms[1].Value);
         Assert.Equal(new SourcePosition(4, 7), product.Position);
-        Assert.Equal(new SourcePosition(4, 8), product.OperatorPosition);
+        Assert.Equal(new SourcePosition(4, 8), product.Factors[1].OperatorPosition);
         Assert.Equal(new SourcePosition(4, 13), entry.Right.Position);
     }
 

@@ -81,7 +81,7 @@ public class ExprPrinterTests
         var at = new SourcePosition(1, 1);
         var power = new BinaryExpr(BinaryOperator.Power, new IntegerLiteral(-3, at), new IntegerLiteral(2, at), at, at);
         Assert.Equal("(-3)^2", ExprPrinter.Print(power));
-        var difference = new BinaryExpr(BinaryOperator.Subtract, new NameRef("x", at), new IntegerLiteral(-3, at), at, at);
+        var difference = new SumExpr([new SumTerm(new NameRef("x", at), false, at), new SumTerm(new IntegerLiteral(-3, at), true, at)], at);
         Assert.Equal("x - -3", ExprPrinter.Print(difference));
     }
 

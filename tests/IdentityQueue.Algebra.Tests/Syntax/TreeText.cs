@@ -21,18 +21,22 @@ internal sealed class TreeText : IExprVisitor<string>
 
     public string VisitUnary(UnaryExpr node) => $"(neg {node.Operand.Accept(this)})";
 
-    public string VisitBinary(BinaryExpr node)
+    /// <summary><c>(+ a b c)</c>, <c>(- a b c)</c> for a−b−c, and for mixed signs the operators in order: a−b+c is <c>(-+ a b c)</c>.</summary>
+    public string VisitSum(SumExpr node) =>
+        Chain(node.Terms.Skip(1).Select(t => t.Subtract ? '-' : '+'), node.Terms.Select(t => t.Value));
+
+    /// <summary><c>(* a b)</c>, <c>(/ a b c)</c> for a/b/c, <c>(/* a b c)</c> for a/b*c.</summary>
+    public string VisitProduct(ProductExpr node) =>
+        Chain(node.Factors.Skip(1).Select(f => f.Divide ? '/' : '*'), node.Factors.Select(f => f.Value));
+
+    private string Chain(IEnumerable<char> operators, IEnumerable<Expr> operands)
     {
-        var op = node.Operator switch
-        {
-            BinaryOperator.Add => "+",
-            BinaryOperator.Subtract => "-",
-            BinaryOperator.Multiply => "*",
-            BinaryOperator.Divide => "/",
-            _ => "^",
-        };
-        return $"({op} {node.Left.Accept(this)} {node.Right.Accept(this)})";
+        var ops = string.Concat(operators);
+        var head = ops.Distinct().Count() == 1 ? ops[..1] : ops;
+        return $"({head} {Join(operands)})";
     }
+
+    public string VisitBinary(BinaryExpr node) => $"(^ {node.Left.Accept(this)} {node.Right.Accept(this)})";
 
     public string VisitCall(CallExpr node) => $"({node.Function} {Join(node.Arguments)})";
 

@@ -32,8 +32,22 @@ public sealed class LatexPrinterTests
     [InlineData("tr(transpose(M) * M)", @"\operatorname{tr}\left(M^{\mathsf{T}} \cdot M\right)")]
     [InlineData("det(matrix(i in 1..n, j in 1..n: x[i]^(j - 1)))", @"\det \left(x_{i}^{j - 1}\right)_{1 \le i \le n,\; 1 \le j \le n}")]
     [InlineData("id(2)", @"I_{2}")]
+    [InlineData("a*b/c*d", @"\frac{a \cdot b}{c} \cdot d")]
+    [InlineData("a/b/c - d", @"\frac{\frac{a}{b}}{c} - d")]
+    [InlineData("(a + b)*c/d", @"\frac{\left(a + b\right) \cdot c}{d}")]
+    [InlineData("a - b + c - -d", @"a - b + c - \left(-d\right)")]
     [InlineData("alpha + α + x1", @"\mathit{alpha} + \alpha + x_{1}")]
     public void PrintsReadableMath(string expression, string expected) => Assert.Equal(expected, Latex(expression));
+
+    [Fact]
+    public void FlatSumOfFiftyThousandTermsIsWrittenInOneLoop()
+    {
+        // Issue #18: a chain is one n-ary node; a per-term recursion would exhaust the stack here.
+        var text = string.Join(" - ", Enumerable.Range(1, 50_000).Select(i => $"{i}*x^{i % 7}/y"));
+        var latex = Latex(text);
+        Assert.StartsWith(@"\frac{1 \cdot x^{1}}{y} - \frac{2 \cdot x^{2}}{y}", latex);
+        Assert.EndsWith(@"\frac{50000 \cdot x^{6}}{y}", latex);
+    }
 
     [Fact]
     public void Escape_QuotesTheSpecialCharacters()

@@ -59,6 +59,18 @@ public sealed class SmtLibWriterTests
     }
 
     [Fact]
+    public void FlatSumOfTenThousandTermsTranslatesAndAgrees()
+    {
+        // Issue #18: a long flat chain is one n-ary node, walked in a loop; (a_1 + … + a_n)·y = a_1·y + … + a_n·y.
+        var names = Enumerable.Range(1, 10_000).Select(i => $"a{i}").ToList();
+        var script = Script($"({string.Join(" + ", names)})*y = {string.Join(" + ", names.Select(a => $"{a}*y"))}");
+        Assert.Equal(10_001, script.Declared.Count);
+        Assert.True(AgreesAtRandomPoints(script, points: 2));
+        var wrong = Script($"({string.Join(" + ", names)})*y = {string.Join(" + ", names.Select(a => a == "a5000" ? "a5000" : $"{a}*y"))}");
+        Assert.False(AgreesAtRandomPoints(wrong, points: 2));
+    }
+
+    [Fact]
     public void Header_NamesTheCandidateItsEvidenceAndTheCaution()
     {
         var c = new HandOffCandidate(12, "vdm[n=3]", "vdm", "{\"n\":3}", "det(x)", "y", "Q", "survived", "3", -70.25, 5);
