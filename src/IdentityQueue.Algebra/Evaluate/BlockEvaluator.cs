@@ -68,6 +68,7 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
     private bool _oddCharacteristic;
     private readonly ulong[] _p62, _p62High, _q62;
     private readonly uint[] _p31, _q31;
+    private CancellationToken _cancellation; // of the evaluation running now
 
     /// <summary>An evaluator of <paramref name="program"/> over blocks of <paramref name="blockSize"/> points (1 to <see cref="BlockEvaluator.MaxBlockSize"/>).</summary>
     public BlockEvaluator(TField field, BlockProgram program, int blockSize = BlockEvaluator.DefaultBlockSize)
@@ -220,8 +221,13 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
     /// <paramref name="defined"/>[l] is false where a division by zero made lane l undefined (its outputs are then
     /// meaningless). Returns the number of defined lanes.
     /// </summary>
-    public int Evaluate(ReadOnlySpan<T> points, Span<T> outputs, Span<bool> defined)
+    /// <param name="cancellation">
+    /// Looked at before each matrix function and inside its kernel (a block's plain instructions take milliseconds even for
+    /// the largest programs allowed); a cancelled evaluation throws <see cref="OperationCanceledException"/>.
+    /// </param>
+    public int Evaluate(ReadOnlySpan<T> points, Span<T> outputs, Span<bool> defined, CancellationToken cancellation = default)
     {
+        _cancellation = cancellation;
         var source = _program.Program;
         var b = _b;
         if (points.Length < source.Variables.Length * b)
@@ -592,6 +598,7 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
     /// <summary>Inversion, powers and the matrix functions (the same code on every rung).</summary>
     private void RunOther(BlockInstruction ins)
     {
+        _cancellation.ThrowIfCancellationRequested();
         switch (ins.Op)
         {
             case BlockOpCode.Invert: Invert(ins); break;
@@ -677,8 +684,8 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
         {
             for (var k = 0; k < m.Length; k++) m[k] = r[slots[k] * b + l];
             d[l] = ins.Op == BlockOpCode.Determinant
-                ? MatrixKernels.Determinant(_fields[l], m, n)
-                : MatrixKernels.Pfaffian(_fields[l], m, n);
+                ? MatrixKernels.Determinant(_fields[l], m, n, _cancellation)
+                : MatrixKernels.Pfaffian(_fields[l], m, n, _cancellation);
         }
     }
 
@@ -726,6 +733,7 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
         var flipped = 0UL;
         for (var g = 1UL; g < steps; g++)
         {
+            if ((g & (MatrixKernels.CancellationInterval - 1)) == 0) _cancellation.ThrowIfCancellationRequested();
             var k = BitOperations.TrailingZeroCount(g);
             var back = (flipped >> k & 1) != 0;
             flipped ^= 1UL << k;

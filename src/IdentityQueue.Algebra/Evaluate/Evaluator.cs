@@ -11,6 +11,9 @@ namespace IdentityQueue.Algebra.Evaluate;
 /// </summary>
 public static class Evaluator
 {
+    /// <summary>Instructions between two looks at the cancellation token (a power of two; some microseconds of work).</summary>
+    public const int CancellationInterval = 4096;
+
     /// <summary>
     /// The program's constants as field elements, or false when a constant's denominator is 0 in the field
     /// (then every point is undefined in this field).
@@ -39,14 +42,19 @@ public static class Evaluator
     /// Evaluates every register at <paramref name="point"/> (indexed like <see cref="StraightLineProgram.Variables"/>);
     /// false when a division by zero made the point undefined. <paramref name="registers"/> needs <see cref="StraightLineProgram.Length"/> slots.
     /// </summary>
-    public static bool Evaluate<TField, T>(TField field, StraightLineProgram program, ReadOnlySpan<T> constants, ReadOnlySpan<T> point, Span<T> registers)
+    /// <param name="cancellation">
+    /// Looked at every <see cref="CancellationInterval"/> instructions and inside the matrix kernels; a cancelled evaluation
+    /// throws <see cref="OperationCanceledException"/>.
+    /// </param>
+    public static bool Evaluate<TField, T>(TField field, StraightLineProgram program, ReadOnlySpan<T> constants, ReadOnlySpan<T> point, Span<T> registers,
+        CancellationToken cancellation = default)
         where TField : struct, IField<T> where T : struct
     {
         var instructions = program.Instructions;
         T[]? scratch = null; // for matrix functions: rented, so that repeated evaluations do not allocate
         try
         {
-            return Run(field, program, constants, point, registers, instructions, ref scratch);
+            return Run(field, program, constants, point, registers, instructions, ref scratch, cancellation);
         }
         finally
         {
@@ -59,11 +67,12 @@ public static class Evaluator
         ArrayPool<T>.Shared.Return(scratch, clearArray: RuntimeHelpers.IsReferenceOrContainsReferences<T>());
 
     private static bool Run<TField, T>(TField field, StraightLineProgram program, ReadOnlySpan<T> constants, ReadOnlySpan<T> point,
-        Span<T> registers, Instruction[] instructions, ref T[]? scratch)
+        Span<T> registers, Instruction[] instructions, ref T[]? scratch, CancellationToken cancellation)
         where TField : struct, IField<T> where T : struct
     {
         for (var i = 0; i < instructions.Length; i++)
         {
+            if ((i & (CancellationInterval - 1)) == 0) cancellation.ThrowIfCancellationRequested();
             var ins = instructions[i];
             switch (ins.Op)
             {
@@ -91,9 +100,9 @@ public static class Evaluator
                     for (var k = 0; k < m.Length; k++) m[k] = registers[ops[k]];
                     registers[i] = ins.Op switch
                     {
-                        OpCode.Determinant => MatrixKernels.Determinant(field, m, n),
-                        OpCode.Permanent => MatrixKernels.Permanent(field, m, n),
-                        _ => MatrixKernels.Pfaffian(field, m, n),
+                        OpCode.Determinant => MatrixKernels.Determinant(field, m, n, cancellation),
+                        OpCode.Permanent => MatrixKernels.Permanent(field, m, n, cancellation),
+                        _ => MatrixKernels.Pfaffian(field, m, n, cancellation),
                     };
                     break;
                 }

@@ -22,6 +22,12 @@ public static partial class MatrixKernels
     /// <summary>From this order on, permanents in odd characteristic use Glynn's formula (half the terms of Ryser's).</summary>
     internal const int GlynnMinOrder = 4;
 
+    /// <summary>
+    /// Gray-code steps of a permanent between two looks at the cancellation token (each step costs about 3n field
+    /// operations, so a look every 1,024 steps is well under a millisecond apart and costs nothing measurable).
+    /// </summary>
+    internal const int CancellationInterval = 1024;
+
     /// <summary>Largest order a permanent accepts: the formulas visit 2^n (or 2^(n−1)) sign patterns.</summary>
     public const int MaxPermanentOrder = 62;
 
@@ -30,16 +36,17 @@ public static partial class MatrixKernels
     /// <paramref name="a"/>. The last <see cref="DivisionFreeOrder"/> columns are eliminated division-free. On the 62-bit
     /// Montgomery rung, larger matrices are eliminated by panels with delayed reduction (see <see cref="Determinant62"/>).
     /// </summary>
-    public static T Determinant<TField, T>(TField f, Span<T> a, int n)
+    /// <param name="cancellation">Looked at once per pivot column; a cancelled elimination throws <see cref="OperationCanceledException"/>.</param>
+    public static T Determinant<TField, T>(TField f, Span<T> a, int n, CancellationToken cancellation = default)
         where TField : struct, IField<T> where T : struct
     {
         CheckSquare(a.Length, n);
         if (typeof(TField) == typeof(PrimeField62) && typeof(T) == typeof(Residue62))
         {
             var field = (PrimeField62)(object)f;
-            return (T)(object)PrimeField62.FromMontgomery(Determinant62(field, MemoryMarshal.Cast<T, ulong>(a), n, avx512: true));
+            return (T)(object)PrimeField62.FromMontgomery(Determinant62(field, MemoryMarshal.Cast<T, ulong>(a), n, avx512: true, cancellation));
         }
-        return DeterminantByElimination(f, a, n, DivisionFreeOrder);
+        return DeterminantByElimination(f, a, n, DivisionFreeOrder, cancellation);
     }
 
     /// <summary>
@@ -47,7 +54,7 @@ public static partial class MatrixKernels
     /// remain, then division-free steps: row_i ← p·row_i − a_ik·row_k scales each remaining row by the pivot p, so the
     /// determinant picks up the factor Π_k p_k^(r_k) (r_k rows below pivot k), divided out once at the end.
     /// </summary>
-    internal static T DeterminantByElimination<TField, T>(TField f, Span<T> a, int n, int divisionFreeOrder)
+    internal static T DeterminantByElimination<TField, T>(TField f, Span<T> a, int n, int divisionFreeOrder, CancellationToken cancellation = default)
         where TField : struct, IField<T> where T : struct
     {
         var det = f.One;
@@ -55,6 +62,7 @@ public static partial class MatrixKernels
         var k = 0;
         for (; k < n - divisionFreeOrder; k++)
         {
+            cancellation.ThrowIfCancellationRequested();
             if (!Pivot(f, a, n, k, ref negative)) return f.Zero;
             var p = a[k * n + k];
             det = f.Multiply(det, p);
@@ -121,14 +129,15 @@ public static partial class MatrixKernels
     /// overwriting <paramref name="a"/>. While at most <see cref="DivisionFreeOrder"/> rows remain, the complement is formed
     /// times a (no inversion): pf(a·S) = a^(m/2) pf(S) for S of order m, divided out once at the end.
     /// </summary>
-    public static T Pfaffian<TField, T>(TField f, Span<T> a, int n)
+    /// <param name="cancellation">Looked at once per eliminated pair of rows.</param>
+    public static T Pfaffian<TField, T>(TField f, Span<T> a, int n, CancellationToken cancellation = default)
         where TField : struct, IField<T> where T : struct
     {
         CheckSquare(a.Length, n);
-        return Pfaffian(f, a, n, DivisionFreeOrder);
+        return Pfaffian(f, a, n, DivisionFreeOrder, cancellation);
     }
 
-    internal static T Pfaffian<TField, T>(TField f, Span<T> a, int n, int divisionFreeOrder)
+    internal static T Pfaffian<TField, T>(TField f, Span<T> a, int n, int divisionFreeOrder, CancellationToken cancellation = default)
         where TField : struct, IField<T> where T : struct
     {
         if (n % 2 == 1) return f.Zero;
@@ -137,6 +146,7 @@ public static partial class MatrixKernels
         var denominator = f.One;
         for (var k = 0; k < n; k += 2)
         {
+            cancellation.ThrowIfCancellationRequested();
             var pivot = k + 1;
             while (pivot < n && f.IsZero(a[k * n + pivot])) pivot++;
             if (pivot == n) return f.Zero;
@@ -205,16 +215,17 @@ public static partial class MatrixKernels
     /// column. No allocation for n ≤ 32 (larger orders are far beyond any time budget anyway). On the 62-bit rung with
     /// AVX-512, Glynn's sign patterns run 8 at a time in vector lanes (see <see cref="Glynn62Avx512"/>).
     /// </summary>
-    public static T Permanent<TField, T>(TField f, ReadOnlySpan<T> a, int n)
+    /// <param name="cancellation">Looked at every <see cref="CancellationInterval"/> Gray-code steps.</param>
+    public static T Permanent<TField, T>(TField f, ReadOnlySpan<T> a, int n, CancellationToken cancellation = default)
         where TField : struct, IField<T> where T : struct
     {
-        if (n > 32) return Permanent(f, a, n, new T[n]);
+        if (n > 32) return Permanent(f, a, n, new T[n], cancellation);
         var sums = new Sums<T>();
-        return Permanent(f, a, n, sums[..Math.Max(n, 0)]);
+        return Permanent(f, a, n, sums[..Math.Max(n, 0)], cancellation);
     }
 
     /// <summary>As <see cref="Permanent{TField, T}(TField, ReadOnlySpan{T}, int)"/>, with the caller's scratch of at least n elements.</summary>
-    public static T Permanent<TField, T>(TField f, ReadOnlySpan<T> a, int n, Span<T> scratch)
+    public static T Permanent<TField, T>(TField f, ReadOnlySpan<T> a, int n, Span<T> scratch, CancellationToken cancellation = default)
         where TField : struct, IField<T> where T : struct
     {
         CheckSquare(a.Length, n);
@@ -224,17 +235,17 @@ public static partial class MatrixKernels
         if (typeof(TField) == typeof(PrimeField62) && typeof(T) == typeof(Residue62) && n >= GlynnMinOrder && n <= 32
             && Avx512F.IsSupported && Avx512DQ.IsSupported)
         {
-            var raw = Glynn62Avx512((PrimeField62)(object)f, MemoryMarshal.Cast<T, ulong>(a), n);
+            var raw = Glynn62Avx512((PrimeField62)(object)f, MemoryMarshal.Cast<T, ulong>(a), n, cancellation);
             return (T)(object)PrimeField62.FromMontgomery(raw);
         }
-        return n >= GlynnMinOrder && f.Characteristic != 2 ? Glynn(f, a, n, scratch[..n]) : Ryser(f, a, n, scratch[..n]);
+        return n >= GlynnMinOrder && f.Characteristic != 2 ? Glynn(f, a, n, scratch[..n], cancellation) : Ryser(f, a, n, scratch[..n], cancellation);
     }
 
     /// <summary>
     /// Ryser: perm(A) = (−1)^n Σ_{S⊆[n]} (−1)^|S| Π_i Σ_{j∈S} a_ij. Along the Gray code the size of S changes by one per
     /// step, so its parity is the parity of the step and the terms go to two accumulators: perm = (−1)^n (even − odd).
     /// </summary>
-    internal static T Ryser<TField, T>(TField f, ReadOnlySpan<T> a, int n, Span<T> sums)
+    internal static T Ryser<TField, T>(TField f, ReadOnlySpan<T> a, int n, Span<T> sums, CancellationToken cancellation = default)
         where TField : struct, IField<T> where T : struct
     {
         sums.Fill(f.Zero);
@@ -243,6 +254,7 @@ public static partial class MatrixKernels
         var count = 1UL << n;
         for (var g = 1UL; g < count; g++)
         {
+            if ((g & (CancellationInterval - 1)) == 0) cancellation.ThrowIfCancellationRequested();
             var j = BitOperations.TrailingZeroCount(g);
             var leaving = (inSet >> j & 1) != 0;
             inSet ^= 1UL << j;
@@ -260,7 +272,7 @@ public static partial class MatrixKernels
     /// Each Gray-code step flips one δ_i, moving every column sum by ±2·a_ij, and flips the sign.
     /// Needs 2 to be invertible (odd characteristic).
     /// </summary>
-    internal static T Glynn<TField, T>(TField f, ReadOnlySpan<T> a, int n, Span<T> sums)
+    internal static T Glynn<TField, T>(TField f, ReadOnlySpan<T> a, int n, Span<T> sums, CancellationToken cancellation = default)
         where TField : struct, IField<T> where T : struct
     {
         for (var j = 0; j < n; j++) sums[j] = a[j];
@@ -272,6 +284,7 @@ public static partial class MatrixKernels
         var count = 1UL << (n - 1);
         for (var g = 1UL; g < count; g++)
         {
+            if ((g & (CancellationInterval - 1)) == 0) cancellation.ThrowIfCancellationRequested();
             var bit = BitOperations.TrailingZeroCount(g);
             var row = a.Slice((bit + 1) * n, n);
             if ((minus >> bit & 1) != 0)

@@ -26,10 +26,10 @@ public static partial class MatrixKernels
     /// <see cref="DivisionFreeOrder"/> columns go division-free as in the generic code. With <paramref name="avx512"/> (and a
     /// CPU that has AVX-512F/DQ) the updates right of each panel run 8 columns per vector; the scalar code gives the same results.
     /// </summary>
-    internal static ulong Determinant62(PrimeField62 f, Span<ulong> a, int n, bool avx512)
+    internal static ulong Determinant62(PrimeField62 f, Span<ulong> a, int n, bool avx512, CancellationToken cancellation = default)
     {
         var residues = MemoryMarshal.Cast<ulong, Residue62>(a);
-        if (n < PanelMinOrder62) return PrimeField62.ToMontgomery(DeterminantByElimination(f, residues, n, DivisionFreeOrder));
+        if (n < PanelMinOrder62) return PrimeField62.ToMontgomery(DeterminantByElimination(f, residues, n, DivisionFreeOrder, cancellation));
 
         unchecked
         {
@@ -45,6 +45,7 @@ public static partial class MatrixKernels
             {
                 for (var k0 = 0; k0 < head; k0 += Panel62)
                 {
+                    cancellation.ThrowIfCancellationRequested();
                     var kb = Math.Min(Panel62, head - k0);
                     var c1 = k0 + kb;
 
@@ -268,7 +269,7 @@ public static partial class MatrixKernels
     /// on every lane, so each step moves n vectors of column sums by a broadcast ∓2·a_ij and multiplies them lane by lane
     /// (in four chains). Lane k's terms carry the extra sign (−1)^popcount(k). Returns a Montgomery representative.
     /// </summary>
-    internal static ulong Glynn62Avx512(PrimeField62 f, ReadOnlySpan<ulong> a, int n)
+    internal static ulong Glynn62Avx512(PrimeField62 f, ReadOnlySpan<ulong> a, int n, CancellationToken cancellation = default)
     {
         unchecked
         {
@@ -303,6 +304,7 @@ public static partial class MatrixKernels
             var count = 1UL << (n - 4);
             for (var g = 1UL; g < count; g++)
             {
+                if ((g & (CancellationInterval - 1)) == 0) cancellation.ThrowIfCancellationRequested();
                 var bit = BitOperations.TrailingZeroCount(g);
                 var row = twice.Slice((bit + 1) * n, n);
                 if ((minus >> bit & 1) != 0)
