@@ -41,9 +41,6 @@ public sealed record Limits
     /// <summary>Most trials for one candidate (including resampled undefined points).</summary>
     public int MaxTrials { get; init; } = 200;
 
-    /// <summary>Wall-clock time allowed to one candidate's screening.</summary>
-    public TimeSpan TimePerCandidate { get; init; } = TimeSpan.FromSeconds(60);
-
     /// <summary>Largest estimated size, in bits, of an exact rational evaluation used to certify a refutation.</summary>
     public long MaxCertifyBits { get; init; } = 1 << 22;
 }

@@ -17,21 +17,31 @@ public static class BlockTrialRunner
     /// <summary>Whether trials of <paramref name="identity"/> on <paramref name="rung"/> run as a block (over Q, the 31- and 62-bit rungs).</summary>
     public static bool Handles(CompiledIdentity identity, Rung rung) => identity.Field.IsRationals && rung.PrimeBits is 31 or 62;
 
+    /// <summary>The lanes a block of <paramref name="lanes"/> trials on <paramref name="rung"/> computes: whole vectors (what it costs).</summary>
+    public static int PaddedLanes(Rung rung, int lanes)
+    {
+        var width = rung.PrimeBits == 31 ? BlockEvaluator.LanesPerInstruction<PrimeField31>() : BlockEvaluator.LanesPerInstruction<PrimeField62>();
+        return (lanes + width - 1) / width * width;
+    }
+
     /// <summary>The most trials one block runs on <paramref name="rung"/>.</summary>
     public static int MaxLanes(Rung rung) => rung.PrimeBits == 31 ? 16 : 8;
 
     /// <summary>Trials firstSeq, firstSeq + 1, … with the seeds <paramref name="seeds"/>, all on <paramref name="rung"/>.</summary>
-    public static TrialRecord[] Run(CompiledIdentity identity, BlockProgram program, Rung rung, int firstSeq, ReadOnlySpan<ulong> seeds)
+    /// <param name="cancellation">Observed inside the block's kernels; a cancelled block throws <see cref="OperationCanceledException"/> and records nothing.</param>
+    public static TrialRecord[] Run(CompiledIdentity identity, BlockProgram program, Rung rung, int firstSeq, ReadOnlySpan<ulong> seeds,
+        CancellationToken cancellation = default)
     {
         if (!Handles(identity, rung)) throw new ArgumentException($"trials on the {rung} rung of a candidate over {identity.Field} do not run as a block", nameof(rung));
         return rung.PrimeBits == 31
-            ? Run<PrimeField31, Residue31>(identity, program, firstSeq, seeds, static (ref Xoshiro256 r) => PrimeField31.CreateRandom(ref r))
-            : Run<PrimeField62, Residue62>(identity, program, firstSeq, seeds, static (ref Xoshiro256 r) => PrimeField62.CreateRandom(ref r));
+            ? Run<PrimeField31, Residue31>(identity, program, firstSeq, seeds, static (ref Xoshiro256 r) => PrimeField31.CreateRandom(ref r), cancellation)
+            : Run<PrimeField62, Residue62>(identity, program, firstSeq, seeds, static (ref Xoshiro256 r) => PrimeField62.CreateRandom(ref r), cancellation);
     }
 
     private delegate TField FieldDraw<TField>(ref Xoshiro256 random);
 
-    private static TrialRecord[] Run<TField, T>(CompiledIdentity identity, BlockProgram program, int firstSeq, ReadOnlySpan<ulong> seeds, FieldDraw<TField> draw)
+    private static TrialRecord[] Run<TField, T>(CompiledIdentity identity, BlockProgram program, int firstSeq, ReadOnlySpan<ulong> seeds, FieldDraw<TField> draw,
+        CancellationToken cancellation)
         where TField : struct, IField<T> where T : struct
     {
         var clock = Stopwatch.StartNew();
@@ -57,7 +67,7 @@ public static class BlockTrialRunner
         var evaluator = new BlockEvaluator<TField, T>(fields, program);
         var outputs = new T[source.Outputs.Length * b];
         var defined = new bool[b];
-        evaluator.Evaluate(points, outputs, defined);
+        evaluator.Evaluate(points, outputs, defined, cancellation);
         var elapsed = (long)(clock.Elapsed.TotalMicroseconds / count);
 
         var records = new TrialRecord[count];

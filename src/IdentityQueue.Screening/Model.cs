@@ -76,6 +76,15 @@ public sealed record ScreeningOptions
 
     public Algebra.Limits Limits { get; init; } = Algebra.Limits.Default;
 
+    /// <summary>The time one candidate's screening may take (<c>TimePerCandidate</c>).</summary>
+    public TimeBudget Budget { get; init; } = TimeBudget.Default;
+
+    /// <summary>The clock the budget is measured with (tests inject their own).</summary>
+    public TimeProvider Clock { get; init; } = TimeProvider.System;
+
+    /// <summary>How long a trial takes on each rung, estimated before it runs.</summary>
+    public CostModel Costs { get; init; } = CostModel.Calibrated;
+
     /// <summary>
     /// Stop with <see cref="Verdict.Pending"/> after this many new stages (a stage: the trials on one rung, run together,
     /// that gave at least one zero trial); null: go on to a final state. A two-pass batch uses 1 in its first pass, so every

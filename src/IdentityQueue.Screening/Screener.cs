@@ -1,4 +1,3 @@
-using System.Diagnostics;
 using IdentityQueue.Algebra.Compile;
 using IdentityQueue.Algebra.Evaluate;
 using IdentityQueue.Algebra.Fields;
@@ -17,7 +16,14 @@ public static class Screener
     public static ulong TrialSeed(ulong runSeed, ulong candidateKey, int seq) =>
         Xoshiro256.Mix(Xoshiro256.Mix(runSeed, candidateKey), (ulong)seq);
 
-    /// <summary>Screens one compiled candidate, continuing after <paramref name="priorTrials"/> (empty for a fresh candidate).</summary>
+    /// <summary>
+    /// Screens one compiled candidate, continuing after <paramref name="priorTrials"/> (empty for a fresh candidate), within
+    /// <see cref="ScreeningOptions.Budget"/>: a trial (or block of trials) whose estimated time does not fit what is left of
+    /// the budget is not started, and one running when the budget runs out is cancelled inside its kernels; either way the
+    /// candidate is undecided with the trials done kept as evidence. When <paramref name="cancellation"/> fires (the
+    /// process is stopping) the running trial is cancelled and the result is <see cref="Verdict.Pending"/> with the trials
+    /// finished so far, so that the candidate can be returned to pending with them.
+    /// </summary>
     public static ScreenResult Screen(CompiledIdentity identity, ScreeningOptions options, ulong candidateKey,
         IReadOnlyList<TrialRecord>? priorTrials = null, CancellationToken cancellation = default)
     {
@@ -31,12 +37,19 @@ public static class Screener
         var climbed = new HashSet<int>(); // the rungs with a zero trial: the ladder's position
         foreach (var t in trials)
         {
-            if (t.Outcome == TrialOutcome.Nonzero) return Refuted(identity, options, trials, t);
+            if (t.Outcome == TrialOutcome.Nonzero) return Refuted(identity, options, trials, t, cancellation);
             if (t.Outcome == TrialOutcome.Zero) { accumulated += t.BoundLog2 ?? 0; consecutiveUndefined = 0; climbed.Add(FieldLadder.RungOf(identity, t.Field)); }
             else consecutiveUndefined++;
         }
         var rungs = FieldLadder.Rungs(identity.Field, options.Limits.MaxFieldBits);
-        var clock = Stopwatch.StartNew();
+        var budget = options.Budget.PerCandidate;
+        var started = options.Clock.GetTimestamp();
+        var cost = TrialCost.Of(identity.Program, OddCharacteristic(identity));
+        // A timer cancels a trial that is still running when the budget runs out; a cheap program's trials end long before
+        // that, so the budget is looked at between its trials only, and its screen pays for no timer.
+        using var timeUp = cost.FieldOperations < CostModel.CheapOperations ? null : new CancellationTokenSource(budget, options.Clock);
+        using var linked = timeUp is null ? null : CancellationTokenSource.CreateLinkedTokenSource(cancellation, timeUp.Token);
+        var token = linked?.Token ?? cancellation;
         var seq = trials.Count == 0 ? 1 : trials[^1].Seq + 1;
         var newStages = 0; // blocks of trials on one rung that gave at least one zero trial
         BlockProgram? block = null; // prepared once, shared by every block of trials of this candidate
@@ -50,18 +63,37 @@ public static class Screener
                     $"the degree bound {bounds.Degree} is too large: a trial in the largest field allowed (MaxFieldBits = {options.Limits.MaxFieldBits}) buys only {FieldLadder.BestBits(identity, rungs):F1} bits, fewer than {options.MinBitsPerTrial}");
             if (trials.Count >= options.Limits.MaxTrials)
                 return Undecided(identity, trials, accumulated, $"the trial budget (MaxTrials = {options.Limits.MaxTrials}) ran out at 2^{accumulated:F1} of the target 2^-{options.TargetBits}");
-            if (clock.Elapsed > options.Limits.TimePerCandidate || cancellation.IsCancellationRequested)
-                return Undecided(identity, trials, accumulated, $"the time budget (TimePerCandidate = {options.Limits.TimePerCandidate.TotalSeconds:F0} s) ran out at 2^{accumulated:F1} of the target 2^-{options.TargetBits}");
+            if (cancellation.IsCancellationRequested) return Stopped(identity, trials, accumulated);
+            var left = budget - options.Clock.GetElapsedTime(started);
+            if (left <= TimeSpan.Zero)
+                return Undecided(identity, trials, accumulated, $"the time budget (TimePerCandidate = {options.Budget}) ran out at 2^{accumulated:F1} of the target 2^-{options.TargetBits}");
+            var blocked = BlockTrialRunner.Handles(identity, rung);
+            var perTrial = options.Costs.TrialTime(identity, rung, cost);
+            var oneTrial = blocked ? perTrial * BlockTrialRunner.PaddedLanes(rung, 1) : perTrial;
+            if (oneTrial > left)
+                return Undecided(identity, trials, accumulated, TooCostly(cost, oneTrial, rung, options.Budget, left, trials.Count));
             TrialRecord[] stage;
-            if (BlockTrialRunner.Handles(identity, rung))
+            try
             {
-                var lanes = StageLanes(identity, rung, options, accumulated, trials.Count);
-                var seeds = new ulong[lanes];
-                for (var l = 0; l < lanes; l++) seeds[l] = TrialSeed(options.Seed, candidateKey, seq + l);
-                block ??= BlockProgram.Prepare(identity.Program);
-                stage = BlockTrialRunner.Run(identity, block, rung, seq, seeds);
+                if (blocked)
+                {
+                    var lanes = StageLanes(identity, rung, options, accumulated, trials.Count);
+                    // A block costs its padded lanes: fewer lanes when all of them would not fit what is left.
+                    while (lanes > 1 && perTrial * BlockTrialRunner.PaddedLanes(rung, lanes) > left) lanes--;
+                    var seeds = new ulong[lanes];
+                    for (var l = 0; l < lanes; l++) seeds[l] = TrialSeed(options.Seed, candidateKey, seq + l);
+                    block ??= BlockProgram.Prepare(identity.Program);
+                    stage = BlockTrialRunner.Run(identity, block, rung, seq, seeds, token);
+                }
+                else stage = [TrialRunner.Run(identity, rung, seq, TrialSeed(options.Seed, candidateKey, seq), token)];
             }
-            else stage = [TrialRunner.Run(identity, rung, seq, TrialSeed(options.Seed, candidateKey, seq))];
+            catch (OperationCanceledException) when (token.IsCancellationRequested)
+            {
+                if (cancellation.IsCancellationRequested) return Stopped(identity, trials, accumulated);
+                return Undecided(identity, trials, accumulated,
+                    $"the time budget (TimePerCandidate = {options.Budget}) ran out during a trial on the {rung} rung (estimated at {Seconds(oneTrial)}) " +
+                    $"at 2^{accumulated:F1} of the target 2^-{options.TargetBits}; the {trials.Count} trials done are kept");
+            }
             var stageZero = false;
             foreach (var trial in stage)
             {
@@ -70,7 +102,7 @@ public static class Screener
                 switch (trial.Outcome)
                 {
                     case TrialOutcome.Nonzero:
-                        return Refuted(identity, options, trials, trial);
+                        return Refuted(identity, options, trials, trial, token);
                     case TrialOutcome.Undefined:
                         if (++consecutiveUndefined >= options.MaxConsecutiveUndefined)
                             return Undecided(identity, trials, accumulated,
@@ -89,6 +121,42 @@ public static class Screener
         }
         return new ScreenResult(Verdict.Survived, bounds.Degree, bounds.HeightLog2, accumulated, trials, null, false, null);
     }
+
+    /// <summary>
+    /// The estimate of the candidate's first trial, before any runs: its cost in field operations, the rung it would run on
+    /// (null when no rung buys enough evidence) and its time there (a whole block on the 31- and 62-bit rungs over Q).
+    /// </summary>
+    public static TrialEstimate Estimate(CompiledIdentity identity, ScreeningOptions options)
+    {
+        var cost = TrialCost.Of(identity.Program, OddCharacteristic(identity));
+        var rung = FieldLadder.Choose(identity, FieldLadder.Rungs(identity.Field, options.Limits.MaxFieldBits), 0, options.MinBitsPerTrial);
+        if (rung is null) return new TrialEstimate(cost, null, TimeSpan.Zero, null);
+        var perTrial = options.Costs.TrialTime(identity, rung, cost);
+        var oneTrial = BlockTrialRunner.Handles(identity, rung) ? perTrial * BlockTrialRunner.PaddedLanes(rung, 1) : perTrial;
+        var message = oneTrial > options.Budget.PerCandidate ? TooCostly(cost, oneTrial, rung, options.Budget, options.Budget.PerCandidate, 0) : null;
+        return new TrialEstimate(cost, rung, oneTrial, message);
+    }
+
+    /// <summary>
+    /// "one trial needs about 2^35 field operations (permanent of order 30), about 190 s on the 31-bit prime rung here; the
+    /// budget allows about 2^33 in 60 s (TimePerCandidate)".
+    /// </summary>
+    private static string TooCostly(TrialCost cost, TimeSpan oneTrial, Rung rung, TimeBudget budget, TimeSpan left, int trialsDone)
+    {
+        var allowed = cost.FieldOperations * left.TotalSeconds / Math.Max(oneTrial.TotalSeconds, 1e-9);
+        var budgetText = trialsDone == 0 ? $"in {budget} (TimePerCandidate)" : $"in the {Seconds(left)} left of {budget} (TimePerCandidate)";
+        return $"one trial needs about {TrialCost.Log2Text(cost.FieldOperations)} field operations ({cost.Largest}), about {Seconds(oneTrial)} on the {rung} rung here; " +
+            $"the budget allows about {TrialCost.Log2Text(allowed)} {budgetText}" + (trialsDone > 0 ? $"; the {trialsDone} trials done are kept" : "");
+    }
+
+    private static string Seconds(TimeSpan t) => t.TotalSeconds >= 10 ? $"{t.TotalSeconds:F0} s" : $"{t.TotalSeconds:0.##} s";
+
+    private static bool OddCharacteristic(CompiledIdentity identity) => identity.Field.IsRationals || !identity.Field.Characteristic.IsEven;
+
+    /// <summary>The process is stopping: the trials finished so far, and the candidate goes back to pending.</summary>
+    private static ScreenResult Stopped(CompiledIdentity identity, List<TrialRecord> trials, double accumulated) =>
+        new(Verdict.Pending, identity.Bounds.Degree, identity.Bounds.HeightLog2, accumulated, trials, null, false,
+            $"stopped before a verdict, after {trials.Count} trials");
 
     /// <summary>
     /// How many trials the next block on <paramref name="rung"/> runs: as many as reach the target if all of them vanish,
@@ -114,9 +182,13 @@ public static class Screener
     private static ScreenResult Undecided(CompiledIdentity identity, List<TrialRecord> trials, double accumulated, string message) =>
         new(Verdict.Undecided, identity.Bounds.Degree, identity.Bounds.HeightLog2, accumulated, trials, null, false, message);
 
-    private static ScreenResult Refuted(CompiledIdentity identity, ScreeningOptions options, List<TrialRecord> trials, TrialRecord witness)
+    private static ScreenResult Refuted(CompiledIdentity identity, ScreeningOptions options, List<TrialRecord> trials, TrialRecord witness,
+        CancellationToken cancellation)
     {
-        var certified = options.Certify && WitnessChecker.Certify(identity, witness, options.Limits);
+        var certified = options.Certify && WitnessChecker.Certify(identity, witness, options.Limits, cancellation);
         return new ScreenResult(Verdict.Refuted, identity.Bounds.Degree, identity.Bounds.HeightLog2, null, trials, witness, certified, null);
     }
 }
+
+/// <summary>The estimate of one trial before it runs: its cost, its rung, its time here, and the message when it does not fit the budget.</summary>
+public sealed record TrialEstimate(TrialCost Cost, Rung? Rung, TimeSpan OneTrial, string? TooCostly);

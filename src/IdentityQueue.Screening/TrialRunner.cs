@@ -12,7 +12,8 @@ namespace IdentityQueue.Screening;
 /// </summary>
 public static class TrialRunner
 {
-    public static TrialRecord Run(CompiledIdentity identity, Rung rung, int seq, ulong pointSeed)
+    /// <param name="cancellation">Observed inside the evaluation (see <see cref="Evaluator.Evaluate{TField, T}(TField, StraightLineProgram, ReadOnlySpan{T}, ReadOnlySpan{T}, Span{T}, CancellationToken)"/>).</param>
+    public static TrialRecord Run(CompiledIdentity identity, Rung rung, int seq, ulong pointSeed, CancellationToken cancellation = default)
     {
         var random = new Xoshiro256(pointSeed);
         var clock = Stopwatch.StartNew();
@@ -20,35 +21,35 @@ public static class TrialRunner
         {
             return rung.PrimeBits switch
             {
-                31 => Evaluate<PrimeField31, Residue31>(PrimeField31.CreateRandom(ref random), identity, seq, pointSeed, ref random, clock, null),
-                62 => Evaluate<PrimeField62, Residue62>(PrimeField62.CreateRandom(ref random), identity, seq, pointSeed, ref random, clock, null),
-                127 => Evaluate<PrimeField127, Residue127>(PrimeField127.CreateRandom(ref random), identity, seq, pointSeed, ref random, clock, null),
-                _ => Evaluate<BigPrimeField, BigResidue>(BigPrimeField.CreateRandom(rung.PrimeBits, ref random), identity, seq, pointSeed, ref random, clock, null),
+                31 => Evaluate<PrimeField31, Residue31>(PrimeField31.CreateRandom(ref random), identity, seq, pointSeed, ref random, clock, null, cancellation),
+                62 => Evaluate<PrimeField62, Residue62>(PrimeField62.CreateRandom(ref random), identity, seq, pointSeed, ref random, clock, null, cancellation),
+                127 => Evaluate<PrimeField127, Residue127>(PrimeField127.CreateRandom(ref random), identity, seq, pointSeed, ref random, clock, null, cancellation),
+                _ => Evaluate<BigPrimeField, BigResidue>(BigPrimeField.CreateRandom(rung.PrimeBits, ref random), identity, seq, pointSeed, ref random, clock, null, cancellation),
             };
         }
         var p = identity.Field.Characteristic;
         if (rung.ExtensionDegree == 1)
         {
             return p <= long.MaxValue
-                ? Evaluate<SmallPrimeField, SmallResidue>(SmallPrimeField.Create((ulong)p), identity, seq, pointSeed, ref random, clock, null)
-                : Evaluate<BigPrimeField, BigResidue>(BigPrimeField.Create(p), identity, seq, pointSeed, ref random, clock, null);
+                ? Evaluate<SmallPrimeField, SmallResidue>(SmallPrimeField.Create((ulong)p), identity, seq, pointSeed, ref random, clock, null, cancellation)
+                : Evaluate<BigPrimeField, BigResidue>(BigPrimeField.Create(p), identity, seq, pointSeed, ref random, clock, null, cancellation);
         }
         if (p <= long.MaxValue)
         {
             var field = ExtensionField<SmallPrimeField, SmallResidue>.Create(SmallPrimeField.Create((ulong)p), rung.ExtensionDegree, ref random);
-            return Evaluate<ExtensionField<SmallPrimeField, SmallResidue>, ExtElement<SmallResidue>>(field, identity, seq, pointSeed, ref random, clock, field.DefiningPolynomial);
+            return Evaluate<ExtensionField<SmallPrimeField, SmallResidue>, ExtElement<SmallResidue>>(field, identity, seq, pointSeed, ref random, clock, field.DefiningPolynomial, cancellation);
         }
         var big = ExtensionField<BigPrimeField, BigResidue>.Create(BigPrimeField.Create(p), rung.ExtensionDegree, ref random);
-        return Evaluate<ExtensionField<BigPrimeField, BigResidue>, ExtElement<BigResidue>>(big, identity, seq, pointSeed, ref random, clock, big.DefiningPolynomial);
+        return Evaluate<ExtensionField<BigPrimeField, BigResidue>, ExtElement<BigResidue>>(big, identity, seq, pointSeed, ref random, clock, big.DefiningPolynomial, cancellation);
     }
 
     private static TrialRecord Evaluate<TField, T>(TField field, CompiledIdentity identity, int seq, ulong pointSeed,
-        ref Xoshiro256 random, Stopwatch clock, BigInteger[]? definingPolynomial)
+        ref Xoshiro256 random, Stopwatch clock, BigInteger[]? definingPolynomial, CancellationToken cancellation)
         where TField : struct, IField<T> where T : struct
     {
         var point = new T[identity.Program.Variables.Length];
         for (var i = 0; i < point.Length; i++) point[i] = field.Sample(ref random);
-        var difference = EvaluateDifference<TField, T>(field, identity.Program, point);
+        var difference = EvaluateDifference<TField, T>(field, identity.Program, point, cancellation);
         return Record<TField, T>(field, identity, seq, pointSeed, point, definingPolynomial, difference, Elapsed(clock));
     }
 
@@ -70,12 +71,12 @@ public static class TrialRunner
     }
 
     /// <summary>lhs − rhs at a point: undefined, zero (every output vanishes), or the first nonzero output and its entry name.</summary>
-    internal static RecheckResult EvaluateDifference<TField, T>(TField field, StraightLineProgram program, T[] point)
+    internal static RecheckResult EvaluateDifference<TField, T>(TField field, StraightLineProgram program, T[] point, CancellationToken cancellation = default)
         where TField : struct, IField<T> where T : struct
     {
         if (!Evaluator.TryPrepareConstants<TField, T>(field, program, out var constants)) return new RecheckResult(false, null, null);
         var registers = new T[program.Length];
-        if (!Evaluator.Evaluate<TField, T>(field, program, constants, point, registers)) return new RecheckResult(false, null, null);
+        if (!Evaluator.Evaluate<TField, T>(field, program, constants, point, registers, cancellation)) return new RecheckResult(false, null, null);
         var outputs = new T[program.Outputs.Length];
         for (var o = 0; o < outputs.Length; o++) outputs[o] = registers[program.Outputs[o]];
         return FromOutputs(field, program, outputs, 1, 0);

@@ -49,7 +49,8 @@ public static class WitnessChecker
     /// read as integers) is nonzero, when the estimated size of that evaluation fits <see cref="Limits.MaxCertifyBits"/>.
     /// In characteristic p the field arithmetic is already exact; the witness is confirmed by the independent re-check.
     /// </summary>
-    public static bool Certify(CompiledIdentity identity, TrialRecord witness, Limits limits)
+    /// <param name="cancellation">Observed inside the exact evaluation; a cancelled certification leaves the refutation uncertified (false).</param>
+    public static bool Certify(CompiledIdentity identity, TrialRecord witness, Limits limits, CancellationToken cancellation = default)
     {
         if (!identity.Field.IsRationals)
             return Recheck(identity, witness.Field, witness.Point).Refutes;
@@ -62,7 +63,14 @@ public static class WitnessChecker
         for (var i = 0; i < values.Length; i++) values[i] = byName[program.Variables[i]];
         if (!Evaluator.TryPrepareConstants<RationalField, Rational>(field, program, out var constants)) return false;
         var registers = new Rational[program.Length];
-        if (!Evaluator.Evaluate<RationalField, Rational>(field, program, constants, values, registers)) return false;
+        try
+        {
+            if (!Evaluator.Evaluate<RationalField, Rational>(field, program, constants, values, registers, cancellation)) return false;
+        }
+        catch (OperationCanceledException)
+        {
+            return false;
+        }
         foreach (var o in program.Outputs)
             if (!registers[o].IsZero) return true;
         return false;
