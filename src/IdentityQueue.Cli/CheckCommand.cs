@@ -24,13 +24,14 @@ public static class CheckCommand
         };
         var seed = new Option<ulong?>("--seed") { Description = "Seed for the random primes and points (default: a fresh random seed, printed)." };
         var json = new Option<bool>("--json") { Description = "Print one JSON object instead of text." };
+        var time = TimeOption();
         var command = new Command("check", "Screen one identity ad hoc, without a store. Exit 0 survived, 1 refuted, 2 invalid, 4 undecided.\n\n" +
             "Examples:\n" +
             "  idq check \"(a^2+b^2)*(c^2+d^2) = (a*c-b*d)^2 + (a*d+b*c)^2\"\n" +
             "  idq check \"(x+y)^7 = x^7 + y^7 over GF(7)\" --json\n" +
             "  idq check \"sum(k in 0..n: binom(n,k)) = 2^n for n in 0..10\" --seed 42")
         {
-            identity, over, target, seed, json,
+            identity, over, target, seed, json, time,
         };
         command.SetAction(parse =>
         {
@@ -50,8 +51,14 @@ public static class CheckCommand
                 }
                 runSeed = valid;
             }
-            var options = new ScreeningOptions { TargetBits = targetBits, Seed = runSeed.Value };
-            return Execute(parse.GetValue(identity) ?? "", parse.GetValue(over), options, parse.GetValue(json), output, error);
+            if (!TimeBudget.TryCreate(parse.GetValue(time), out var budget, out var budgetProblem))
+            {
+                error.WriteLine($"idq check: {budgetProblem}");
+                return ExitCodes.BadInput;
+            }
+            var options = new ScreeningOptions { TargetBits = targetBits, Seed = runSeed.Value, Budget = budget };
+            using var stop = new StopSignals();
+            return Execute(parse.GetValue(identity) ?? "", parse.GetValue(over), options, parse.GetValue(json), output, error, stop.Token);
         });
         return command;
     }
@@ -62,7 +69,16 @@ public static class CheckCommand
         public Verdict Verdict => Result?.Verdict ?? Verdict.Invalid;
     }
 
-    internal static int Execute(string text, string? over, ScreeningOptions options, bool json, TextWriter output, TextWriter error)
+    /// <summary>The <c>--time-per-candidate</c> option of <c>check</c>, <c>run</c> and <c>worker</c>.</summary>
+    internal static Option<double> TimeOption() => new("--time-per-candidate")
+    {
+        HelpName = "SECONDS",
+        Description = $"The time budget of one candidate (TimePerCandidate): a trial that cannot fit is not started, one running when it runs out is cancelled, and the candidate is undecided with the trials done kept. Between {TimeBudget.Min.TotalSeconds} and {TimeBudget.Max.TotalSeconds:F0}.",
+        DefaultValueFactory = _ => TimeBudget.Default.PerCandidate.TotalSeconds,
+    };
+
+    internal static int Execute(string text, string? over, ScreeningOptions options, bool json, TextWriter output, TextWriter error,
+        CancellationToken cancellation = default)
     {
         var parsed = CatalogueParser.ParseIdentity(text, options.Limits);
         if (!parsed.Success) return Invalid(text, parsed.Error!, json, output, error);
@@ -85,12 +101,29 @@ public static class CheckCommand
                 outcomes.Add(new InstanceOutcome(parameters, null, compiled.Error!.ToString()));
                 continue;
             }
-            outcomes.Add(new InstanceOutcome(parameters, Screener.Screen(compiled.Value!, options, CandidateKey.Of(entry, parameters)), null));
+            if (cancellation.IsCancellationRequested) break;
+            // Say so before a long screen starts (a trial that does not fit the budget is settled at once with the same words).
+            var estimate = Screener.Estimate(compiled.Value!, options);
+            if (estimate.TooCostly is null && estimate.OneTrial > LongTrial)
+                error.WriteLine($"idq check: one trial needs about {TrialCost.Log2Text(estimate.Cost.FieldOperations)} field operations ({estimate.Cost.Largest}), " +
+                    $"about {estimate.OneTrial.TotalSeconds:F0} s on the {estimate.Rung} rung; the budget is {options.Budget} (Ctrl+C stops)");
+            var key = CandidateKey.Of(entry, parameters);
+            var result = Screener.Screen(compiled.Value!, options, key, cancellation: cancellation);
+            if (result.Verdict == Verdict.Pending)
+                result = result with
+                {
+                    Verdict = Verdict.Undecided,
+                    Message = $"stopped by a signal after {result.TrialCount} trials, at 2^{result.ErrorBoundLog2 ?? 0:F1} of the target 2^-{options.TargetBits}",
+                };
+            outcomes.Add(new InstanceOutcome(parameters, result, null));
         }
         if (json) JsonReport.Write(output, entry, options, outcomes);
         else TextReport.Write(output, entry, options, outcomes);
         return ExitCode(outcomes.Select(o => o.Verdict));
     }
+
+    /// <summary>A trial estimated longer than this is announced on standard error before it starts.</summary>
+    private static readonly TimeSpan LongTrial = TimeSpan.FromSeconds(2);
 
     internal static int ExitCode(IEnumerable<Verdict> verdicts)
     {

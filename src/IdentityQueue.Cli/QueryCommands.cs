@@ -170,13 +170,20 @@ internal static class QueryCommands
         }
         output.WriteLine();
         var now = DateTime.UtcNow;
-        WriteTable(output, new QueryResult(["worker", "host", "pid", "threads", "chunks done", "candidates done", "last heartbeat", "state"],
+        WriteTable(output, new QueryResult(["worker", "host", "pid", "threads", "chunks done", "candidates done", "last heartbeat", "state", "longest on"],
             workers.Select(w => new object?[]
             {
                 w.Name, w.Host, w.Pid, w.Threads, w.ChunksDone, w.CandidatesDone,
                 $"{Math.Max(0, (now - AsUtc(w.HeartbeatAt)).TotalSeconds):F0} s ago", w.Live ? "alive" : "silent (presumed dead)",
+                LongestOn(w, now),
             }).ToList()));
     }
+
+    /// <summary>"#42 perm30 for 95 s": the candidate a live worker has been on the longest, as of its last heartbeat; "-" when idle.</summary>
+    private static string LongestOn(WorkerInfo w, DateTime now) =>
+        w.Live && w.CurrentCandidateId is long id && w.CurrentSince is DateTime since
+            ? $"#{id} {w.CurrentLabel} for {Math.Max(0, (now - AsUtc(since)).TotalSeconds):F0} s"
+            : "-";
 
     /// <summary>SQLite gives back its UTC text timestamps as unspecified-kind values; PostgreSQL as UTC or local.</summary>
     private static DateTime AsUtc(DateTime t) => t.Kind switch
@@ -219,6 +226,15 @@ internal static class QueryCommands
                 w.WriteNumber("candidatesDone", worker.CandidatesDone);
                 w.WriteString("lastHeartbeat", AsUtc(worker.HeartbeatAt).ToString("O", CultureInfo.InvariantCulture));
                 w.WriteBoolean("alive", worker.Live);
+                if (worker.Live && worker.CurrentCandidateId is long id && worker.CurrentSince is DateTime since)
+                {
+                    w.WriteStartObject("longestOn");
+                    w.WriteNumber("candidateId", id);
+                    if (worker.CurrentLabel is { } label) w.WriteString("label", label); else w.WriteNull("label");
+                    w.WriteNumber("seconds", Math.Round(Math.Max(0, (DateTime.UtcNow - AsUtc(since)).TotalSeconds)));
+                    w.WriteEndObject();
+                }
+                else w.WriteNull("longestOn");
                 w.WriteEndObject();
             }
             w.WriteEndArray();

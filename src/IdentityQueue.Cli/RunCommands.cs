@@ -1,6 +1,7 @@
 using System.CommandLine;
 using System.Diagnostics;
 using IdentityQueue.Algebra;
+using IdentityQueue.Screening;
 using IdentityQueue.Store;
 using IdentityQueue.Store.Work;
 using IdentityQueue.Worker;
@@ -13,9 +14,10 @@ namespace IdentityQueue.Cli;
 /// <summary><c>idq run</c>, <c>idq worker</c> and <c>idq enqueue</c>: the batch, on an in-process Hangfire server.</summary>
 internal static class RunCommands
 {
-    private sealed record RunArgs(StoreOptions Db, Option<int?> Workers, Option<int?> Target, Option<int> Chunk, Option<int?> Invisibility, Option<bool> TwoPass);
+    private sealed record RunArgs(StoreOptions Db, Option<int?> Workers, Option<int?> Target, Option<int> Chunk, Option<int?> Invisibility, Option<bool> TwoPass,
+        Option<double> Time);
 
-    private static RunArgs Arguments(Command command, bool target)
+    private static RunArgs Arguments(Command command, bool target, bool screens = true)
     {
         var args = new RunArgs(
             new StoreOptions(),
@@ -30,13 +32,15 @@ internal static class RunCommands
             new Option<bool>("--two-pass")
             {
                 Description = "First give every candidate its cheap stage of trials, then the survivors the rest: a partial run holds nearly all refutations, but the whole run is slower.",
-            });
+            },
+            CheckCommand.TimeOption());
         args.Db.AddTo(command);
         command.Options.Add(args.Workers);
         if (target) command.Options.Add(args.Target);
         command.Options.Add(args.Chunk);
         command.Options.Add(args.Invisibility);
         command.Options.Add(args.TwoPass);
+        if (screens) command.Options.Add(args.Time);
         return args;
     }
 
@@ -62,7 +66,7 @@ internal static class RunCommands
     {
         var command = new Command("enqueue", "Enqueue pending candidates (also rows inserted by hand) without working on them; a later 'idq run' or 'idq worker' screens them.\n\n" +
             "Examples:\n  idq enqueue --db night.db\n  idq enqueue --db night.db --target-bits 128   # survivors short of 2^-128 get more trials later");
-        var a = Arguments(command, target: true);
+        var a = Arguments(command, target: true, screens: false);
         command.SetAction(parse => Execute(parse, a, output, error, RunMode.EnqueueOnly));
         return command;
     }
@@ -86,6 +90,11 @@ internal static class RunCommands
         };
         if (parse.GetValue(a.Invisibility) is int seconds) settings = settings with { InvisibilityTimeout = TimeSpan.FromSeconds(seconds) };
         var problems = settings.Validate();
+        if (mode != RunMode.EnqueueOnly)
+        {
+            if (TimeBudget.TryCreate(parse.GetValue(a.Time), out var budget, out var budgetProblem)) settings = settings with { Budget = budget };
+            else problems = [.. problems, budgetProblem!];
+        }
         var target = parse.GetValue(a.Target);
         if (target is < 1 or > 4096) problems = [.. problems, $"--target-bits must be between 1 and 4096, got {target}"];
         if (problems.Count > 0)
@@ -137,27 +146,22 @@ internal static class RunCommands
                 output.WriteLine($"enqueued {session.EnqueueOnly()} candidates on {path}; 'idq run' or 'idq worker' screens them");
                 return ExitCodes.Success;
             case RunMode.UntilStopped:
-                output.WriteLine($"worker {settings.WorkerName} on {path} with {settings.Workers} threads; Ctrl+C stops it gracefully");
+            {
+                output.WriteLine($"worker {settings.WorkerName} on {path} with {settings.Workers} threads, {settings.Budget} per candidate; " +
+                    "Ctrl+C (or SIGTERM) stops it gracefully, a second one at once");
+                // The host's console lifetime stops the worker at the first signal; StopSignals adds the second.
+                using var signals = new StopSignals();
                 session.RunUntilStopped();
                 return ExitCodes.Success;
+            }
         }
 
         var clock = Stopwatch.StartNew();
-        using var cancel = new CancellationTokenSource();
-        ConsoleCancelEventHandler onCancel = (_, e) => { e.Cancel = true; cancel.Cancel(); };
-        Console.CancelKeyPress += onCancel;
-        StateCounts final;
-        try
-        {
-            final = interactive ? RunWithProgressBar(session, cancel.Token, clock) : session.RunToCompletion(
-                c => output.WriteLine($"{clock.Elapsed:hh\\:mm\\:ss}  {Progress(c, clock)}"), TimeSpan.FromSeconds(10), cancel.Token);
-        }
-        finally
-        {
-            Console.CancelKeyPress -= onCancel;
-        }
+        using var stop = new StopSignals();
+        var final = interactive ? RunWithProgressBar(session, stop.Token, clock) : session.RunToCompletion(
+            c => output.WriteLine($"{clock.Elapsed:hh\\:mm\\:ss}  {Progress(c, clock, session)}"), TimeSpan.FromSeconds(10), stop.Token);
         output.WriteLine();
-        output.WriteLine(cancel.IsCancellationRequested ? "stopped; the rest stays pending for the next run" : "done");
+        output.WriteLine(stop.Stopping ? "stopped; the rest stays pending for the next run" : "done");
         output.WriteLine($"  {final.Settled} of {final.Total} candidates settled in {clock.Elapsed.TotalSeconds:F1} s: " +
             $"{final.Refuted} refuted, {final.Survived} survived (very likely true), {final.Undecided} undecided, {final.Invalid} invalid, {final.Failed} failed");
         output.WriteLine("  Screening is evidence, not proof: each survivor's error bound is only as good as its degree bound.");
@@ -168,12 +172,18 @@ internal static class RunCommands
     /// <summary>The log of worker processes on a PostgreSQL store: in the working directory, shared by the processes there.</summary>
     internal const string SharedLogPath = "idq-worker.log.jsonl";
 
-    private static string Progress(StateCounts c, Stopwatch clock)
+    /// <summary>A candidate screened longer than this is named in the progress line.</summary>
+    private static readonly TimeSpan SlowAfter = TimeSpan.FromSeconds(5);
+
+    private static string Progress(StateCounts c, Stopwatch clock, WorkerSession session)
     {
         var rate = c.Settled / Math.Max(clock.Elapsed.TotalSeconds, 1e-3);
         var left = c.Total - c.Settled;
         var eta = rate > 0 && left > 0 ? TimeSpan.FromSeconds(left / rate).ToString(@"hh\:mm\:ss") : "-";
-        return $"{c.Settled}/{c.Total} settled, {c.Refuted} refuted, {c.Survived} survived, {rate:F0}/s, ETA {eta}";
+        var line = $"{c.Settled}/{c.Total} settled, {c.Refuted} refuted, {c.Survived} survived, {rate:F0}/s, ETA {eta}";
+        if (session.LongestInFlight is { } slow && DateTime.UtcNow - slow.Since >= SlowAfter)
+            line += $"; waiting on one slow candidate: {slow.Label} (#{slow.Id}) for {(DateTime.UtcNow - slow.Since).TotalSeconds:F0} s";
+        return line;
     }
 
     private static StateCounts RunWithProgressBar(WorkerSession session, CancellationToken cancellation, Stopwatch clock)
@@ -189,7 +199,7 @@ internal static class RunCommands
                 {
                     task.MaxValue = Math.Max(1, c.Total);
                     task.Value = c.Settled;
-                    task.Description = Progress(c, clock);
+                    task.Description = Progress(c, clock, session);
                 }, TimeSpan.FromMilliseconds(250), cancellation);
             });
         return final;

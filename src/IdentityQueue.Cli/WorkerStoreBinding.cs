@@ -94,7 +94,7 @@ internal sealed class StoreWorkerBinding(StoreLocation location, Limits limits, 
         {
             var s = claimed.Candidate;
             var bound = s.Bind(limits);
-            return new CandidateWork(s.Id, s.Seed.Value, s.TrialKey(bound), s.CatalogueTargetBits, bound.Entry, bound.Parameters, bound.Error, claimed.Trials);
+            return new CandidateWork(s.Id, s.Seed.Value, s.TrialKey(bound), s.CatalogueTargetBits, bound.Entry, bound.Parameters, bound.Error, claimed.Trials, s.Label);
         }).ToList());
 
     public void Save(IReadOnlyList<WorkerOutcome> outcomes, string worker)
@@ -123,11 +123,11 @@ internal sealed class StoreWorkerBinding(StoreLocation location, Limits limits, 
     public void RegisterWorker(string name, int threads) =>
         With(c => new WorkerRegistry(c).Register(name, Environment.MachineName, Environment.ProcessId, threads));
 
-    public void Heartbeat(string name, long chunksDone, long candidatesDone, bool stopped = false) => With(c =>
+    public void Heartbeat(string name, long chunksDone, long candidatesDone, bool stopped = false, InFlightCandidate? longest = null) => With(c =>
     {
         var registry = new WorkerRegistry(c);
         if (stopped) registry.SignOff(name, chunksDone, candidatesDone);
-        else registry.Heartbeat(name, chunksDone, candidatesDone);
+        else registry.Heartbeat(name, chunksDone, candidatesDone, longest?.Id, longest?.Since);
     });
 
     public int LiveThreads(TimeSpan deadAfter) => With(c => new WorkerRegistry(c).LiveThreads(deadAfter));

@@ -50,17 +50,39 @@ public interface IScreeningStore
     /// <summary>Registers this worker process (host:pid and thread count) in the store's worker table.</summary>
     void RegisterWorker(string name, int threads);
 
-    /// <summary>Beats the worker's heartbeat with its counters; with <paramref name="stopped"/>, signs it off.</summary>
-    void Heartbeat(string name, long chunksDone, long candidatesDone, bool stopped = false);
+    /// <summary>
+    /// Beats the worker's heartbeat with its counters and the candidate it has been on the longest (null when idle); with
+    /// <paramref name="stopped"/>, signs it off.
+    /// </summary>
+    void Heartbeat(string name, long chunksDone, long candidatesDone, bool stopped = false, InFlightCandidate? longest = null);
 
     /// <summary>Worker threads of all live worker processes on the store (at least this one's once registered).</summary>
     int LiveThreads(TimeSpan deadAfter);
 }
 
-/// <summary>What this process has done, for its heartbeat. Thread-safe.</summary>
+/// <summary>A candidate being screened now: its id, its label, and since when (UTC).</summary>
+public sealed record InFlightCandidate(long Id, string? Label, DateTime Since);
+
+/// <summary>What this process has done, and what it is screening now, for its heartbeat and progress line. Thread-safe.</summary>
 public sealed class WorkerStats
 {
     private long _chunks, _candidates;
+    private readonly System.Collections.Concurrent.ConcurrentDictionary<long, InFlightCandidate> _screening = new();
+
+    /// <summary>A job thread starts screening a candidate.</summary>
+    public void Begin(long id, string? label) => _screening[id] = new InFlightCandidate(id, label, DateTime.UtcNow);
+
+    /// <summary>It has finished (or stopped) screening it.</summary>
+    public void End(long id) => _screening.TryRemove(id, out _);
+
+    /// <summary>The candidate screened the longest now, or null when none is.</summary>
+    public InFlightCandidate? Longest()
+    {
+        InFlightCandidate? longest = null;
+        foreach (var c in _screening.Values)
+            if (longest is null || c.Since < longest.Since) longest = c;
+        return longest;
+    }
 
     public long ChunksDone => Interlocked.Read(ref _chunks);
 
@@ -85,7 +107,8 @@ public sealed record CandidateWork(
     IdentityEntry? Entry,
     IReadOnlyDictionary<string, BigInteger> Parameters,
     string? Problem,
-    IReadOnlyList<TrialRecord> Trials);
+    IReadOnlyList<TrialRecord> Trials,
+    string? Label = null);
 
 /// <summary>What became of one candidate: a screen result (possibly pending, for the next stage), or invalid, or failed.</summary>
 public sealed record CandidateOutcome(long Id, ScreenResult? Result, string? Invalid, string? Failed);

@@ -1,4 +1,5 @@
 using System.ComponentModel;
+using System.Diagnostics;
 using Hangfire;
 using IdentityQueue.Screening;
 using Microsoft.Extensions.Logging;
@@ -22,50 +23,113 @@ public sealed class ScreeningJob(IScreeningStore store, WorkerSettings settings,
         // Checkpoint: dying before the claim leaves the candidates queued; start-up recovery returns them to pending.
         var claimed = store.Claim(candidateIds, settings.WorkerName);
         var outcomes = new List<CandidateOutcome>(SaveBatch);
+        var lastSave = Stopwatch.GetTimestamp();
+        void Flush()
+        {
+            if (outcomes.Count > 0) store.Save(outcomes, settings.WorkerName);
+            outcomes.Clear();
+            lastSave = Stopwatch.GetTimestamp();
+        }
+        // Candidates whose first trial alone is estimated longer than SlowCandidate wait until the rest of the chunk is
+        // screened and saved, so that one slow candidate never holds up the others.
+        var slow = new List<Prepared>();
         for (var i = 0; i < claimed.Count; i++)
         {
             if (cancellation.IsCancellationRequested)
             {
-                // A graceful stop: what is screened is saved, the rest goes back to pending for the next run.
-                store.Save(outcomes, settings.WorkerName);
-                store.Release(claimed.Skip(i).Select(c => c.Id).ToList());
-                log.LogInformation("stopping: released {Count} candidates of a stage-{Stage} chunk", claimed.Count - i, stage);
+                Stop(outcomes, claimed.Skip(i).Select(c => c.Id).Concat(slow.Select(p => p.Work.Id)).ToList(), stage);
                 return;
             }
-            outcomes.Add(ScreenOne(claimed[i], stage, cancellation));
-            if (outcomes.Count == SaveBatch)
+            var prepared = Prepare(claimed[i], stage);
+            if (prepared.Outcome is { } settled) outcomes.Add(settled);
+            else if (prepared.Estimate > settings.SlowCandidate)
             {
-                store.Save(outcomes, settings.WorkerName);
-                outcomes.Clear();
+                slow.Add(prepared);
+                continue;
             }
-            // Checkpoint: dying here loses only the unsaved outcomes; their candidates stay claimed, are returned to pending
-            // at the next start, and are screened again with the same seeds, giving the same trials.
+            else outcomes.Add(Screen(prepared, cancellation));
+            // Checkpoint: dying here loses only the unsaved outcomes (at most SaveEvery's worth); their candidates stay claimed,
+            // are returned to pending at the next start, and are screened again with the same seeds, giving the same trials.
+            if (outcomes.Count >= SaveBatch || Stopwatch.GetElapsedTime(lastSave) >= settings.SaveEvery) Flush();
         }
-        store.Save(outcomes, settings.WorkerName);
+        Flush();
+        for (var k = 0; k < slow.Count; k++)
+        {
+            if (cancellation.IsCancellationRequested)
+            {
+                Stop(outcomes, slow.Skip(k).Select(p => p.Work.Id).ToList(), stage);
+                return;
+            }
+            log.LogInformation("candidate {Id} ({Label}) is slow: one trial is estimated at {Seconds:F1} s (the budget is {Budget})",
+                slow[k].Work.Id, slow[k].Work.Label, slow[k].Estimate.TotalSeconds, settings.Budget);
+            outcomes.Add(Screen(slow[k], cancellation));
+            Flush();
+        }
         stats.ChunkDone(claimed.Count);
     }
 
-    /// <summary>Screens one candidate; a deterministic failure of this candidate is its outcome, never the chunk's.</summary>
-    internal CandidateOutcome ScreenOne(CandidateWork work, int stage, CancellationToken cancellation)
+    /// <summary>A graceful stop: what is screened is saved (a candidate stopped mid-screen with its finished trials, as pending), the rest goes back to pending.</summary>
+    private void Stop(List<CandidateOutcome> outcomes, List<long> unscreened, int stage)
     {
-        if (work.Problem is not null) return new CandidateOutcome(work.Id, null, work.Problem, null);
+        store.Save(outcomes, settings.WorkerName);
+        outcomes.Clear();
+        store.Release(unscreened);
+        log.LogInformation("stopping: released {Count} candidates of a stage-{Stage} chunk", unscreened.Count, stage);
+    }
+
+    /// <summary>A claimed candidate ready to screen (compiled, with its options and the estimate of its first trial), or its outcome already.</summary>
+    internal sealed record Prepared(CandidateWork Work, CandidateOutcome? Outcome, Algebra.Compile.CompiledIdentity? Identity, ScreeningOptions? Options, TimeSpan Estimate);
+
+    /// <summary>Compiles one candidate and estimates its first trial; a deterministic failure of this candidate is its outcome, never the chunk's.</summary>
+    internal Prepared Prepare(CandidateWork work, int stage)
+    {
+        if (work.Problem is not null) return new Prepared(work, new CandidateOutcome(work.Id, null, work.Problem, null), null, null, TimeSpan.Zero);
         try
         {
             var compiled = compiler.Compile(work.Entry!, work.Parameters);
-            if (!compiled.Success) return new CandidateOutcome(work.Id, null, compiled.Error!.ToString(), null);
+            if (!compiled.Success) return new Prepared(work, new CandidateOutcome(work.Id, null, compiled.Error!.ToString(), null), null, null, TimeSpan.Zero);
             var options = new ScreeningOptions
             {
                 Seed = work.Seed,
                 TargetBits = work.TargetBits,
                 Limits = settings.Limits,
+                Budget = settings.Budget,
                 MaxNewStages = settings.TwoPass && stage == 1 ? 1 : null,
             };
-            return new CandidateOutcome(work.Id, Screener.Screen(compiled.Value!, options, work.Key, work.Trials, cancellation), null, null);
+            var estimate = work.Trials.Count == 0 ? Screener.Estimate(compiled.Value!, options).OneTrial : TimeSpan.Zero;
+            return new Prepared(work, null, compiled.Value!, options, estimate);
+        }
+        catch (Exception e) when (e is not OutOfMemoryException and not OperationCanceledException)
+        {
+            log.LogWarning(e, "candidate {Id} failed", work.Id);
+            return new Prepared(work, new CandidateOutcome(work.Id, null, null, $"{e.GetType().Name}: {e.Message}"), null, null, TimeSpan.Zero);
+        }
+    }
+
+    /// <summary>Screens one prepared candidate (stopping with its finished trials when <paramref name="cancellation"/> fires).</summary>
+    internal CandidateOutcome Screen(Prepared prepared, CancellationToken cancellation)
+    {
+        var work = prepared.Work;
+        stats.Begin(work.Id, work.Label);
+        try
+        {
+            return new CandidateOutcome(work.Id, Screener.Screen(prepared.Identity!, prepared.Options!, work.Key, work.Trials, cancellation), null, null);
         }
         catch (Exception e) when (e is not OutOfMemoryException and not OperationCanceledException)
         {
             log.LogWarning(e, "candidate {Id} failed", work.Id);
             return new CandidateOutcome(work.Id, null, null, $"{e.GetType().Name}: {e.Message}");
         }
+        finally
+        {
+            stats.End(work.Id);
+        }
+    }
+
+    /// <summary>Screens one candidate; a deterministic failure of this candidate is its outcome, never the chunk's.</summary>
+    internal CandidateOutcome ScreenOne(CandidateWork work, int stage, CancellationToken cancellation)
+    {
+        var prepared = Prepare(work, stage);
+        return prepared.Outcome ?? Screen(prepared, cancellation);
     }
 }

@@ -181,7 +181,7 @@ internal sealed class HeartbeatService(IScreeningStore store, WorkerSettings set
             try { await Task.Delay(settings.HeartbeatInterval, stoppingToken); } catch (OperationCanceledException) { break; }
             try
             {
-                store.Heartbeat(settings.WorkerName, stats.ChunksDone, stats.CandidatesDone);
+                store.Heartbeat(settings.WorkerName, stats.ChunksDone, stats.CandidatesDone, longest: stats.Longest());
                 if (plan.Queue.IsShared)
                 {
                     var returned = store.RecoverShared(settings.DeadAfter, settings.QueuedStaleAfter);

@@ -26,6 +26,9 @@ public sealed class WorkerSession : IDisposable
 
     public IScreeningStore Store => _host.Services.GetRequiredService<IScreeningStore>();
 
+    /// <summary>The candidate this process has been screening the longest now, or null when none is (for the progress line).</summary>
+    public InFlightCandidate? LongestInFlight => _host.Services.GetRequiredService<WorkerStats>().Longest();
+
     /// <summary>
     /// Opens a session on a SQLite store at <paramref name="storePath"/> (queue and log files beside it), or gives the
     /// reason it cannot (another worker holds the store).

@@ -19,6 +19,21 @@ public sealed record WorkerSettings
 
     public Limits Limits { get; init; } = Limits.Default;
 
+    /// <summary>The time one candidate's screening may take (<c>TimePerCandidate</c>, <c>--time-per-candidate</c>).</summary>
+    public IdentityQueue.Screening.TimeBudget Budget { get; init; } = IdentityQueue.Screening.TimeBudget.Default;
+
+    /// <summary>
+    /// Outcomes of a chunk are saved at least this often (and before a slow candidate starts), so that verdicts reach the
+    /// store as they are reached, not at the end of the chunk.
+    /// </summary>
+    public TimeSpan SaveEvery { get; init; } = TimeSpan.FromSeconds(1);
+
+    /// <summary>
+    /// A candidate whose first trial is estimated longer than this is screened after the rest of its chunk (which is saved
+    /// first), so that one slow candidate never holds up the others.
+    /// </summary>
+    public TimeSpan SlowCandidate { get; init; } = TimeSpan.FromSeconds(1);
+
     /// <summary>How often the planner looks for work to enqueue.</summary>
     public TimeSpan PlanInterval { get; init; } = TimeSpan.FromMilliseconds(200);
 

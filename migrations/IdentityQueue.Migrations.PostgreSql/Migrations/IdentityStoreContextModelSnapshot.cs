@@ -378,6 +378,14 @@ namespace IdentityQueue.Migrations.PostgreSql.Migrations
                         .HasDefaultValue(0L)
                         .HasColumnName("chunks_done");
 
+                    b.Property<long?>("CurrentCandidateId")
+                        .HasColumnType("bigint")
+                        .HasColumnName("current_candidate_id");
+
+                    b.Property<DateTime?>("CurrentSince")
+                        .HasColumnType("timestamp with time zone")
+                        .HasColumnName("current_since");
+
                     b.Property<DateTime>("HeartbeatAt")
                         .ValueGeneratedOnAdd()
                         .HasColumnType("timestamp with time zone")

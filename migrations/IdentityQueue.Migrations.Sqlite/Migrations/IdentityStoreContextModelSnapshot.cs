@@ -365,6 +365,14 @@ namespace IdentityQueue.Migrations.Sqlite.Migrations
                         .HasDefaultValue(0L)
                         .HasColumnName("chunks_done");
 
+                    b.Property<long?>("CurrentCandidateId")
+                        .HasColumnType("INTEGER")
+                        .HasColumnName("current_candidate_id");
+
+                    b.Property<DateTime?>("CurrentSince")
+                        .HasColumnType("TEXT")
+                        .HasColumnName("current_since");
+
                     b.Property<DateTime>("HeartbeatAt")
                         .ValueGeneratedOnAdd()
                         .HasColumnType("TEXT")

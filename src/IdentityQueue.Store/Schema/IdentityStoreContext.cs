@@ -140,6 +140,8 @@ public sealed class IdentityStoreContext(DbContextOptions<IdentityStoreContext> 
             e.Property(x => x.HeartbeatAt).HasColumnName("heartbeat_at").HasDefaultValueSql(Now);
             e.Property(x => x.ChunksDone).HasColumnName("chunks_done").HasDefaultValue(0L);
             e.Property(x => x.CandidatesDone).HasColumnName("candidates_done").HasDefaultValue(0L);
+            e.Property(x => x.CurrentCandidateId).HasColumnName("current_candidate_id");
+            e.Property(x => x.CurrentSince).HasColumnName("current_since");
             e.Property(x => x.StoppedAt).HasColumnName("stopped_at");
         });
     }

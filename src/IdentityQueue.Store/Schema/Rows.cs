@@ -127,4 +127,8 @@ public sealed class WorkerRow
     public long CandidatesDone { get; set; }
     /// <summary>When it stopped gracefully; null while it runs (or after it died).</summary>
     public DateTime? StoppedAt { get; set; }
+    /// <summary>The candidate it has been screening the longest, as of its last heartbeat; null when idle.</summary>
+    public long? CurrentCandidateId { get; set; }
+    /// <summary>Since when it screens <see cref="CurrentCandidateId"/>.</summary>
+    public DateTime? CurrentSince { get; set; }
 }

@@ -3,8 +3,11 @@ using System.Data.Common;
 namespace IdentityQueue.Store.Work;
 
 /// <summary>A worker process as <c>idq status</c> shows it.</summary>
+/// <param name="CurrentCandidateId">The candidate it has been on the longest (as of its last heartbeat), null when idle.</param>
+/// <param name="CurrentLabel">That candidate's label.</param>
+/// <param name="CurrentSince">Since when it is on that candidate.</param>
 public sealed record WorkerInfo(string Name, string Host, int Pid, int Threads, DateTime StartedAt, DateTime HeartbeatAt,
-    long ChunksDone, long CandidatesDone, bool Live);
+    long ChunksDone, long CandidatesDone, bool Live, long? CurrentCandidateId = null, string? CurrentLabel = null, DateTime? CurrentSince = null);
 
 /// <summary>
 /// The <c>worker</c> table: each worker process registers, beats its heartbeat with its counters, and signs off when it
@@ -33,16 +36,24 @@ public sealed class WorkerRegistry(StoreConnection store)
         command.ExecuteNonQuery();
     }
 
-    /// <summary>Records that the worker is alive, with its counters so far.</summary>
-    public void Heartbeat(string name, long chunksDone, long candidatesDone)
+    /// <summary>
+    /// Records that the worker is alive, with its counters so far and the candidate it has been screening the longest
+    /// (<paramref name="currentCandidateId"/> since <paramref name="currentSince"/>, UTC; null when idle).
+    /// </summary>
+    public void Heartbeat(string name, long chunksDone, long candidatesDone, long? currentCandidateId = null, DateTime? currentSince = null)
     {
-        using var command = _db.Command("""
-            UPDATE worker SET heartbeat_at = CURRENT_TIMESTAMP, chunks_done = @chunks, candidates_done = @candidates
+        // The time on the candidate is written as "so many seconds before the database's now", like every other time here.
+        var seconds = currentSince is DateTime since ? (int)Math.Max(0, (DateTime.UtcNow - since.ToUniversalTime()).TotalSeconds) : 0;
+        var current = currentCandidateId is null ? "current_candidate_id = NULL, current_since = NULL"
+            : $"current_candidate_id = @current, current_since = {_store.SecondsAgo(seconds)}";
+        using var command = _db.Command($"""
+            UPDATE worker SET heartbeat_at = CURRENT_TIMESTAMP, chunks_done = @chunks, candidates_done = @candidates, {current}
             WHERE name = @name
             """);
         command.Parameter("@name", name);
         command.Parameter("@chunks", chunksDone);
         command.Parameter("@candidates", candidatesDone);
+        if (currentCandidateId is long id) command.Parameter("@current", id);
         command.ExecuteNonQuery();
     }
 
@@ -51,7 +62,7 @@ public sealed class WorkerRegistry(StoreConnection store)
     {
         using var command = _db.Command("""
             UPDATE worker SET heartbeat_at = CURRENT_TIMESTAMP, stopped_at = CURRENT_TIMESTAMP, chunks_done = @chunks,
-                candidates_done = @candidates
+                candidates_done = @candidates, current_candidate_id = NULL, current_since = NULL
             WHERE name = @name
             """);
         command.Parameter("@name", name);
@@ -77,16 +88,19 @@ public sealed class WorkerRegistry(StoreConnection store)
     public IReadOnlyList<WorkerInfo> List(TimeSpan deadAfter, bool includeStopped = false)
     {
         using var command = _db.Command($"""
-            SELECT name, host, pid, threads, started_at, heartbeat_at, chunks_done, candidates_done,
-                   CASE WHEN stopped_at IS NULL AND heartbeat_at >= {_store.SecondsAgo((int)Math.Ceiling(deadAfter.TotalSeconds))} THEN 1 ELSE 0 END
-            FROM worker {(includeStopped ? "" : "WHERE stopped_at IS NULL")}
-            ORDER BY started_at DESC, name
+            SELECT w.name, w.host, w.pid, w.threads, w.started_at, w.heartbeat_at, w.chunks_done, w.candidates_done,
+                   CASE WHEN w.stopped_at IS NULL AND w.heartbeat_at >= {_store.SecondsAgo((int)Math.Ceiling(deadAfter.TotalSeconds))} THEN 1 ELSE 0 END,
+                   w.current_candidate_id, c.label, w.current_since
+            FROM worker w LEFT JOIN candidate c ON c.id = w.current_candidate_id
+            {(includeStopped ? "" : "WHERE w.stopped_at IS NULL")}
+            ORDER BY w.started_at DESC, w.name
             """);
         var list = new List<WorkerInfo>();
         using var r = command.ExecuteReader();
         while (r.Read())
             list.Add(new WorkerInfo(r.GetString(0), r.GetString(1), r.GetInt32(2), r.GetInt32(3), r.GetDateTime(4), r.GetDateTime(5),
-                r.GetInt64(6), r.GetInt64(7), Convert.ToInt32(r.GetValue(8), System.Globalization.CultureInfo.InvariantCulture) == 1));
+                r.GetInt64(6), r.GetInt64(7), Convert.ToInt32(r.GetValue(8), System.Globalization.CultureInfo.InvariantCulture) == 1,
+                r.IsDBNull(9) ? null : r.GetInt64(9), r.IsDBNull(10) ? null : r.GetString(10), r.IsDBNull(11) ? null : r.GetDateTime(11)));
         return list;
     }
 }
