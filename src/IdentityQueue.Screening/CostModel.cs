@@ -7,14 +7,15 @@ using IdentityQueue.Algebra.Syntax;
 namespace IdentityQueue.Screening;
 
 /// <summary>
-/// What one trial of a compiled program costs, counted before it runs: field operations of the plain instructions (one
-/// each) and of the kernels (powers, inverses, determinants, Pfaffians, permanents), with the largest piece named for the
-/// messages. Immutable.
+/// What one trial of a compiled program costs, counted before it runs, in field operations of three kinds that run at
+/// different speeds: plain instructions (with the multiplications of powers and inverses), the Gray-code walk of
+/// permanents (vectorised across the lanes of a block), and eliminations (determinants and Pfaffians, lane by lane). The
+/// largest piece is named for the messages. Immutable.
 /// </summary>
-public readonly record struct TrialCost(double Instructions, double KernelOperations, string Largest)
+public readonly record struct TrialCost(double Instructions, double PermanentOperations, double EliminationOperations, string Largest)
 {
     /// <summary>Field operations of one trial, all told.</summary>
-    public double FieldOperations => Instructions + KernelOperations;
+    public double FieldOperations => Instructions + PermanentOperations + EliminationOperations;
 
     /// <summary>
     /// Counts one trial of <paramref name="program"/>: an add, subtract, multiply, negate, constant or variable is one
@@ -27,42 +28,39 @@ public readonly record struct TrialCost(double Instructions, double KernelOperat
     /// </summary>
     public static TrialCost Of(StraightLineProgram program, bool oddCharacteristic)
     {
-        double kernel = 0, largest = 0;
+        double instructions = program.Length, permanents = 0, eliminations = 0, largest = program.Length;
         var largestName = $"{program.Length} instructions";
         foreach (var ins in program.Instructions)
         {
-            double ops;
-            string name;
             switch (ins.Op)
             {
                 case OpCode.Power:
-                    ops = 2.0 * Math.Max(1, (double)program.Exponents[ins.B].GetBitLength());
-                    name = $"a power with a {program.Exponents[ins.B].GetBitLength()}-bit exponent";
+                    instructions += 2.0 * Math.Max(1, (double)program.Exponents[ins.B].GetBitLength());
                     break;
                 case OpCode.Invert:
-                    ops = 64;
-                    name = "an inverse";
+                    instructions += 64;
                     break;
                 case OpCode.Determinant or OpCode.Pfaffian:
-                    ops = 2.0 * Math.Pow(ins.B, 3) / 3;
-                    name = $"{(ins.Op == OpCode.Determinant ? "determinant" : "Pfaffian")} of order {ins.B}";
+                {
+                    var ops = 2.0 * Math.Pow(ins.B, 3) / 3;
+                    eliminations += ops;
+                    if (ops > largest) (largest, largestName) = (ops, $"{(ins.Op == OpCode.Determinant ? "determinant" : "Pfaffian")} of order {ins.B}");
                     break;
+                }
                 case OpCode.Permanent:
-                    ops = PermanentOperations(ins.B, oddCharacteristic);
-                    name = $"permanent of order {ins.B}";
+                {
+                    var ops = PermanentCount(ins.B, oddCharacteristic);
+                    permanents += ops;
+                    if (ops > largest) (largest, largestName) = (ops, $"permanent of order {ins.B}");
                     break;
-                default:
-                    continue;
+                }
             }
-            kernel += ops;
-            if (ops > largest) (largest, largestName) = (ops, name);
         }
-        if (largest < program.Length) largestName = $"{program.Length} instructions";
-        return new TrialCost(program.Length, kernel, largestName);
+        return new TrialCost(instructions, permanents, eliminations, largestName);
     }
 
     /// <summary>Field operations of one permanent of order <paramref name="n"/> (see <see cref="Of"/>).</summary>
-    public static double PermanentOperations(int n, bool oddCharacteristic) =>
+    public static double PermanentCount(int n, bool oddCharacteristic) =>
         n <= 0 ? 1
         : oddCharacteristic && n >= 4 ? Math.Pow(2, n - 1) * (3 * n + 1)
         : Math.Pow(2, n) * (2 * n + 1);
@@ -71,20 +69,23 @@ public readonly record struct TrialCost(double Instructions, double KernelOperat
     public static string Log2Text(double operations) => $"2^{Math.Log2(Math.Max(operations, 1)):F0}";
 }
 
-/// <summary>How fast one rung evaluates here: nanoseconds per plain instruction and per kernel operation, per trial. Immutable.</summary>
-public sealed record RungSpeed(double NanosecondsPerInstruction, double NanosecondsPerKernelOperation)
+/// <summary>How fast one rung evaluates here: nanoseconds per operation of each kind of <see cref="TrialCost"/>, per trial. Immutable.</summary>
+public sealed record RungSpeed(double NanosecondsPerInstruction, double NanosecondsPerPermanentOperation, double NanosecondsPerEliminationOperation)
 {
+    /// <summary>One speed for every kind of operation.</summary>
+    public static RungSpeed Uniform(double nanoseconds) => new(nanoseconds, nanoseconds, nanoseconds);
+
     /// <summary>The estimated time of one trial of <paramref name="cost"/>.</summary>
     public TimeSpan TimeOf(TrialCost cost) =>
-        TimeSpan.FromSeconds(Math.Min((cost.Instructions * NanosecondsPerInstruction + cost.KernelOperations * NanosecondsPerKernelOperation) / 1e9,
-            TimeSpan.MaxValue.TotalSeconds / 2));
+        TimeSpan.FromSeconds(Math.Min((cost.Instructions * NanosecondsPerInstruction + cost.PermanentOperations * NanosecondsPerPermanentOperation
+            + cost.EliminationOperations * NanosecondsPerEliminationOperation) / 1e9, TimeSpan.MaxValue.TotalSeconds / 2));
 }
 
 /// <summary>
 /// The cost of a trial in time, per rung: a <see cref="TrialCost"/> times the rung's <see cref="RungSpeed"/> on this
 /// machine. <see cref="Calibrated"/> measures each rung (and field) once per process, the first time a costly program
 /// needs it, by running two small programs through the same trial runners the screen uses (a permanent for the kernel
-/// rate, a long product for the instruction rate; each at two sizes, the fastest of several runs). Programs under
+/// rate, a determinant for the elimination rate, a long product for the instruction rate; each at two sizes, the fastest of several runs). Programs under
 /// <see cref="CheapOperations"/> are never measured for: one trial of them takes well under a second on any rung.
 /// Thread-safe.
 /// </summary>
@@ -92,6 +93,9 @@ public sealed class CostModel
 {
     /// <summary>Below this many field operations a trial is cheap on every rung, and no rung is calibrated for it.</summary>
     public const double CheapOperations = 1 << 16;
+
+    /// <summary>How long a calibration runs its programs before it measures them (so that the JIT has optimised the kernels).</summary>
+    public static readonly TimeSpan WarmUp = TimeSpan.FromMilliseconds(400);
 
     /// <summary>The process's calibrated model.</summary>
     public static CostModel Calibrated { get; } = new(null);
@@ -117,21 +121,33 @@ public sealed class CostModel
         _fixed ?? _speeds.GetOrAdd($"{field}|{rung.PrimeBits}|{rung.ExtensionDegree}", _ => new Lazy<RungSpeed>(() => Calibrate(field, rung))).Value;
 
     /// <summary>
-    /// Measures <paramref name="rung"/>: permanents of two orders (kernel operations) and products of two lengths (plain
-    /// instructions). The rate is the slope between the two sizes, so that a trial's fixed costs (drawing the prime and the
-    /// point, preparing the constants) do not count as operations.
+    /// Measures <paramref name="rung"/>: products of two lengths (plain instructions), permanents of two orders and
+    /// determinants of two orders. Each rate is the slope between the two sizes, so that a trial's fixed costs (drawing the
+    /// prime and the point, preparing the constants) do not count as operations.
     /// </summary>
     public static RungSpeed Calibrate(FieldSpec field, Rung rung)
     {
         var fast = field.IsRationals && rung.PrimeBits <= 127;
         var (small, large) = fast ? (11, 15) : (6, 9);
+        var (smallDet, largeDet) = fast ? (24, 64) : (8, 16);
         var odd = !field.Characteristic.IsEven || field.IsRationals;
-        var perInstruction = Slope(Compile("prod(k in 1..500: x + k) = 0", field), Compile("prod(k in 1..2500: x + k) = 0", field), rung,
-            c => TrialCost.Of(c.Program, odd).Instructions);
-        var perKernel = Slope(Compile(Permanent(small), field), Compile(Permanent(large), field), rung,
-            c => TrialCost.Of(c.Program, odd).KernelOperations);
-        return new RungSpeed(Math.Max(perInstruction, 0.05), Math.Max(perKernel, 0.05));
+        var products = (Compile("prod(k in 1..500: x + k) = 0", field), Compile("prod(k in 1..2500: x + k) = 0", field));
+        var permanents = (Compile(Permanent(small), field), Compile(Permanent(large), field));
+        var determinants = (Compile(Determinant(smallDet), field), Compile(Determinant(largeDet), field));
+        // Warm up first: early in a process the kernels run unoptimised code (tiered JIT) several times slower, and the
+        // rates must be those of the optimised code that screens for the rest of the process.
+        var warm = System.Diagnostics.Stopwatch.StartNew();
+        do
+        {
+            foreach (var c in new[] { products.Item2, permanents.Item2, determinants.Item2 }) FastestTrial(c, rung, runs: 1);
+        } while (warm.Elapsed < WarmUp);
+        var perInstruction = Slope(products.Item1, products.Item2, rung, c => TrialCost.Of(c.Program, odd).Instructions);
+        var perPermanent = Slope(permanents.Item1, permanents.Item2, rung, c => TrialCost.Of(c.Program, odd).PermanentOperations);
+        var perElimination = Slope(determinants.Item1, determinants.Item2, rung, c => TrialCost.Of(c.Program, odd).EliminationOperations);
+        return new RungSpeed(Math.Max(perInstruction, 0.05), Math.Max(perPermanent, 0.05), Math.Max(perElimination, 0.05));
     }
+
+    private static string Determinant(int n) => $"det(matrix(i in 1..{n}, j in 1..{n}: a[i,j])) = 0";
 
     private static string Permanent(int n) => $"perm(matrix(i in 1..{n}, j in 1..{n}: a[i,j])) = 0";
 
@@ -146,13 +162,13 @@ public sealed class CostModel
     }
 
     /// <summary>Microseconds of one trial of <paramref name="identity"/> on <paramref name="rung"/>, the fastest of several runs.</summary>
-    private static double FastestTrial(CompiledIdentity identity, Rung rung)
+    private static double FastestTrial(CompiledIdentity identity, Rung rung, int runs = 25)
     {
         var best = double.MaxValue;
         var block = BlockTrialRunner.Handles(identity, rung) ? BlockProgram.Prepare(identity.Program) : null;
         var seeds = new ulong[block is null ? 1 : BlockTrialRunner.MaxLanes(rung)];
         var clock = System.Diagnostics.Stopwatch.StartNew();
-        for (var run = 0; run < 25 && (run < 3 || clock.ElapsedMilliseconds < 40); run++)
+        for (var run = 0; run < runs && (run < 3 || clock.ElapsedMilliseconds < 40); run++)
         {
             for (var l = 0; l < seeds.Length; l++) seeds[l] = (ulong)(run * 64 + l + 1);
             var micros = block is null
