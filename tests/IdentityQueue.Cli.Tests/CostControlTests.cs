@@ -21,6 +21,7 @@ public sealed class CostControlTests(ITestOutputHelper log) : IDisposable
     private readonly string _dir = Directory.CreateTempSubdirectory("idq-cost-").FullName;
     private readonly List<string> _databases = [];
     private readonly List<Process> _processes = [];
+    private readonly Dictionary<Process, StringBuilder> _logs = [];
 
     public void Dispose()
     {
@@ -61,7 +62,14 @@ public sealed class CostControlTests(ITestOutputHelper log) : IDisposable
         p.BeginOutputReadLine();
         p.BeginErrorReadLine();
         _processes.Add(p);
+        _logs[p] = text;
         return p;
+    }
+
+    private string Log(Process p)
+    {
+        var text = _logs[p];
+        lock (text) return text.ToString();
     }
 
     private static void WaitFor(Func<bool> condition, TimeSpan limit, string what)
@@ -200,6 +208,41 @@ public sealed class CostControlTests(ITestOutputHelper log) : IDisposable
         // signed off: no worker is left that others would count as alive
         Assert.Equal(0, Scalar(location, "SELECT count(*) FROM worker WHERE stopped_at IS NULL"));
         Assert.Contains("no worker is running", Idq(["status", .. store]).Out);
+    }
+
+    [Fact]
+    public void Run_BusyWithTheMonster_StopsOnSigterm_LeavingItPending()
+    {
+        var db = Path.Combine(_dir, "run-stop.db");
+        Import(["--db", db]);
+        var location = StoreLocation.Sqlite(db);
+        var total = Scalar(location, "SELECT count(*) FROM candidate");
+        var run = StartIdq("run", "--db", db, "--workers", "2", "--time-per-candidate", "86400");
+        WaitFor(() => Scalar(location, SettledSql) == total - 1 && Scalar(location, "SELECT count(*) FROM result WHERE state = 'screening'") == 1,
+            TimeSpan.FromMinutes(3), "the ordinary candidates settling beside the monster");
+        var clock = Stopwatch.StartNew();
+        Terminate(run);
+        Assert.True(run.WaitForExit((int)StopWithin.TotalMilliseconds), $"idq run did not stop within {StopWithin.TotalSeconds} s of SIGTERM");
+        log.WriteLine($"idq run stopped {clock.Elapsed.TotalSeconds:F2} s after SIGTERM");
+        Assert.Equal(0, Scalar(location, "SELECT count(*) FROM result WHERE state IN ('queued', 'screening')"));
+        Assert.Equal("pending", States(location)["monster"]);
+        AssertOrdinaryVerdicts(States(location));
+    }
+
+    [Fact]
+    public void Check_StopsOnSigint_WithTheVerdictUndecided()
+    {
+        // an order-26 permanent: about 2^32 operations per trial, minutes here, inside a budget of an hour
+        var check = StartIdq("check", "perm(matrix(i in 1..26, j in 1..26: a[i,j])) = perm(transpose(matrix(i in 1..26, j in 1..26: a[i,j])))",
+            "--time-per-candidate", "3600", "--seed", "3");
+        WaitFor(() => Log(check).Contains("one trial needs about", StringComparison.Ordinal), TimeSpan.FromSeconds(60), "check announcing the long trial");
+        var clock = Stopwatch.StartNew();
+        using (var kill = Process.Start("kill", ["-INT", check.Id.ToString(CultureInfo.InvariantCulture)])!) kill.WaitForExit();
+        Assert.True(check.WaitForExit((int)StopWithin.TotalMilliseconds), "idq check did not stop after SIGINT");
+        check.WaitForExit();
+        log.WriteLine($"idq check stopped {clock.Elapsed.TotalSeconds:F2} s after SIGINT:\n{Log(check)}");
+        Assert.Equal(ExitCodes.Undecided, check.ExitCode);
+        Assert.Contains("undecided: stopped by a signal after 0 trials", Log(check));
     }
 
     /// <summary>
