@@ -9,7 +9,9 @@ namespace IdentityQueue.Worker;
 /// <summary>
 /// The Hangfire job: screens one chunk of candidates for one stage. It takes only ids, and it may run twice or stop
 /// halfway (at-least-once delivery): settled candidates are skipped, trials are keyed (candidate, seq) with points derived
-/// from the catalogue's seed, so a second run recomputes exactly what the first stored and stores nothing twice.
+/// from the catalogue's seed, so a second run recomputes exactly what the first stored and stores nothing twice. Verdicts
+/// are saved as they are reached (at least every <see cref="WorkerSettings.SaveEvery"/>), candidates estimated slow are
+/// screened after the rest of the chunk, and a stop (the job's token) cancels the running trial, saves and releases.
 /// </summary>
 public sealed class ScreeningJob(IScreeningStore store, WorkerSettings settings, WorkerStats stats, CandidateCompiler compiler, ILogger<ScreeningJob> log)
 {
@@ -124,12 +126,5 @@ public sealed class ScreeningJob(IScreeningStore store, WorkerSettings settings,
         {
             stats.End(work.Id);
         }
-    }
-
-    /// <summary>Screens one candidate; a deterministic failure of this candidate is its outcome, never the chunk's.</summary>
-    internal CandidateOutcome ScreenOne(CandidateWork work, int stage, CancellationToken cancellation)
-    {
-        var prepared = Prepare(work, stage);
-        return prepared.Outcome ?? Screen(prepared, cancellation);
     }
 }
