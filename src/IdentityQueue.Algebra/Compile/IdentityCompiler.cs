@@ -249,18 +249,31 @@ public static class IdentityCompiler
             return acc;
         }
 
+        /// <summary>
+        /// Left to right, except that scalar constant factors are folded together and multiplied in last: <c>3*x^2*y</c> and
+        /// <c>5*x^2*y*z</c> then share <c>x^2*y</c> (hash-consing), which keeps an expanded polynomial's program small.
+        /// Scalars commute with everything, so the value is the same.
+        /// </summary>
         public Value VisitProduct(ProductExpr node)
         {
             Step(node);
-            var factors = node.Factors;
-            var acc = factors[0].Value.Accept(this);
-            for (var i = 1; i < factors.Count; i++)
+            Value? acc = null;
+            var constant = -1; // the register of the constant factors' product, or none
+            foreach (var factor in node.Factors)
             {
-                var factor = factors[i];
                 var value = factor.Value.Accept(this);
-                acc = factor.Divide ? Divide(acc, value, factor) : Multiply(acc, value, factor.OperatorPosition);
+                if (!value.IsMatrix && _b.TryGetConstant(value.Scalar, out var c))
+                {
+                    if (factor.Divide && c.IsZero) throw new CompileError(factor.OperatorPosition, "division by zero");
+                    var register = factor.Divide ? _b.Invert(value.Scalar) : value.Scalar;
+                    constant = constant < 0 ? register : _b.Multiply(constant, register);
+                    continue;
+                }
+                if (acc is null) acc = factor.Divide ? Divide(Value.Of(_b.Constant(Rational.One)), value, factor) : value;
+                else acc = factor.Divide ? Divide(acc.Value, value, factor) : Multiply(acc.Value, value, factor.OperatorPosition);
             }
-            return acc;
+            if (acc is null) return Value.Of(constant);
+            return constant < 0 ? acc.Value : Multiply(acc.Value, Value.Of(constant), node.Position);
         }
 
         public Value VisitBinary(BinaryExpr node)
