@@ -8,8 +8,11 @@ public sealed record Limits
 {
     public static readonly Limits Default = new();
 
-    /// <summary>Longest catalogue line, in characters.</summary>
-    public int MaxLineLength { get; init; } = 1 << 20;
+    /// <summary>
+    /// Longest catalogue line (and JSONL/CSV field), in characters: 64 MiB, room for an expanded polynomial of about
+    /// 10^6 terms. A line is read with its bytes and its text in memory, never more than that line's own multiple.
+    /// </summary>
+    public int MaxLineLength { get; init; } = 1 << 26;
 
     /// <summary>Deepest nesting of parentheses, brackets and operators in one expression.</summary>
     public int MaxNestingDepth { get; init; } = 500;

@@ -69,6 +69,7 @@ public static class ImportCommand
             output.WriteLine($"{path}: catalogue '{s.Catalogue}' (id {s.CatalogueId}, seed {s.Seed}): " +
                 $"{Count(s.Entries, "entry", "entries")}, {Count(s.Instances, "instance", "instances")}, " +
                 $"{Count(s.Rejections, "rejection", "rejections")} ({s.Lines} lines in {s.Elapsed.TotalSeconds:F1} s{rate})");
+            foreach (var w in s.Warnings) error.WriteLine($"idq import: warning: {path}: {w}");
             foreach (var r in s.FirstRejections.Take(RejectionsShown - shown)) output.WriteLine($"  rejected {r}");
             shown += Math.Min(s.FirstRejections.Count, RejectionsShown - shown);
             if (s.Rejections > s.FirstRejections.Count)

@@ -16,7 +16,9 @@ internal static class QueryCommands
         var db = new StoreOptions();
         var csv = new Option<bool>("--csv") { Description = "Print CSV instead of a table." };
         var json = new Option<bool>("--json") { Description = "Print a JSON array of objects instead of a table." };
-        var command = new Command("sql", "Run a read-only SQL query against the store and print the rows.\n\n" +
+        var command = new Command("sql", "Run a read-only SQL query against the store and print the rows. It never changes the store:\n" +
+            "to add candidates, import a file (idq import FILE) or insert rows with a SQLite client (sqlite3 STORE.db \"INSERT ...\")\n" +
+            "or psql; the next idq run screens them (README, SQL cookbook).\n\n" +
             "Examples:\n  idq sql \"select * from survivors\"\n  idq sql \"select family, first_refuted from families where refuted > 0\" --csv\n" +
             "  idq sql \"select label, witness_modulus, witness_point from verdicts where state = 'refuted'\" --json")
         { query, csv, json };
@@ -29,9 +31,21 @@ internal static class QueryCommands
                 return ExitCodes.BadInput;
             }
             QueryResult result;
+            var sql = parse.GetValue(query)!;
+            var location = db.Location(parse);
+            if (WriteKeyword(sql) is { } keyword)
+            {
+                error.WriteLine($"idq sql: {ReadOnlyMessage(keyword, location)}");
+                return ExitCodes.BadInput;
+            }
             try
             {
-                result = ReadOnlyQuery.Run(db.Location(parse), parse.GetValue(query)!);
+                result = ReadOnlyQuery.Run(location, sql);
+            }
+            catch (System.Data.Common.DbException e) when (IsReadOnlyRefusal(e))
+            {
+                error.WriteLine($"idq sql: {ReadOnlyMessage(null, location)} ({e.Message})");
+                return ExitCodes.BadInput;
             }
             catch (System.Data.Common.DbException e)
             {
@@ -49,6 +63,42 @@ internal static class QueryCommands
             return ExitCodes.Success;
         });
         return command;
+    }
+
+    private static readonly string[] WriteKeywords =
+        ["INSERT", "UPDATE", "DELETE", "REPLACE", "UPSERT", "MERGE", "CREATE", "DROP", "ALTER", "TRUNCATE", "VACUUM", "REINDEX", "ATTACH", "DETACH", "GRANT", "REVOKE"];
+
+    /// <summary>The first word of the statement (after spaces and comments) when it is one that writes, else null.</summary>
+    internal static string? WriteKeyword(string sql)
+    {
+        var i = 0;
+        while (i < sql.Length)
+        {
+            if (char.IsWhiteSpace(sql[i])) i++;
+            else if (sql.AsSpan(i).StartsWith("--", StringComparison.Ordinal)) { var end = sql.IndexOf('\n', i); i = end < 0 ? sql.Length : end + 1; }
+            else if (sql.AsSpan(i).StartsWith("/*", StringComparison.Ordinal)) { var end = sql.IndexOf("*/", i + 2, StringComparison.Ordinal); i = end < 0 ? sql.Length : end + 2; }
+            else break;
+        }
+        var start = i;
+        while (i < sql.Length && char.IsAsciiLetter(sql[i])) i++;
+        var word = sql[start..i].ToUpperInvariant();
+        return WriteKeywords.Contains(word) ? word : null;
+    }
+
+    /// <summary>SQLite's SQLITE_READONLY (8) or PostgreSQL's read_only_sql_transaction (25006).</summary>
+    private static bool IsReadOnlyRefusal(System.Data.Common.DbException e) =>
+        e is Microsoft.Data.Sqlite.SqliteException { SqliteErrorCode: 8 } || e.SqlState == "25006";
+
+    /// <summary>What to say to a statement that would write: idq sql is read-only, and how rows are added instead.</summary>
+    internal static string ReadOnlyMessage(string? keyword, StoreLocation location)
+    {
+        var client = location.IsPostgreSql
+            ? $"psql \"{location.Display}\""
+            : $"sqlite3 {(location.Target.Contains(' ', StringComparison.Ordinal) ? $"\"{location.Target}\"" : location.Target)}";
+        return $"idq sql is read-only{(keyword is null ? "" : $" and does not run {keyword}")}: it answers queries (SELECT, WITH) and never changes the store. " +
+            "To add candidates, import a catalogue file (idq import FILE), or insert rows with a database client, e.g. " +
+            $"{client} \"INSERT INTO candidate (catalogue_id, label, lhs, rhs) VALUES (1, 'my-guess', '(x+1)^3', 'x^3 + 3*x^2 + 3*x + 1')\" " +
+            "(catalogue ids: idq sql \"SELECT id, name FROM catalogue\"); the next idq run screens the new rows";
     }
 
     internal static string Text(object? value) => value switch

@@ -122,6 +122,57 @@ public sealed class StoreEndToEndTests : IDisposable
         Assert.Equal("refuted", states["by-hand"]);
     }
 
+    /// <summary>The SQL of the README's cookbook entry "add a candidate by hand", as written there.</summary>
+    private static string ReadmeInsert()
+    {
+        var folder = new DirectoryInfo(AppContext.BaseDirectory);
+        while (folder is not null && !File.Exists(Path.Combine(folder.FullName, "IdentityQueue.sln"))) folder = folder.Parent;
+        Assert.NotNull(folder);
+        var lines = File.ReadAllLines(Path.Combine(folder.FullName, "README.md"));
+        var start = Array.FindIndex(lines, l => l.StartsWith("-- add a candidate by hand", StringComparison.Ordinal));
+        Assert.True(start > 0, "the README's cookbook has no 'add a candidate by hand' entry");
+        return string.Join("\n", lines.Skip(start + 1).TakeWhile(l => !l.StartsWith("```", StringComparison.Ordinal) && !l.StartsWith("-- ", StringComparison.Ordinal)));
+    }
+
+    [Fact]
+    public void ReadmeCookbookInsert_WorksAsWritten_AndIdqSqlSaysItIsReadOnly()
+    {
+        Idq("init", "--db", Db);
+        var insert = ReadmeInsert();
+        Assert.Contains("INSERT INTO candidate", insert);
+
+        var refused = Idq("sql", insert, "--db", Db);
+        Assert.Equal(2, refused.Code);
+        Assert.Contains("idq sql is read-only and does not run INSERT", refused.Err);
+        Assert.Contains($"sqlite3 {Db} \"INSERT INTO candidate", refused.Err);
+        Assert.Equal(0L, Query(Db, "SELECT COUNT(*) FROM candidate").Single()[0]);
+
+        // As the README says: run it with a SQLite client, then idq run.
+        using (var c = new SqliteConnection($"Data Source={Db};Pooling=False"))
+        {
+            c.Open();
+            using var cmd = c.CreateCommand();
+            cmd.CommandText = insert;
+            cmd.ExecuteNonQuery();
+        }
+        Assert.Equal(0, Idq("run", "--db", Db).Code);
+        // (x+1)^3 = x^3 + 3x^2 + 3x + 1: the binomial theorem for n = 3 (common practice).
+        Assert.Equal(["my-guess", "survived"], Query(Db, "SELECT label, state FROM verdicts").Single());
+    }
+
+    [Fact]
+    public void ImportOfACsvWithAnExtraColumn_WarnsOnce_AndImportsEveryRow()
+    {
+        var file = Path.Combine(_dir, "extra.csv");
+        File.WriteAllText(file, "label,lhs,rhs,reference\na,(x+1)^2,x^2 + 2*x + 1,Knuth\nb,x*y,y*x,\n");
+        Idq("init", "--db", Db);
+        var import = Idq("import", file, "--db", Db);
+        Assert.Equal(0, import.Code);
+        Assert.Contains("2 instances, 0 rejections", import.Out);
+        Assert.Equal($"idq import: warning: {file}: line 1: the header's column \"reference\" is not one of label, lhs, rhs, identity, over, for and is ignored in every row",
+            import.Err.Trim());
+    }
+
     [Fact]
     public void HigherTarget_AddsTrialsToSurvivorsOnly()
     {

@@ -13,11 +13,19 @@ internal sealed class ProgramBuilder(Limits limits)
     /// <summary>Folded constants larger than this stay as instructions and are evaluated in the field.</summary>
     public const int MaxFoldedBits = 1 << 14;
 
+    /// <summary>
+    /// A variable's powers up to this exponent are a chain x^k = x^(k−1)·x, shared by every term that uses any of them, so
+    /// an expanded polynomial pays one instruction per distinct power (a Power instruction costs ~2·log2 k products each).
+    /// </summary>
+    public const int MaxChainedExponent = 64;
+
     private readonly List<Instruction> _instructions = [];
     private readonly Dictionary<Instruction, int> _index = [];
     private readonly List<Rational> _constants = [];
     private readonly Dictionary<Rational, int> _constantIndex = [];
     private readonly List<BigInteger> _exponents = [];
+    private readonly Dictionary<BigInteger, int> _exponentIndex = [];
+    private readonly Dictionary<int, List<int>> _powerChains = []; // variable register → its powers x^1, x^2, … built so far
     private readonly List<int> _operands = [];
     private readonly Dictionary<string, int> _variableIndex = new(StringComparer.Ordinal);
     private readonly List<string> _variables = [];
@@ -128,9 +136,22 @@ internal sealed class ProgramBuilder(Limits limits)
             var bits = Math.Max(x.Numerator.GetBitLength(), x.Denominator.GetBitLength());
             if (exponent * bits <= MaxFoldedBits) return Constant(Rational.Pow(x, (int)exponent));
         }
-        var e = _exponents.IndexOf(exponent);
-        if (e < 0) { e = _exponents.Count; _exponents.Add(exponent); }
+        if (_instructions[a].Op == OpCode.Variable && exponent <= MaxChainedExponent) return ChainedPower(a, (int)exponent);
+        if (!_exponentIndex.TryGetValue(exponent, out var e))
+        {
+            e = _exponents.Count;
+            _exponents.Add(exponent);
+            _exponentIndex[exponent] = e;
+        }
         return Emit(new Instruction(OpCode.Power, a, e));
+    }
+
+    /// <summary>x^k of a variable x from its chain of powers, extended as far as needed (dead links are removed by <see cref="Build"/>).</summary>
+    private int ChainedPower(int x, int k)
+    {
+        if (!_powerChains.TryGetValue(x, out var chain)) _powerChains[x] = chain = [x];
+        while (chain.Count < k) chain.Add(Emit(new Instruction(OpCode.Multiply, Math.Min(chain[^1], x), Math.Max(chain[^1], x))));
+        return chain[k - 1];
     }
 
     /// <summary>A determinant, permanent or Pfaffian of a square matrix of registers (row-major).</summary>

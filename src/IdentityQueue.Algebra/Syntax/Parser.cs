@@ -21,6 +21,8 @@ internal sealed class Parser
     private readonly Limits _limits;
     private readonly int _maxDepth;
     private readonly Lexer _lexer;
+    private readonly Dictionary<string, string>.AlternateLookup<ReadOnlySpan<char>> _names =
+        new Dictionary<string, string>(StringComparer.Ordinal).GetAlternateLookup<ReadOnlySpan<char>>();
     private Token _token;
     private Token _previous;
     private bool _hasPrevious;
@@ -603,7 +605,18 @@ internal sealed class Parser
 
     private SourcePosition At(Token token) => new(_line, token.Column);
 
-    private string TextOf(Token token) => _text.Substring(token.Start, token.Length);
+    /// <summary>
+    /// The token's text, one string per distinct text in the line: an expanded polynomial names the same few variables
+    /// hundreds of thousands of times, and a string per occurrence would be a fifth of its tree.
+    /// </summary>
+    private string TextOf(Token token)
+    {
+        var span = _text.AsSpan(token.Start, token.Length);
+        if (_names.TryGetValue(span, out var name)) return name;
+        name = span.ToString();
+        _names[name] = name;
+        return name;
+    }
 
     private string Describe(Token token) =>
         token.Kind == TokenKind.End ? SyntaxMessages.EndOfLine : SyntaxMessages.Quote(_text.AsSpan(token.Start, token.Length));

@@ -37,11 +37,27 @@ public sealed class CatalogueImporter(StoreConnection store)
         if (!Extensions.Contains(extension))
             return $"{path}: unknown catalogue format '{extension}' (the formats are {string.Join(", ", Extensions)})";
         if (options.Seed is < 0) return $"the seed must be between 0 and 2^63 - 1, got {options.Seed}";
+        if (NotText(path) is { } notText) return $"{path}: {notText}; nothing was imported";
         var name = options.CatalogueName ?? DefaultName(path);
         if (string.IsNullOrWhiteSpace(name)) return $"{path}: the catalogue name is empty; give one with --catalogue NAME";
         if (NameTaken(name))
             return $"{path}: the store already has a catalogue named '{name}'; import it under another name with --catalogue NAME";
         return null;
+    }
+
+    /// <summary>Why the file cannot be a catalogue from its first bytes: it is empty, or holds NUL bytes (binary, or UTF-16 text); else null.</summary>
+    private static string? NotText(string path)
+    {
+        using var stream = new FileStream(path, FileMode.Open, FileAccess.Read, FileShare.Read);
+        if (stream.Length == 0) return "the file is empty";
+        var head = new byte[8192];
+        var count = stream.ReadAtLeast(head, head.Length, throwOnEndOfStream: false);
+        var nul = Array.IndexOf(head, (byte)0, 0, count);
+        if (nul < 0) return null;
+        var utf16 = count >= 2 && (head[0], head[1]) is (0xFF, 0xFE) or (0xFE, 0xFF);
+        return utf16
+            ? "the file is UTF-16 text; a catalogue is UTF-8 text (convert it, e.g. iconv -f UTF-16 -t UTF-8)"
+            : $"the file is not text (byte {nul + 1} is NUL); a catalogue is UTF-8 text, one entry per line";
     }
 
     private bool NameTaken(string name)
@@ -78,7 +94,12 @@ public sealed class CatalogueImporter(StoreConnection store)
         try
         {
             var summary = Load(path, catalogueId, name, seed, options, clock);
-            return new ImportResult(summary, null);
+            if (summary.Entries > 0 || summary.Rejections > 0) return new ImportResult(summary, null);
+            // Only blank lines, comments or a CSV header: no catalogue is left behind for it.
+            using var delete = _db.Command("DELETE FROM catalogue WHERE id = @id");
+            delete.Parameter("@id", catalogueId);
+            delete.ExecuteNonQuery();
+            return ImportResult.Refused($"{path}: the file has no entries ({summary.Lines} lines, all blank, comments or a header); nothing was imported");
         }
         catch
         {
@@ -103,6 +124,7 @@ public sealed class CatalogueImporter(StoreConnection store)
         using var rows = new Rows(_db, catalogueId, path);
         int lines = 0, entries = 0, instances = 0, rejections = 0;
         var first = new List<Rejection>();
+        var labels = new Dictionary<string, int>(StringComparer.Ordinal); // a label given in the file → the line it is on
 
         void Reject(int line, string raw, string reason)
         {
@@ -122,6 +144,8 @@ public sealed class CatalogueImporter(StoreConnection store)
                 }
                 else if (Interpret(reader, line, fileName, options) is var (made, reason))
                 {
+                    if (reason is null && made?.Label is { } label && !labels.TryAdd(label, line.Number))
+                        reason = $"line {line.Number}: the label '{label}' is already used on line {labels[label]}; labels must be unique in a catalogue";
                     if (reason is not null) Reject(line.Number, SourceLines.Truncate(line.Text), reason);
                     else if (made is not null)
                     {
@@ -158,11 +182,14 @@ public sealed class CatalogueImporter(StoreConnection store)
             counts.ExecuteNonQuery();
         }
         finish.Commit();
-        return new ImportSummary(catalogueId, name, path, seed, lines, entries, instances, rejections, first, clock.Elapsed);
+        return new ImportSummary(catalogueId, name, path, seed, lines, entries, instances, rejections, first, clock.Elapsed)
+        {
+            Warnings = reader.Warnings.ToList(),
+        };
     }
 
-    /// <summary>An entry's candidates: the sides and field as stored, and one label and params per instance.</summary>
-    private sealed record Made(string? Family, string Lhs, string Rhs, string Field, IReadOnlyList<(string Label, string? Params)> Instances);
+    /// <summary>An entry's candidates: the label given in the file (or null), the sides and field as stored, and one label and params per instance.</summary>
+    private sealed record Made(string? Label, string? Family, string Lhs, string Rhs, string Field, IReadOnlyList<(string Label, string? Params)> Instances);
 
     /// <summary>
     /// One line to its candidates, or the reason it is rejected; (null, null) for a line with no entry. A failure in
@@ -181,7 +208,7 @@ public sealed class CatalogueImporter(StoreConnection store)
             var rhs = ExprPrinter.Print(entry.Right);
             var field = entry.Field.ToString();
             var ownLabel = entry.Label ?? $"{fileName}:{line.Number}";
-            if (!entry.IsFamily) return (new Made(null, lhs, rhs, field, [(ownLabel, null)]), null);
+            if (!entry.IsFamily) return (new Made(entry.Label, null, lhs, rhs, field, [(ownLabel, null)]), null);
             var names = entry.Parameters.Select(p => p.Name).ToList();
             var instances = new List<(string, string?)>(expansion.Instances.Count);
             var label = new StringBuilder();
@@ -196,7 +223,7 @@ public sealed class CatalogueImporter(StoreConnection store)
                 }
                 instances.Add((label.Append(']').ToString(), ParamsText.Write(ordered)));
             }
-            return (new Made(ownLabel, lhs, rhs, field, instances), null);
+            return (new Made(entry.Label, ownLabel, lhs, rhs, field, instances), null);
         }
         catch (Exception e) when (e is not OutOfMemoryException)
         {

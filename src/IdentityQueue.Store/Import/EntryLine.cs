@@ -57,4 +57,7 @@ internal readonly record struct LineResult(IdentityEntry? Entry, string? Rejecti
 internal interface IEntryReader
 {
     LineResult Read(string text, int line);
+
+    /// <summary>What the format accepted but the user should hear about, each once (an ignored CSV column).</summary>
+    IReadOnlyList<string> Warnings => [];
 }

@@ -38,7 +38,11 @@ public sealed record ImportSummary(
     int Instances,
     int Rejections,
     IReadOnlyList<Rejection> FirstRejections,
-    TimeSpan Elapsed);
+    TimeSpan Elapsed)
+{
+    /// <summary>What was accepted but deserves a word (an unknown CSV column, ignored), each once; empty for most imports.</summary>
+    public IReadOnlyList<string> Warnings { get; init; } = [];
+}
 
 /// <summary>The outcome of importing one file: a summary, or why the import was refused before anything was stored.</summary>
 public sealed record ImportResult(ImportSummary? Summary, string? Refusal)

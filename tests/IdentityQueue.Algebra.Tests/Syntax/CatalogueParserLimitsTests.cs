@@ -108,11 +108,20 @@ public class CatalogueParserLimitsTests
         Assert.StartsWith("expression nested too deeply for the parser's stack", result.Error!.Message);
     }
 
+    private static readonly Limits OneMebibyte = Limits.Default with { MaxLineLength = 1 << 20 };
+
+    [Fact]
+    public void DefaultLineLimitIsSixtyFourMebibytes()
+    {
+        // Issue #18: room for an expanded polynomial of about 10^6 terms.
+        Assert.Equal(64 * 1024 * 1024, Limits.Default.MaxLineLength);
+    }
+
     [Fact]
     public void TenMegabyteLineGivesTheLengthMessageBeforeReadingIt()
     {
         var line = new string('x', 10 * 1024 * 1024);
-        var result = CatalogueParser.ParseLine(line, 5);
+        var result = CatalogueParser.ParseLine(line, 5, OneMebibyte);
 
         Assert.False(result.Success);
         Assert.Equal("line is 10485760 characters long; the limit MaxLineLength is 1048576", result.Error!.Message);
@@ -123,9 +132,9 @@ public class CatalogueParserLimitsTests
     public void TenMegabyteTextIsRefusedByEveryEntryPoint()
     {
         var text = new string('(', 10 * 1024 * 1024);
-        Assert.StartsWith("line is 10485760 characters long", CatalogueParser.ParseExpression(text).Error!.Message);
-        Assert.StartsWith("line is 10485760 characters long", CatalogueParser.ParseIdentity(text).Error!.Message);
-        Assert.StartsWith("line is 10485760 characters long", CatalogueParser.ParseField(text).Error!.Message);
+        Assert.StartsWith("line is 10485760 characters long", CatalogueParser.ParseExpression(text, OneMebibyte).Error!.Message);
+        Assert.StartsWith("line is 10485760 characters long", CatalogueParser.ParseIdentity(text, OneMebibyte).Error!.Message);
+        Assert.StartsWith("line is 10485760 characters long", CatalogueParser.ParseField(text, OneMebibyte).Error!.Message);
     }
 
     [Fact]

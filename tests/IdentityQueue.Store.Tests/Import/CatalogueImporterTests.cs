@@ -288,11 +288,11 @@ public sealed class CatalogueImporterTests
     public void Csv_WithABadHeader_RejectsEveryRowAndSaysWhy()
     {
         using var store = TempStore.Create();
-        var summary = store.Import(store.File("c.csv", "name,lhs,rhs\na,x,x\nb,y,y\n"));
+        var summary = store.Import(store.File("c.csv", "name,left,right\na,x,x\nb,y,y\n"));
         Assert.Equal(0, summary.Instances);
         Assert.Equal(3, summary.Rejections);
         var reasons = store.Rows("SELECT reason FROM rejection ORDER BY line").Select(r => (string)r[0]!).ToList();
-        Assert.Contains("unknown column \"name\"", reasons[0]);
+        Assert.Contains("the header must name the columns lhs and rhs", reasons[0]);
         Assert.All(reasons.Skip(1), r => Assert.Contains("header on line 1 is not valid", r));
     }
 
