@@ -16,7 +16,7 @@ namespace IdentityQueue.Algebra.Syntax;
 /// </summary>
 public sealed class ExprPrinter : IExprVisitor<StringBuilder>
 {
-    private const int AdditiveLevel = 1, MultiplicativeLevel = 2, UnaryLevel = 3, PowerLevel = 4, AtomLevel = 5;
+    private const int ComparisonLevel = 0, AdditiveLevel = 1, MultiplicativeLevel = 2, UnaryLevel = 3, PowerLevel = 4, AtomLevel = 5;
 
     private readonly StringBuilder _output;
 
@@ -100,6 +100,14 @@ public sealed class ExprPrinter : IExprVisitor<StringBuilder>
 
     public StringBuilder VisitBinary(BinaryExpr node)
     {
+        if (Builtins.IsComparison(node.Operator))
+        {
+            // The condition of iverson/when: its operands are expressions, never comparisons.
+            WriteOperand(node.Left, AdditiveLevel);
+            _output.Append(' ').Append(Builtins.Symbol(node.Operator)).Append(' ');
+            WriteOperand(node.Right, AdditiveLevel);
+            return _output;
+        }
         WriteOperand(node.Left, AtomLevel);
         _output.Append('^');
         WriteOperand(node.Right, UnaryLevel);
@@ -149,6 +157,7 @@ public sealed class ExprPrinter : IExprVisitor<StringBuilder>
     /// <summary>How tightly the printed form of a node binds (higher binds tighter); a negative literal prints like a negation.</summary>
     internal static int Level(Expr expr) => expr switch
     {
+        BinaryExpr { Operator: >= BinaryOperator.Less } => ComparisonLevel,
         SumExpr => AdditiveLevel,
         ProductExpr => MultiplicativeLevel,
         BinaryExpr => PowerLevel,
