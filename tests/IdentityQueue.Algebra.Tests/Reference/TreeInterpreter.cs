@@ -260,6 +260,11 @@ public sealed class TreeInterpreter<TField, T> : IExprVisitor<FieldValue<T>>
             }
             case Builtins.Identity:
                 return FieldValue<T>.FromMatrix(IdentityMatrix(Parameter(args[0], "id's order", 1, ReferenceLimits.MaxRangeLength)));
+            case Builtins.When:
+                return ParameterEvaluator.Evaluate(args[0], _environment).IsZero ? args[2].Accept(this) : args[1].Accept(this);
+            case Builtins.Min or Builtins.Max or Builtins.Floor or Builtins.Ceil or Builtins.Mod or Builtins.Gcd or Builtins.Abs
+                or Builtins.Delta or Builtins.Iverson:
+                return Scalar(_field.FromInteger(ParameterEvaluator.Evaluate(node, _environment)));
             default:
                 throw new ReferenceException($"unknown function {node.Function}");
         }
