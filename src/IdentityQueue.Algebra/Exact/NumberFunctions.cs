@@ -63,6 +63,7 @@ public static class NumberFunctions
         if (nValue.Sign < 0) throw new NumberFunctionError($"{name}'s first argument must be non-negative, but it is {nValue}");
         if (kValue.Sign < 0 || kValue > nValue) return BigInteger.Zero;
         if (kValue.IsZero) return nValue.IsZero ? BigInteger.One : BigInteger.Zero;
+        if (kValue == nValue) return BigInteger.One; // [n, n] = {n, n} = 1
         // Only the cells (m, j) with j ≤ k and m − j ≤ n − k reach (n, k): (k + 1)(n − k + 1) of them.
         var cells = (kValue + 1) * (nValue - kValue + 1);
         CheckWork(name, cells, limits);

@@ -121,5 +121,6 @@ public class NumberFunctionTests
         // F(92) < 2^63 fits; {n, 1} = 1 for any n needs no big numbers, only the (few) table cells.
         Assert.Equal(BigInteger.Parse("7540113804746346429"), NumberFunctions.Fibonacci(92, small));
         Assert.Equal(BigInteger.One, NumberFunctions.Stirling2(40, 1, small));
+        Assert.Equal(BigInteger.One, NumberFunctions.Stirling1(BigInteger.Pow(10, 12), BigInteger.Pow(10, 12), small)); // [n, n] = 1 without a table
     }
 }
