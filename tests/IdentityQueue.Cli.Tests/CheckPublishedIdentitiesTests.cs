@@ -59,6 +59,10 @@ public class CheckPublishedIdentitiesTests
         "qbinom(n, k, 1/q) = q^(k*(n-k))*qbinom(n, k, q) for n in 3..3, k in 1..1")]
     [InlineData("qbinom(m, j, q)*q^(j-m) = qbinom(m, j, q)/q^(m-j) + when(j > m, 0, 0) for m in 0..5, j in 0..8",
         "qbinom(m, j, q)*q^(j-m) = qbinom(m, j, q)*q^(m-j) for m in 3..3, j in 1..1")]
+    // binom(n, k) = n!/(k!(n−k)!) for 0 ≤ k ≤ n and 0 otherwise (common practice): a condition with 'and'; fact is never
+    // evaluated at a negative argument, because only when's chosen branch is.
+    [InlineData("binom(n, k) = when(k >= 0 and k <= n, fact(n)/(fact(k)*fact(n-k)), 0) for n in 0..10, k in -2..12",
+        "binom(n, k) = when(k >= 0 and k <= n, fact(n)/(fact(k)*fact(n-k)), 0) + iverson(k = n and n = 3 or k > 99) for n in 3..3, k in 3..3")]
     // (−1)^k for negative k, and x^(−k) = 1/x^k (common practice).
     [InlineData("(-1)^k*x^(-k)*(x^2 + x)^k = (-x - 1)^k for k in -6..6", "(-1)^k*x^(-k)*(x^2 + x)^k = (x + 1)^k for k in -3..-3")]
     public void PublishedIdentity_Survives_AndItsPerturbation_IsRefuted(string identity, string perturbed)

@@ -83,6 +83,8 @@ internal sealed class ParameterEvaluator(IReadOnlyDictionary<string, BigInteger>
             case BinaryOperator.GreaterOrEqual: return Truth(left >= right);
             case BinaryOperator.Equal: return Truth(left == right);
             case BinaryOperator.NotEqual: return Truth(left != right);
+            case BinaryOperator.And: return Truth(!left.IsZero && !right.IsZero);
+            case BinaryOperator.Or: return Truth(!left.IsZero || !right.IsZero);
         }
         if (!right.IsInteger)
             throw new CompileError(node.Right.Position, $"an exponent must be an integer, but it is {right}");

@@ -72,10 +72,10 @@ public sealed record ProductExpr(IReadOnlyList<ProductFactor> Factors, SourcePos
 
 /// <summary>
 /// The binary operators that are not chains (sums and products are <see cref="SumExpr"/> and <see cref="ProductExpr"/>): '^',
-/// and the comparisons (<see cref="Less"/> … <see cref="NotEqual"/>), read only as the condition of <c>iverson(...)</c> or
-/// <c>when(...)</c>, whose value is 1 or 0.
+/// and the comparisons (<see cref="Less"/> … <see cref="NotEqual"/>) with the connectives <see cref="And"/> and <see cref="Or"/>,
+/// read only as the condition of <c>iverson(...)</c> or <c>when(...)</c>, whose value is 1 or 0.
 /// </summary>
-public enum BinaryOperator { Power, Less, LessOrEqual, Greater, GreaterOrEqual, Equal, NotEqual }
+public enum BinaryOperator { Power, Less, LessOrEqual, Greater, GreaterOrEqual, Equal, NotEqual, And, Or }
 
 /// <summary><c>a ^ b</c> or a comparison <c>a &lt; b</c>; <see cref="SourcePosition"/> is that of the left operand, <see cref="OperatorPosition"/> that of the operator.</summary>
 public sealed record BinaryExpr(BinaryOperator Operator, Expr Left, Expr Right, SourcePosition At, SourcePosition OperatorPosition) : Expr(At)
@@ -172,9 +172,10 @@ public static class Builtins
     /// <summary>The functions whose first argument is a condition (a comparison).</summary>
     public static bool TakesCondition(string function) => function is Iverson or When;
 
+    /// <summary>True for the operators of a condition: a comparison, <c>and</c>, <c>or</c> (value 1 or 0).</summary>
     public static bool IsComparison(BinaryOperator op) => op >= BinaryOperator.Less;
 
-    /// <summary>The symbol of a comparison: <c>&lt; &lt;= &gt; &gt;= = !=</c>.</summary>
+    /// <summary>The symbol of a comparison or connective: <c>&lt; &lt;= &gt; &gt;= = != and or</c>.</summary>
     public static string Symbol(BinaryOperator op) => op switch
     {
         BinaryOperator.Less => "<",
@@ -183,9 +184,14 @@ public static class Builtins
         BinaryOperator.GreaterOrEqual => ">=",
         BinaryOperator.Equal => "=",
         BinaryOperator.NotEqual => "!=",
+        BinaryOperator.And => "and",
+        BinaryOperator.Or => "or",
         _ => throw new ArgumentOutOfRangeException(nameof(op), op, "not a comparison"),
     };
 
+    /// <summary>The connectives of conditions: <c>A &lt; B and C &lt; D or E = F</c> (<c>and</c> binds tighter).</summary>
+    public const string And = "and", Or = "or";
+
     /// <summary>Words that may not name a variable or parameter.</summary>
-    public static readonly IReadOnlySet<string> Reserved = new HashSet<string>(Arity.Keys) { Sum, Prod, Matrix, Let, "over", "for", "in" };
+    public static readonly IReadOnlySet<string> Reserved = new HashSet<string>(Arity.Keys) { Sum, Prod, Matrix, Let, And, Or, "over", "for", "in" };
 }

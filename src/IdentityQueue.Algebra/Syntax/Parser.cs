@@ -563,9 +563,33 @@ internal sealed class Parser
         }
     }
 
-    /// <summary>A condition: <c>A op B</c> with op one of <c>&lt; &lt;= &gt; &gt;= = !=</c> (the first argument of iverson and when).</summary>
-    private Expr? ParseCondition(int depth, out int height)
+    /// <summary>
+    /// A condition (the first argument of iverson and when): comparisons <c>A op B</c>, op one of <c>&lt; &lt;= &gt; &gt;= = !=</c>,
+    /// joined by <c>and</c> and <c>or</c>, <c>and</c> binding tighter (so every condition has a form without parentheses).
+    /// </summary>
+    private Expr? ParseCondition(int depth, out int height) => ParseConnective(Builtins.Or, depth, out height);
+
+    private Expr? ParseConnective(string word, int depth, out int height)
     {
+        var left = word == Builtins.Or ? ParseConnective(Builtins.And, depth, out height) : ParseComparison(depth, out height);
+        if (left is null) return null;
+        while (_token.IsWord(_text, word))
+        {
+            var opToken = _token;
+            Advance();
+            var right = word == Builtins.Or ? ParseConnective(Builtins.And, depth, out var rightHeight) : ParseComparison(depth, out rightHeight);
+            if (right is null) return null;
+            height = Math.Max(height, rightHeight) + 1;
+            if (height > _maxDepth) return Fail<Expr>(opToken, SyntaxMessages.NestingTooDeep(_maxDepth));
+            left = new BinaryExpr(word == Builtins.Or ? BinaryOperator.Or : BinaryOperator.And, left, right, left.Position, At(opToken));
+        }
+        return left;
+    }
+
+    private Expr? ParseComparison(int depth, out int height)
+    {
+        height = 0;
+        if (!StartsExpression(_token)) return Fail<Expr>(_token, SyntaxMessages.ExpectedExpression(Describe(_previous), Describe(_token)));
         var left = ParseExpression(depth, out height);
         if (left is null) return null;
         var opToken = _token;

@@ -108,6 +108,8 @@ public sealed class LatexPrinter : IExprVisitor<StringBuilder>
                 BinaryOperator.Greater => " > ",
                 BinaryOperator.GreaterOrEqual => " \\ge ",
                 BinaryOperator.Equal => " = ",
+                BinaryOperator.And => " \\wedge ",
+                BinaryOperator.Or => " \\vee ",
                 _ => " \\ne ",
             });
             return Write(node.Right);

@@ -73,6 +73,11 @@ public class NumberFunctionTests
     [InlineData("iverson(4 >= 5)", "0")]
     [InlineData("iverson(2*3 = 6)", "1")]
     [InlineData("iverson(2*3 != 6)", "0")]
+    [InlineData("iverson(1 < 2 and 3 < 2)", "0")]
+    [InlineData("iverson(1 < 2 and 2 < 3)", "1")]
+    [InlineData("iverson(1 > 2 and 1 > 2 or 1 < 2)", "1")]  // 'and' binds tighter: (F and F) or T
+    [InlineData("iverson(1 < 2 or 1 > 2 and 1 > 2)", "1")]  // T or (F and F)
+    [InlineData("iverson(1 > 2 or 1 > 2 and 1 < 2)", "0")]
     [InlineData("when(1 < 2, 7, fact(-1))", "7")]          // the other branch is never evaluated
     [InlineData("when(2 < 1, 1/0, 8)", "8")]
     [InlineData("min(3, -1, 2)", "-1")]

@@ -47,6 +47,7 @@ public class CompiledVsInterpretedTests
     [InlineData("qbinom(m, j, q)*q^(j - m) = q^(-m) for m in 0..4, j in 0..6")]
     [InlineData("(-1)^k*x^k = (-x)^k for k in -4..4")]
     [InlineData("when(n <= 2, x^(n - 3), y^min(n, 3)) + x^mod(n, 3)*y^floor(n/2) = iverson(n != 1)*x for n in 0..6")]
+    [InlineData("when(n >= 1 and n <= 3 or n = 5, x^-n, y^abs(n - 4)) = iverson(n < 2 or n > 4 and n != 6)*x*delta(n, 2) for n in 0..6")]
     public void NegativeExponents_AndIntegerFunctions(string line)
     {
         var entry = CatalogueParser.ParseIdentity(line).Value;

@@ -95,6 +95,8 @@ public static class ParameterEvaluator
                 case BinaryOperator.GreaterOrEqual: return a >= b ? 1 : 0;
                 case BinaryOperator.Equal: return a == b ? 1 : 0;
                 case BinaryOperator.NotEqual: return a != b ? 1 : 0;
+                case BinaryOperator.And: return !a.IsZero && !b.IsZero ? 1 : 0;
+                case BinaryOperator.Or: return !a.IsZero || !b.IsZero ? 1 : 0;
             }
             if (b.Sign < 0) throw new ReferenceException($"negative exponent {b} in an integer parameter expression at {node.OperatorPosition}");
             if (b > ReferenceLimits.MaxExponent) throw new ReferenceException($"exponent {b} is beyond the reference limit {ReferenceLimits.MaxExponent}");

@@ -45,6 +45,7 @@ public sealed class LatexPrinterTests
     [InlineData("floor(n/2) + ceil(n/3)", @"\left\lfloor \frac{n}{2} \right\rfloor + \left\lceil \frac{n}{3} \right\rceil")]
     [InlineData("abs(n) + mod(n, 3) + delta(i, j)", @"\left|n\right| + \left(n \bmod 3\right) + \delta_{i,j}")]
     [InlineData("iverson(k <= n)*x", @"\left[k \le n\right] \cdot x")]
+    [InlineData("iverson(0 <= k and k <= n or n < 0)", @"\left[0 \le k \wedge k \le n \vee n < 0\right]")]
     [InlineData("when(n != 0, x, y)", @"\begin{cases} x & \text{if } n \ne 0 \\ y & \text{otherwise} \end{cases}")]
     public void PrintsReadableMath(string expression, string expected) => Assert.Equal(expected, Latex(expression));
 
