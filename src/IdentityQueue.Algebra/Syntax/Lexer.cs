@@ -66,8 +66,9 @@ internal sealed class Lexer
             case '<': return next == '=' ? new Token(TokenKind.LessEqual, i, 2) : new Token(TokenKind.Less, i, 1);
             case '>': return next == '=' ? new Token(TokenKind.GreaterEqual, i, 2) : new Token(TokenKind.Greater, i, 1);
             case '!':
-                if (next == '=') return new Token(TokenKind.NotEqual, i, 2);
-                break;
+                return next == '='
+                    ? new Token(TokenKind.NotEqual, i, 2)
+                    : new Token(TokenKind.Invalid, i, 1, SyntaxMessages.Factorial);
             case '*':
                 return next == '*'
                     ? new Token(TokenKind.Invalid, i, 2, SyntaxMessages.DoubleStar)

@@ -64,6 +64,8 @@ public static class SyntaxMessages
     public static string ScientificNotation(string mantissa, string exponent) =>
         $"scientific notation is not supported; write {mantissa}*10^{exponent}";
 
+    public const string Factorial = "'!' is not an operator: write fact(n) for n!, and != (in a condition) for 'not equal'";
+
     public const string DoubleEquals = "'==' is not an operator; write a single '=' between the two sides of the identity";
 
     public const string DoubleStar = "'**' is not an operator; write '^' for a power";
