@@ -22,6 +22,9 @@ public class CheckPublishedIdentitiesTests
     // Bell numbers: Σ_k {n,k} = ϖ(n) with ϖ(n+1) = Σ_j binom(n, j) ϖ(j) (Concrete Mathematics (6.7) and ex. 7.15 [memory]).
     [InlineData("sum(k in 0..n+1: stirling2(n+1, k)) = sum(j in 0..n: binom(n, j)*sum(k in 0..j: stirling2(j, k))) for n in 0..15",
         "sum(k in 0..n+1: stirling2(n+1, k)) = sum(j in 0..n: binom(n, j)*sum(k in 0..j: stirling1(j, k))) for n in 2..3")]
+    // The same as one line against the table: Bell(10) = 115975, Bell(15) = 1382958545 (sympy's bell; OEIS A000110).
+    [InlineData("sum(k in 0..10 + 5*m: stirling2(10 + 5*m, k)) = when(m = 0, 115975, 1382958545) for m in 0..1",
+        "sum(k in 0..15: stirling2(15, k)) = 1382958544")]
     // x^n = Σ_k {n,k} x(x−1)…(x−k+1) and x(x+1)…(x+n−1) = Σ_k [n,k] x^k (Concrete Mathematics (6.10), (6.11) [memory]).
     [InlineData("x^n = sum(k in 0..n: stirling2(n, k)*fact(k)*binom(x, k)) for n in 0..12",
         "x^n = sum(k in 0..n: stirling1(n, k)*fact(k)*binom(x, k)) for n in 3..3")]
