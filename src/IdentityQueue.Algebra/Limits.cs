@@ -23,8 +23,12 @@ public sealed record Limits
     /// <summary>Most instructions in one compiled identity (the expression size after sums, products and matrices are expanded).</summary>
     public int MaxProgramSize { get; init; } = 4_000_000;
 
-    /// <summary>Largest exponent allowed in <c>^</c> once parameters are fixed.</summary>
-    public System.Numerics.BigInteger MaxExponent { get; init; } = System.Numerics.BigInteger.Pow(2, 64);
+    /// <summary>
+    /// Largest exponent allowed in <c>^</c> once parameters are fixed, in bits of its absolute value (a negative exponent is a
+    /// reciprocal). Powers are evaluated by repeated squaring, so an exponent of b bits costs about 2b multiplications; the
+    /// degree bound grows with the exponent and picks a rung large enough (a degree of 2^b needs a field of more than b + 16 bits).
+    /// </summary>
+    public int MaxExponentBits { get; init; } = 512;
 
     /// <summary>Largest integer parameter value (range ends, indices, exponents before the exponent check), in bits.</summary>
     public int MaxParameterBits { get; init; } = 4096;
@@ -43,6 +47,18 @@ public sealed record Limits
 
     /// <summary>Most trials for one candidate (including resampled undefined points).</summary>
     public int MaxTrials { get; init; } = 200;
+
+    /// <summary>
+    /// Most expression nodes one side of an entry may have once the definitions (<c>let</c> lines) it uses are written out
+    /// (the stored side is that text, so it also keeps the stored text well below <see cref="MaxLineLength"/>).
+    /// </summary>
+    public int MaxExpandedNodes { get; init; } = 100_000;
+
+    /// <summary>
+    /// Most steps (table cells, terms, rational operations) one exact number function of integer arguments may take
+    /// (<c>stirling1</c>, <c>stirling2</c>, <c>bernoulli</c>, <c>harmonic</c>, …); its value must also fit <see cref="MaxParameterBits"/>.
+    /// </summary>
+    public int MaxNumberFunctionWork { get; init; } = 2_000_000;
 
     /// <summary>Largest estimated size, in bits, of an exact rational evaluation used to certify a refutation.</summary>
     public long MaxCertifyBits { get; init; } = 1 << 22;

@@ -25,13 +25,19 @@ public static class CheckCommand
         var seed = new Option<ulong?>("--seed") { Description = "Seed for the random primes and points (default: a fresh random seed, printed)." };
         var json = new Option<bool>("--json") { Description = "Print one JSON object instead of text." };
         var time = TimeOption();
+        var definitions = new Option<FileInfo?>("--definitions")
+        {
+            Description = "A catalogue file whose 'let' lines (definitions) the identity may use; its other lines are not read as identities.",
+        };
         var command = new Command("check", "Screen one identity ad hoc, without a store. Exit 0 survived, 1 refuted, 2 invalid, 4 undecided.\n\n" +
             "Examples:\n" +
             "  idq check \"(a^2+b^2)*(c^2+d^2) = (a*c-b*d)^2 + (a*d+b*c)^2\"\n" +
             "  idq check \"(x+y)^7 = x^7 + y^7 over GF(7)\" --json\n" +
-            "  idq check \"sum(k in 0..n: binom(n,k)) = 2^n for n in 0..10\" --seed 42")
+            "  idq check \"sum(k in 0..n: binom(n,k)) = 2^n for n in 0..10\" --seed 42\n" +
+            "  idq check \"fib(n-1)*fib(n+1) - fib(n)^2 = (-1)^n for n in 1..30\"\n" +
+            "  idq check \"det(matrix(i in 1..3, j in 1..3: h(i-j+1, x))) = s(x)\" --definitions schur.idq")
         {
-            identity, over, target, seed, json, time,
+            identity, over, target, seed, json, time, definitions,
         };
         command.SetAction(parse =>
         {
@@ -57,8 +63,18 @@ public static class CheckCommand
                 return ExitCodes.BadInput;
             }
             var options = new ScreeningOptions { TargetBits = targetBits, Seed = runSeed.Value, Budget = budget };
+            DefinitionScope? scope = null;
+            if (parse.GetValue(definitions) is { } file)
+            {
+                scope = ReadDefinitions(file, options.Limits, out var definitionProblem);
+                if (scope is null)
+                {
+                    error.WriteLine($"idq check: {definitionProblem}");
+                    return ExitCodes.BadInput;
+                }
+            }
             using var stop = new StopSignals();
-            return Execute(parse.GetValue(identity) ?? "", parse.GetValue(over), options, parse.GetValue(json), output, error, stop.Token);
+            return Execute(parse.GetValue(identity) ?? "", parse.GetValue(over), options, parse.GetValue(json), output, error, scope, stop.Token);
         });
         return command;
     }
@@ -77,10 +93,40 @@ public static class CheckCommand
         DefaultValueFactory = _ => TimeBudget.Default.PerCandidate.TotalSeconds,
     };
 
-    internal static int Execute(string text, string? over, ScreeningOptions options, bool json, TextWriter output, TextWriter error,
-        CancellationToken cancellation = default)
+    /// <summary>The definitions (<c>let</c> lines) of a catalogue file, in order; null with the problem when one is bad or the file cannot be read.</summary>
+    internal static DefinitionScope? ReadDefinitions(FileInfo file, Limits limits, out string? problem)
     {
-        var parsed = CatalogueParser.ParseIdentity(text, options.Limits);
+        problem = null;
+        var scope = new DefinitionScope();
+        string[] lines;
+        try
+        {
+            lines = File.ReadAllLines(file.FullName);
+        }
+        catch (Exception e) when (e is IOException or UnauthorizedAccessException)
+        {
+            problem = $"--definitions: cannot read {file.FullName}: {e.Message}";
+            return null;
+        }
+        for (var i = 0; i < lines.Length; i++)
+        {
+            var first = 0;
+            while (first < lines[i].Length && char.IsWhiteSpace(lines[i][first])) first++;
+            if (!CatalogueParser.IsDefinition(lines[i], first)) continue;
+            var parsed = CatalogueParser.ParseLine(lines[i], i + 1, limits, scope);
+            if (!parsed.Success)
+            {
+                problem = $"--definitions {file.Name}: {parsed.Error}";
+                return null;
+            }
+        }
+        return scope;
+    }
+
+    internal static int Execute(string text, string? over, ScreeningOptions options, bool json, TextWriter output, TextWriter error,
+        DefinitionScope? definitions = null, CancellationToken cancellation = default)
+    {
+        var parsed = CatalogueParser.ParseIdentity(text, options.Limits, definitions);
         if (!parsed.Success) return Invalid(text, parsed.Error!, json, output, error);
         var entry = parsed.Value;
         if (over is not null)

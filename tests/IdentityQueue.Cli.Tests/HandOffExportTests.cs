@@ -34,6 +34,10 @@ public sealed class HandOffExportTests : IDisposable
         pfaffian: pf([[0,a,b,c],[-a,0,d,e],[-b,-d,0,f],[-c,-e,-f,0]])^2 = det([[0,a,b,c],[-a,0,d,e],[-b,-d,0,f],[-c,-e,-f,0]])
         # Cayley–Hamilton for 2×2 matrices: Cayley, Phil. Trans. 148 (1858)
         cayley-hamilton: [[a,b],[c,d]]^2 - tr([[a,b],[c,d]])*[[a,b],[c,d]] + det([[a,b],[c,d]])*id(2) = 0
+        # x^n = Σ_k {n,k} k! binom(x, k): Graham, Knuth, Patashnik, Concrete Mathematics (6.10) [memory]
+        stirling-power: x^n = sum(k in 0..n: stirling2(n, k)*fact(k)*binom(x, k)) for n in 2..3
+        # Gaussian binomial at 1/q (a negative power of q): Kac & Cheung, Quantum Calculus, ch. 6 [memory]
+        q-inverse: qbinom(n, 2, 1/q) = q^(-2*(n-2))*qbinom(n, 2, q) for n in 3..4
         # Frobenius over GF(5): Lidl & Niederreiter, Finite Fields, Thm 1.46 [memory]; not a statement over the reals
         frobenius: (x+y)^5 = x^5 + y^5 over GF(5)
         # false: the difference is 2xy (common practice)
@@ -46,6 +50,7 @@ public sealed class HandOffExportTests : IDisposable
     [
         "square", "vdm[n=2]", "vdm[n=3]", "gauss[n=1]", "gauss[n=2]", "gauss[n=3]", "gauss[n=4]", "gauss[n=5]", "gauss[n=6]",
         "cauchy-binet", "partial", "pfaffian", "cayley-hamilton",
+        "stirling-power[n=2]", "stirling-power[n=3]", "q-inverse[n=3]", "q-inverse[n=4]",
     ];
 
     private string MakeStore()

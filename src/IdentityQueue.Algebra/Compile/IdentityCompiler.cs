@@ -158,6 +158,9 @@ public static class IdentityCompiler
         private BigInteger Integer(Expr e, string context) =>
             ParameterEvaluator.EvaluateInteger(e, _shared is null ? _scope : new WatchedScope(this), limits, context);
 
+        private Rational Exact(Expr e, string context) =>
+            ParameterEvaluator.EvaluateRational(e, _shared is null ? _scope : new WatchedScope(this), limits, context);
+
         /// <summary>The scope as the integer evaluator sees it while sharing: reading a family parameter marks the structure as fixed by it.</summary>
         private sealed class WatchedScope(Walker walker) : IReadOnlyDictionary<string, BigInteger>
         {
@@ -426,6 +429,8 @@ public static class IdentityCompiler
         public Value VisitBinary(BinaryExpr node)
         {
             Step(node);
+            // A comparison (a hand-built tree may hold one outside iverson/when) is 1 or 0.
+            if (Builtins.IsComparison(node.Operator)) return Value.Of(_b.Constant(Exact(node, "a condition")));
             return Power(node);
         }
 
@@ -475,10 +480,18 @@ public static class IdentityCompiler
         {
             var b = node.Left.Accept(this);
             var e = Integer(node.Right, "an exponent");
+            var bits = BigInteger.Abs(e).GetBitLength();
+            if (bits > limits.MaxExponentBits)
+                throw new CompileError(node.Right.Position, $"the exponent has {bits} bits; the limit MaxExponentBits is {limits.MaxExponentBits}");
             if (e.Sign < 0)
-                throw new CompileError(node.Right.Position, $"the exponent is {e}; exponents must be non-negative integers");
-            if (e > limits.MaxExponent)
-                throw new CompileError(node.Right.Position, $"the exponent has {e.GetBitLength()} bits; the limit MaxExponent is {limits.MaxExponent}");
+            {
+                // A negative exponent is a reciprocal, b^e = 1/b^(−e), undefined only where b vanishes (an Invert instruction: such a
+                // point is resampled). The bounds follow from the rules for Power and Invert.
+                if (b.IsMatrix) throw new CompileError(node.Right.Position, $"the exponent is {e}; a matrix has only non-negative integer powers");
+                if (_b.TryGetConstant(b.Scalar, out var c) && c.IsZero)
+                    throw new CompileError(node.OperatorPosition, $"0 raised to the negative power {e}");
+                return Value.Of(_b.Invert(_b.Power(b.Scalar, -e)));
+            }
             if (!b.IsMatrix) return Value.Of(_b.Power(b.Scalar, e));
             if (b.Rows != b.Columns) throw new CompileError(node.Left.Position, $"only a square matrix has powers, not {b.Describe()}");
             var result = Identity(b.Rows);
@@ -556,6 +569,9 @@ public static class IdentityCompiler
                 }
                 case Builtins.QBinom:
                     return Value.Of(QBinomial(node));
+                case Builtins.When:
+                    // The condition is decided once the parameters are fixed; only the chosen branch is compiled.
+                    return Exact(args[0], "when's condition").IsZero ? args[2].Accept(this) : args[1].Accept(this);
                 case Builtins.Det:
                 case Builtins.Permanent:
                 case Builtins.Pfaffian:
@@ -584,6 +600,9 @@ public static class IdentityCompiler
                     return Identity((int)n);
                 }
                 default:
+                    // The integer and number functions of integer arguments are exact constants once the parameters are fixed, so their
+                    // degree is 0 and their height that of the constant (the rule for Constant).
+                    if (Builtins.ParameterFunctions.Contains(node.Function)) return Value.Of(_b.Constant(Exact(node, $"an argument of {node.Function}")));
                     throw new CompileError(node.Position, $"unknown function '{node.Function}'");
             }
         }

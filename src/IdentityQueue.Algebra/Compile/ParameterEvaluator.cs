@@ -6,7 +6,8 @@ namespace IdentityQueue.Algebra.Compile;
 
 /// <summary>
 /// Evaluates integer parameter expressions (range ends, exponents, indices, the integer arguments of
-/// binom/fact/q-functions) exactly, given the values of the parameters in scope. Sizes are checked
+/// binom/fact/q-functions, the integer and number functions and their conditions) exactly, given the values of the
+/// parameters in scope. Sizes are checked
 /// before any work that could blow up, against <see cref="Limits.MaxParameterBits"/>.
 /// </summary>
 internal sealed class ParameterEvaluator(IReadOnlyDictionary<string, BigInteger> scope, Limits limits, string context)
@@ -20,6 +21,10 @@ internal sealed class ParameterEvaluator(IReadOnlyDictionary<string, BigInteger>
             throw new CompileError(expression.Position, $"{context} must be an integer, but it is {value}");
         return value.Numerator;
     }
+
+    /// <summary>Evaluates <paramref name="expression"/> to an exact rational (a number function such as harmonic(n) need not be an integer).</summary>
+    public static Rational EvaluateRational(Expr expression, IReadOnlyDictionary<string, BigInteger> scope, Limits limits, string context) =>
+        expression.Accept(new ParameterEvaluator(scope, limits, context));
 
     private Rational Checked(Rational value, SourcePosition at)
     {
@@ -67,9 +72,20 @@ internal sealed class ParameterEvaluator(IReadOnlyDictionary<string, BigInteger>
 
     public Rational VisitBinary(BinaryExpr node)
     {
-        // '^', the only binary operator.
+        // '^' or a comparison.
         var left = node.Left.Accept(this);
         var right = node.Right.Accept(this);
+        switch (node.Operator)
+        {
+            case BinaryOperator.Less: return Truth(left < right);
+            case BinaryOperator.LessOrEqual: return Truth(left <= right);
+            case BinaryOperator.Greater: return Truth(left > right);
+            case BinaryOperator.GreaterOrEqual: return Truth(left >= right);
+            case BinaryOperator.Equal: return Truth(left == right);
+            case BinaryOperator.NotEqual: return Truth(left != right);
+            case BinaryOperator.And: return Truth(!left.IsZero && !right.IsZero);
+            case BinaryOperator.Or: return Truth(!left.IsZero || !right.IsZero);
+        }
         if (!right.IsInteger)
             throw new CompileError(node.Right.Position, $"an exponent must be an integer, but it is {right}");
         var exponent = right.Numerator;
@@ -106,8 +122,91 @@ internal sealed class ParameterEvaluator(IReadOnlyDictionary<string, BigInteger>
                 for (var i = 0; i < (int)k; i++) result = Checked(result * (a - i) / (i + 1), node.Position);
                 return result;
             }
+            case Builtins.When:
+                // Only the chosen branch is evaluated, so the other may be undefined (a negative fact, a division by zero).
+                return node.Arguments[0].Accept(this).IsZero ? node.Arguments[2].Accept(this) : node.Arguments[1].Accept(this);
             default:
+                if (Builtins.ParameterFunctions.Contains(node.Function)) return Checked(ParameterFunction(node), node.Position);
                 throw new CompileError(node.Position, $"{context} must be an integer expression in the parameters; {node.Function}(...) is not allowed there");
+        }
+    }
+
+    private static Rational Truth(bool value) => value ? Rational.One : Rational.Zero;
+
+    /// <summary>The integer and number functions (<see cref="Builtins.ParameterFunctions"/>), exactly.</summary>
+    private Rational ParameterFunction(CallExpr node)
+    {
+        var a = node.Arguments;
+        var name = node.Function;
+        try
+        {
+            switch (name)
+            {
+                case Builtins.Min:
+                case Builtins.Max:
+                {
+                    var best = a[0].Accept(this);
+                    for (var i = 1; i < a.Count; i++)
+                    {
+                        var v = a[i].Accept(this);
+                        if (name == Builtins.Min ? v < best : v > best) best = v;
+                    }
+                    return best;
+                }
+                case Builtins.Floor:
+                case Builtins.Ceil:
+                {
+                    var v = a[0].Accept(this);
+                    var floor = BigInteger.Divide(v.Numerator, v.Denominator);
+                    if (v.Numerator.Sign < 0 && !v.IsInteger) floor -= 1; // BigInteger.Divide truncates toward zero
+                    return name == Builtins.Floor || v.IsInteger ? floor : floor + 1;
+                }
+                case Builtins.Mod:
+                {
+                    // a mod b = a − b·floor(a/b): in 0..b−1 for b > 0 and in b+1..0 for b < 0 (the sign of the divisor).
+                    var x = Integer(a[0], "mod's first argument");
+                    var m = Integer(a[1], "mod's second argument");
+                    if (m.IsZero) throw new CompileError(a[1].Position, $"mod by zero in {context}");
+                    var r = BigInteger.Remainder(x, m);
+                    if (!r.IsZero && r.Sign != m.Sign) r += m;
+                    return r;
+                }
+                case Builtins.Gcd:
+                {
+                    var g = BigInteger.Zero;
+                    for (var i = 0; i < a.Count; i++) g = BigInteger.GreatestCommonDivisor(g, Integer(a[i], $"gcd's argument {i + 1}"));
+                    return g;
+                }
+                case Builtins.Abs:
+                {
+                    var v = a[0].Accept(this);
+                    return v.Numerator.Sign < 0 ? -v : v;
+                }
+                case Builtins.Delta:
+                    return Truth(a[0].Accept(this) == a[1].Accept(this));
+                case Builtins.Iverson:
+                    return a[0].Accept(this);
+                case Builtins.Fibonacci:
+                    return NumberFunctions.Fibonacci(Integer(a[0], "fib's argument"), limits);
+                case Builtins.Lucas:
+                    return NumberFunctions.Lucas(Integer(a[0], "lucas's argument"), limits);
+                case Builtins.Stirling1:
+                    return NumberFunctions.Stirling1(Integer(a[0], "stirling1's first argument"), Integer(a[1], "stirling1's second argument"), limits);
+                case Builtins.Stirling2:
+                    return NumberFunctions.Stirling2(Integer(a[0], "stirling2's first argument"), Integer(a[1], "stirling2's second argument"), limits);
+                case Builtins.Harmonic:
+                    return NumberFunctions.Harmonic(Integer(a[0], "harmonic's argument"), limits);
+                case Builtins.Bernoulli:
+                    return NumberFunctions.Bernoulli(Integer(a[0], "bernoulli's argument"), limits);
+                case Builtins.Catalan:
+                    return NumberFunctions.Catalan(Integer(a[0], "catalan's argument"), limits);
+                default: // multinomial
+                    return NumberFunctions.Multinomial(a.Select((e, i) => Integer(e, $"multinomial's argument {i + 1}")).ToArray(), limits);
+            }
+        }
+        catch (NumberFunctionError e)
+        {
+            throw new CompileError(node.Position, e.Message);
         }
     }
 

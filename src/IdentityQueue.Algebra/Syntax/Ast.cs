@@ -70,16 +70,22 @@ public sealed record ProductExpr(IReadOnlyList<ProductFactor> Factors, SourcePos
     public override TResult Accept<TResult>(IExprVisitor<TResult> visitor) => visitor.VisitProduct(this);
 }
 
-/// <summary>The binary operators that are not chains: only '^' (sums and products are <see cref="SumExpr"/> and <see cref="ProductExpr"/>).</summary>
-public enum BinaryOperator { Power }
+/// <summary>
+/// The binary operators that are not chains (sums and products are <see cref="SumExpr"/> and <see cref="ProductExpr"/>): '^',
+/// and the comparisons (<see cref="Less"/> … <see cref="NotEqual"/>) with the connectives <see cref="And"/> and <see cref="Or"/>,
+/// read only as the condition of <c>iverson(...)</c> or <c>when(...)</c>, whose value is 1 or 0.
+/// </summary>
+public enum BinaryOperator { Power, Less, LessOrEqual, Greater, GreaterOrEqual, Equal, NotEqual, And, Or }
 
-/// <summary><c>a ^ b</c>; <see cref="SourcePosition"/> is that of the base, <see cref="OperatorPosition"/> that of the '^'.</summary>
+/// <summary><c>a ^ b</c> or a comparison <c>a &lt; b</c>; <see cref="SourcePosition"/> is that of the left operand, <see cref="OperatorPosition"/> that of the operator.</summary>
 public sealed record BinaryExpr(BinaryOperator Operator, Expr Left, Expr Right, SourcePosition At, SourcePosition OperatorPosition) : Expr(At)
 {
     public override TResult Accept<TResult>(IExprVisitor<TResult> visitor) => visitor.VisitBinary(this);
 }
 
-/// <summary>A call of a built-in function (<see cref="Builtins"/>): binom, fact, qint, qfact, qbinom, det, pf, perm, tr, transpose, id.</summary>
+/// <summary>A call of a built-in function (<see cref="Builtins"/>): binom, fact, qint, qfact, qbinom, det, pf, perm, tr, transpose, id,
+/// the integer functions (min, max, floor, ceil, mod, gcd, abs, delta, iverson, when) and the number functions (fib, lucas, stirling1,
+/// stirling2, harmonic, bernoulli, catalan, multinomial).</summary>
 public sealed record CallExpr(string Function, IReadOnlyList<Expr> Arguments, SourcePosition At) : Expr(At)
 {
     public override TResult Accept<TResult>(IExprVisitor<TResult> visitor) => visitor.VisitCall(this);
@@ -131,13 +137,61 @@ public static class Builtins
     public const string Det = "det", Pfaffian = "pf", Permanent = "perm", Trace = "tr", Transpose = "transpose", Identity = "id";
     public const string Sum = "sum", Prod = "prod", Matrix = "matrix";
 
-    /// <summary>Function name → number of arguments.</summary>
-    public static readonly IReadOnlyDictionary<string, int> Arity = new Dictionary<string, int>
+    // Integer functions of parameters and bound variables (exact, evaluated once the parameters are fixed).
+    public const string Min = "min", Max = "max", Floor = "floor", Ceil = "ceil", Mod = "mod", Gcd = "gcd", Abs = "abs";
+    public const string Delta = "delta", Iverson = "iverson", When = "when";
+
+    // Combinatorial number functions of integer arguments (exact rationals).
+    public const string Fibonacci = "fib", Lucas = "lucas", Stirling1 = "stirling1", Stirling2 = "stirling2", Harmonic = "harmonic";
+    public const string Bernoulli = "bernoulli", Catalan = "catalan", Multinomial = "multinomial";
+
+    /// <summary>The word that starts a definition line: <c>let NAME(PARAMS) = BODY</c>.</summary>
+    public const string Let = "let";
+
+    /// <summary>Function name → the fewest and the most arguments it takes.</summary>
+    public static readonly IReadOnlyDictionary<string, (int Min, int Max)> Arity = new Dictionary<string, (int, int)>
     {
-        [Binom] = 2, [Fact] = 1, [QInt] = 2, [QFact] = 2, [QBinom] = 3,
-        [Det] = 1, [Pfaffian] = 1, [Permanent] = 1, [Trace] = 1, [Transpose] = 1, [Identity] = 1,
+        [Binom] = (2, 2), [Fact] = (1, 1), [QInt] = (2, 2), [QFact] = (2, 2), [QBinom] = (3, 3),
+        [Det] = (1, 1), [Pfaffian] = (1, 1), [Permanent] = (1, 1), [Trace] = (1, 1), [Transpose] = (1, 1), [Identity] = (1, 1),
+        [Min] = (2, int.MaxValue), [Max] = (2, int.MaxValue), [Floor] = (1, 1), [Ceil] = (1, 1), [Mod] = (2, 2),
+        [Gcd] = (2, int.MaxValue), [Abs] = (1, 1), [Delta] = (2, 2), [Iverson] = (1, 1), [When] = (3, 3),
+        [Fibonacci] = (1, 1), [Lucas] = (1, 1), [Stirling1] = (2, 2), [Stirling2] = (2, 2), [Harmonic] = (1, 1),
+        [Bernoulli] = (1, 1), [Catalan] = (1, 1), [Multinomial] = (1, int.MaxValue),
     };
 
+    /// <summary>
+    /// The functions whose every argument is an integer parameter expression and whose value is an exact rational constant
+    /// once the parameters are fixed (all but <see cref="When"/>, whose branches may be any expressions).
+    /// </summary>
+    public static readonly IReadOnlySet<string> ParameterFunctions = new HashSet<string>(StringComparer.Ordinal)
+    {
+        Min, Max, Floor, Ceil, Mod, Gcd, Abs, Delta, Iverson,
+        Fibonacci, Lucas, Stirling1, Stirling2, Harmonic, Bernoulli, Catalan, Multinomial,
+    };
+
+    /// <summary>The functions whose first argument is a condition (a comparison).</summary>
+    public static bool TakesCondition(string function) => function is Iverson or When;
+
+    /// <summary>True for the operators of a condition: a comparison, <c>and</c>, <c>or</c> (value 1 or 0).</summary>
+    public static bool IsComparison(BinaryOperator op) => op >= BinaryOperator.Less;
+
+    /// <summary>The symbol of a comparison or connective: <c>&lt; &lt;= &gt; &gt;= = != and or</c>.</summary>
+    public static string Symbol(BinaryOperator op) => op switch
+    {
+        BinaryOperator.Less => "<",
+        BinaryOperator.LessOrEqual => "<=",
+        BinaryOperator.Greater => ">",
+        BinaryOperator.GreaterOrEqual => ">=",
+        BinaryOperator.Equal => "=",
+        BinaryOperator.NotEqual => "!=",
+        BinaryOperator.And => "and",
+        BinaryOperator.Or => "or",
+        _ => throw new ArgumentOutOfRangeException(nameof(op), op, "not a comparison"),
+    };
+
+    /// <summary>The connectives of conditions: <c>A &lt; B and C &lt; D or E = F</c> (<c>and</c> binds tighter).</summary>
+    public const string And = "and", Or = "or";
+
     /// <summary>Words that may not name a variable or parameter.</summary>
-    public static readonly IReadOnlySet<string> Reserved = new HashSet<string>(Arity.Keys) { Sum, Prod, Matrix, "over", "for", "in" };
+    public static readonly IReadOnlySet<string> Reserved = new HashSet<string>(Arity.Keys) { Sum, Prod, Matrix, Let, And, Or, "over", "for", "in" };
 }

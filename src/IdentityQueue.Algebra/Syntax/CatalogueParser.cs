@@ -15,7 +15,12 @@ public static class CatalogueParser
     /// One line of a catalogue file. A blank or comment-only line gives a successful result with a null value.
     /// The entry's <see cref="IdentityEntry.Text"/> is <paramref name="text"/> and its line is <paramref name="lineNumber"/>.
     /// </summary>
-    public static ParseResult<IdentityEntry?> ParseLine(string text, int lineNumber, Limits? limits = null)
+    /// <remarks>
+    /// With <paramref name="definitions"/> (the scope of one file, fed its lines in order) a line <c>let NAME(P1, …) = BODY</c>
+    /// adds a definition and gives a successful null result, and every later line may use it: uses are written out into the
+    /// entry's tree, so the entry holds no trace of them. Without a scope a <c>let</c> line is an error.
+    /// </remarks>
+    public static ParseResult<IdentityEntry?> ParseLine(string text, int lineNumber, Limits? limits = null, DefinitionScope? definitions = null)
     {
         ArgumentNullException.ThrowIfNull(text);
         limits ??= Limits.Default;
@@ -28,15 +33,28 @@ public static class CatalogueParser
         var (label, start, labelError) = FindLabel(text, first);
         if (labelError) return ParseResult<IdentityEntry?>.Fail(new SourcePosition(lineNumber, first + 1), SyntaxMessages.EmptyLabel);
 
-        var parser = new Parser(text, start, lineNumber, limits);
+        if (label is null && IsDefinition(text, first))
+        {
+            if (definitions is null) return ParseResult<IdentityEntry?>.Fail(new SourcePosition(lineNumber, first + 1), SyntaxMessages.DefinitionOutsideFile);
+            var definer = new Parser(text, first, lineNumber, limits, definitions);
+            var definition = definer.ParseDefinition();
+            if (definition is null) return ParseResult<IdentityEntry?>.Fail(definer.Error!);
+            definitions.Add(definition);
+            return ParseResult<IdentityEntry?>.Ok(null);
+        }
+
+        var parser = new Parser(text, start, lineNumber, limits, definitions);
         var entry = parser.ParseIdentity(label);
         return entry is null ? ParseResult<IdentityEntry?>.Fail(parser.Error!) : ParseResult<IdentityEntry?>.Ok(entry);
     }
 
     /// <summary>One identity, as for <c>idq check "LHS = RHS"</c>: like <see cref="ParseLine"/> at line 1, but a blank text is an error.</summary>
-    public static ParseResult<IdentityEntry> ParseIdentity(string text, Limits? limits = null)
+    /// <remarks>With <paramref name="definitions"/> the identity may use them (a <c>let</c> text itself is then an error: no identity).</remarks>
+    public static ParseResult<IdentityEntry> ParseIdentity(string text, Limits? limits = null, DefinitionScope? definitions = null)
     {
-        var result = ParseLine(text, 1, limits);
+        if (definitions is not null && IsDefinition(text, SkipSpaces(text, 0)))
+            return ParseResult<IdentityEntry>.Fail(new SourcePosition(1, 1), SyntaxMessages.ExpectedIdentity);
+        var result = ParseLine(text, 1, limits, definitions);
         if (!result.Success) return ParseResult<IdentityEntry>.Fail(result.Error!);
         if (result.Value is { } entry) return ParseResult<IdentityEntry>.Ok(entry);
         return ParseResult<IdentityEntry>.Fail(new SourcePosition(1, 1), SyntaxMessages.ExpectedIdentity);
@@ -79,6 +97,17 @@ public static class CatalogueParser
         if (colon == text.Length || text[colon] != ':') return (null, first, false);
         if (end == first) return (null, first, true);
         return (text[first..end], colon + 1, false);
+    }
+
+    /// <summary>True when the line's first word is <c>let</c> followed by a name: a definition.</summary>
+    public static bool IsDefinition(string text, int first)
+    {
+        const string word = Builtins.Let;
+        if (string.CompareOrdinal(text, first, word, 0, word.Length) != 0) return false;
+        var after = first + word.Length;
+        if (after < text.Length && CharClass.IsIdentifierPart(text[after])) return false;
+        var next = SkipSpaces(text, after);
+        return next < text.Length && CharClass.IsIdentifierStart(text[next]);
     }
 
     private static int SkipSpaces(string text, int i)

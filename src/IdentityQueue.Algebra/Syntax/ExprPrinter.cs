@@ -16,7 +16,7 @@ namespace IdentityQueue.Algebra.Syntax;
 /// </summary>
 public sealed class ExprPrinter : IExprVisitor<StringBuilder>
 {
-    private const int AdditiveLevel = 1, MultiplicativeLevel = 2, UnaryLevel = 3, PowerLevel = 4, AtomLevel = 5;
+    private const int OrLevel = -2, AndLevel = -1, ComparisonLevel = 0, AdditiveLevel = 1, MultiplicativeLevel = 2, UnaryLevel = 3, PowerLevel = 4, AtomLevel = 5;
 
     private readonly StringBuilder _output;
 
@@ -100,6 +100,21 @@ public sealed class ExprPrinter : IExprVisitor<StringBuilder>
 
     public StringBuilder VisitBinary(BinaryExpr node)
     {
+        if (Builtins.IsComparison(node.Operator))
+        {
+            // A condition of iverson/when: a comparison of two expressions, or comparisons joined by 'and' (binding tighter) and
+            // 'or', left to right. The parser makes no other shape; a hand-built one gets parentheses.
+            var (left, right) = node.Operator switch
+            {
+                BinaryOperator.Or => (OrLevel, AndLevel),
+                BinaryOperator.And => (AndLevel, ComparisonLevel),
+                _ => (AdditiveLevel, AdditiveLevel),
+            };
+            WriteOperand(node.Left, left);
+            _output.Append(' ').Append(Builtins.Symbol(node.Operator)).Append(' ');
+            WriteOperand(node.Right, right);
+            return _output;
+        }
         WriteOperand(node.Left, AtomLevel);
         _output.Append('^');
         WriteOperand(node.Right, UnaryLevel);
@@ -149,6 +164,9 @@ public sealed class ExprPrinter : IExprVisitor<StringBuilder>
     /// <summary>How tightly the printed form of a node binds (higher binds tighter); a negative literal prints like a negation.</summary>
     internal static int Level(Expr expr) => expr switch
     {
+        BinaryExpr { Operator: BinaryOperator.Or } => OrLevel,
+        BinaryExpr { Operator: BinaryOperator.And } => AndLevel,
+        BinaryExpr { Operator: >= BinaryOperator.Less } => ComparisonLevel,
         SumExpr => AdditiveLevel,
         ProductExpr => MultiplicativeLevel,
         BinaryExpr => PowerLevel,

@@ -63,6 +63,12 @@ internal sealed class Lexer
             case ']': return new Token(TokenKind.RightBracket, i, 1);
             case ',': return new Token(TokenKind.Comma, i, 1);
             case ':': return new Token(TokenKind.Colon, i, 1);
+            case '<': return next == '=' ? new Token(TokenKind.LessEqual, i, 2) : new Token(TokenKind.Less, i, 1);
+            case '>': return next == '=' ? new Token(TokenKind.GreaterEqual, i, 2) : new Token(TokenKind.Greater, i, 1);
+            case '!':
+                return next == '='
+                    ? new Token(TokenKind.NotEqual, i, 2)
+                    : new Token(TokenKind.Invalid, i, 1, SyntaxMessages.Factorial);
             case '*':
                 return next == '*'
                     ? new Token(TokenKind.Invalid, i, 2, SyntaxMessages.DoubleStar)

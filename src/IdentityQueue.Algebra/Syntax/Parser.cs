@@ -27,11 +27,23 @@ internal sealed class Parser
     private Token _previous;
     private bool _hasPrevious;
 
-    public Parser(string text, int start, int line, Limits limits)
+    // Definitions (let lines) of the file, written out where they are used; null where none may be used.
+    private readonly DefinitionScope? _definitions;
+    // The variables of the bound forms around the current token, innermost last: a definition's free name must not be one of them.
+    private readonly List<string> _binders = [];
+    // The free names of the definitions used on this line, with where they were used: none may be a family parameter.
+    private List<(string Name, string Definition, Token At)>? _freeUses;
+    // The name a let line is defining (a use of it in its own body is recursion), and the nodes written out so far on this line.
+    private string? _defining;
+    private List<string>? _definingParameters;
+    private long _expandedNodes;
+
+    public Parser(string text, int start, int line, Limits limits, DefinitionScope? definitions = null)
     {
         _text = text;
         _line = line;
         _limits = limits;
+        _definitions = definitions;
         _maxDepth = limits.MaxNestingDepth;
         _lexer = new Lexer(text, start);
         _token = _lexer.Next();
@@ -96,8 +108,66 @@ internal sealed class Parser
             }
         }
 
+        if (parameters is not null && _freeUses is not null)
+            foreach (var (name, definition, at) in _freeUses)
+                if (parameters.Any(p => p.Name == name))
+                    return Fail<IdentityEntry>(at, SyntaxMessages.DefinitionNameCaptured(definition, name, $"the family parameter '{name}' of this line"));
+
         return new IdentityEntry(label, left, right, field ?? FieldSpec.Rationals,
             parameters is null ? [] : parameters.ToArray(), _line, _text);
+    }
+
+    /// <summary>
+    /// <c>let NAME = BODY</c> or <c>let NAME(P1, …, Pk) = BODY</c>, to the end of the line; the current token is the word <c>let</c>.
+    /// The body may use the definitions above it (written out here), not itself.
+    /// </summary>
+    public Definition? ParseDefinition()
+    {
+        Advance(); // let
+        var nameToken = _token;
+        if (nameToken.Kind != TokenKind.Name) return Fail<Definition>(nameToken, SyntaxMessages.ExpectedDefinitionName(Describe(nameToken)));
+        var name = TextOf(nameToken);
+        if (Builtins.Reserved.Contains(name)) return Fail<Definition>(nameToken, SyntaxMessages.ReservedAsDefinition(name));
+        if (_definitions!.TryGet(name, out var earlier)) return Fail<Definition>(nameToken, SyntaxMessages.DefinedTwice(name, earlier.Line));
+        Advance();
+
+        var parameters = new List<string>();
+        if (_token.Kind == TokenKind.LeftParen)
+        {
+            var open = _token;
+            Advance();
+            while (true)
+            {
+                var p = _token;
+                if (p.Kind != TokenKind.Name) return Fail<Definition>(p, SyntaxMessages.ExpectedDefinitionParameter(name, Describe(p)));
+                var pName = TextOf(p);
+                if (Builtins.Reserved.Contains(pName)) return Fail<Definition>(p, SyntaxMessages.ReservedAsParameter(pName));
+                if (_definitions.Contains(pName)) return Fail<Definition>(p, SyntaxMessages.DefinitionAsBinder(pName, "a parameter of a definition"));
+                if (parameters.Contains(pName)) return Fail<Definition>(p, SyntaxMessages.DuplicateParameter(pName));
+                parameters.Add(pName);
+                Advance();
+                if (_token.Kind == TokenKind.Comma) { Advance(); continue; }
+                if (_token.Kind == TokenKind.RightParen) { Advance(); break; }
+                return Fail<Definition>(_token, SyntaxMessages.ExpectedCommaOrClose(')', open.Column, $"the parameters of {name}", Describe(_token)));
+            }
+        }
+        if (_token.Kind != TokenKind.Equals) return Fail<Definition>(_token, SyntaxMessages.ExpectedDefinitionEquals(name, Describe(_token)));
+        Advance();
+        if (!StartsExpression(_token)) return Fail<Definition>(_token, SyntaxMessages.ExpectedExpression(Describe(_previous), Describe(_token)));
+
+        _defining = name;
+        _definingParameters = parameters;
+        var bodyStart = _token;
+        var body = ParseExpression(0, out _);
+        if (body is null) return null;
+        if (!AtEnd) return Fail<Definition>(_token, FollowMessage(SyntaxMessages.AfterExpression(Describe(_token))));
+        if (DefinitionExpander.Measure(body, _limits.MaxExpandedNodes).Nodes > _limits.MaxExpandedNodes)
+            return Fail<Definition>(bodyStart, SyntaxMessages.ExpansionTooLarge(_limits.MaxExpandedNodes));
+
+        var free = new HashSet<string>(StringComparer.Ordinal);
+        DefinitionExpander.FreeNames(body, free);
+        free.ExceptWith(parameters);
+        return new Definition(name, parameters.ToArray(), body, _line, free);
     }
 
     /// <summary>A whole text that is one expression.</summary>
@@ -130,6 +200,7 @@ internal sealed class Parser
             var name = TextOf(nameToken);
             if (Builtins.Reserved.Contains(name)) return Fail<List<ParameterRange>>(nameToken, SyntaxMessages.ReservedAsParameter(name));
             if (!names.Add(name)) return Fail<List<ParameterRange>>(nameToken, SyntaxMessages.DuplicateParameter(name));
+            if (_definitions?.Contains(name) == true) return Fail<List<ParameterRange>>(nameToken, SyntaxMessages.DefinitionAsBinder(name, "a family parameter"));
             Advance();
 
             if (!ParseRange(name, 0, out var from, out var to, out _)) return null;
@@ -379,18 +450,65 @@ internal sealed class Parser
                 ? ParseCall(name, arity, nameToken, depth, out height)
                 : Fail<Expr>(nameToken, SyntaxMessages.FunctionAsVariable(name));
         }
+        if (_definitions is not null && _definitions.TryGet(name, out var definition))
+            return ParseUse(definition, nameToken, isCall, depth, out height);
+        if (name == _defining && isCall) return Fail<Expr>(nameToken, SyntaxMessages.RecursiveDefinition(name));
         if (isCall) return Fail<Expr>(nameToken, SyntaxMessages.UnknownFunction(name));
         if (_token.Kind == TokenKind.LeftBracket) return ParseIndexed(name, nameToken, depth, out height);
         return new NameRef(name, At(nameToken));
     }
 
-    private Expr? ParseCall(string name, int arity, Token nameToken, int depth, out int height)
+    /// <summary>
+    /// A use of a definition, written out: <c>NAME</c> for one without parameters, <c>NAME(A1, …, Ak)</c> otherwise. Its free names
+    /// (the identity's variables) must not be captured by a bound form around the use or by a family parameter of the line.
+    /// </summary>
+    private Expr? ParseUse(Definition definition, Token nameToken, bool isCall, int depth, out int height)
     {
-        var arguments = new List<Expr>(arity);
+        height = 0;
+        var name = definition.Name;
+        var arguments = new List<Expr>();
+        if (definition.Parameters.Count == 0)
+        {
+            if (isCall) return Fail<Expr>(nameToken, SyntaxMessages.DefinitionArity(name, 0, definition.Line, -1));
+            if (_token.Kind == TokenKind.LeftBracket) return Fail<Expr>(_token, SyntaxMessages.DefinitionIndexed(name, definition.Line));
+        }
+        else
+        {
+            if (!isCall) return Fail<Expr>(nameToken, SyntaxMessages.DefinitionArity(name, definition.Parameters.Count, definition.Line, -1));
+            if (!ParseList(TokenKind.RightParen, $"the argument list of {name}(...)", depth, arguments, out _,
+                    static (after, found) => SyntaxMessages.ExpectedArgument(after, found), allowEmpty: true))
+                return null;
+            if (arguments.Count != definition.Parameters.Count)
+                return Fail<Expr>(nameToken, SyntaxMessages.DefinitionArity(name, definition.Parameters.Count, definition.Line, arguments.Count));
+        }
+        foreach (var free in definition.FreeNames)
+        {
+            if (_binders.Contains(free))
+                return Fail<Expr>(nameToken, SyntaxMessages.DefinitionNameCaptured(name, free, $"the bound variable '{free}' of a sum, prod or matrix around this use"));
+            if (_definingParameters?.Contains(free) == true)
+                return Fail<Expr>(nameToken, SyntaxMessages.DefinitionNameCaptured(name, free, $"the parameter '{free}' of the definition of '{_defining}'"));
+            (_freeUses ??= []).Add((free, name, nameToken));
+        }
+        var expanded = DefinitionExpander.Expand(definition, arguments, out var error);
+        if (expanded is null) return Fail<Expr>(nameToken, error!);
+        var limit = _limits.MaxExpandedNodes;
+        var (nodes, treeHeight) = DefinitionExpander.Measure(expanded, limit - _expandedNodes);
+        _expandedNodes += nodes;
+        if (_expandedNodes > limit) return Fail<Expr>(nameToken, SyntaxMessages.ExpansionTooLarge(limit));
+        if (depth + treeHeight > _maxDepth) return Fail<Expr>(nameToken, SyntaxMessages.NestingTooDeep(_maxDepth));
+        height = treeHeight;
+        return expanded;
+    }
+
+    private Expr? ParseCall(string name, (int Min, int Max) arity, Token nameToken, int depth, out int height)
+    {
+        var arguments = new List<Expr>(Math.Min(arity.Min, 8));
         if (!ParseList(TokenKind.RightParen, $"the argument list of {name}(...)", depth, arguments, out height,
-                static (after, found) => SyntaxMessages.ExpectedArgument(after, found), allowEmpty: true))
+                static (after, found) => SyntaxMessages.ExpectedArgument(after, found), allowEmpty: true,
+                firstIsCondition: Builtins.TakesCondition(name)))
             return null;
-        if (arguments.Count != arity) return Fail<Expr>(nameToken, SyntaxMessages.WrongArity(name, arity, arguments.Count));
+        if (arguments.Count < arity.Min || arguments.Count > arity.Max)
+            return Fail<Expr>(nameToken, SyntaxMessages.WrongArity(name, arity.Min, arity.Max, arguments.Count));
         height++;
         if (height > _maxDepth) return Fail<Expr>(nameToken, SyntaxMessages.NestingTooDeep(_maxDepth));
         return new CallExpr(name, arguments.ToArray(), At(nameToken));
@@ -412,7 +530,7 @@ internal sealed class Parser
     /// <paramref name="height"/> is the largest item height.
     /// </summary>
     private bool ParseList(TokenKind close, string what, int depth, List<Expr> items, out int height,
-        Func<string, string, string> expectedItem, bool allowEmpty)
+        Func<string, string, string> expectedItem, bool allowEmpty, bool firstIsCondition = false)
     {
         height = 0;
         var open = _token;
@@ -426,7 +544,9 @@ internal sealed class Parser
         while (true)
         {
             if (!StartsExpression(_token)) return Report(_token, expectedItem(Describe(_previous), Describe(_token)));
-            var item = ParseExpression(depth + 1, out var itemHeight);
+            var item = firstIsCondition && items.Count == 0
+                ? ParseCondition(depth + 1, out var itemHeight)
+                : ParseExpression(depth + 1, out itemHeight);
             if (item is null) return false;
             items.Add(item);
             height = Math.Max(height, itemHeight);
@@ -445,6 +565,56 @@ internal sealed class Parser
         }
     }
 
+    /// <summary>
+    /// A condition (the first argument of iverson and when): comparisons <c>A op B</c>, op one of <c>&lt; &lt;= &gt; &gt;= = !=</c>,
+    /// joined by <c>and</c> and <c>or</c>, <c>and</c> binding tighter (so every condition has a form without parentheses).
+    /// </summary>
+    private Expr? ParseCondition(int depth, out int height) => ParseConnective(Builtins.Or, depth, out height);
+
+    private Expr? ParseConnective(string word, int depth, out int height)
+    {
+        var left = word == Builtins.Or ? ParseConnective(Builtins.And, depth, out height) : ParseComparison(depth, out height);
+        if (left is null) return null;
+        while (_token.IsWord(_text, word))
+        {
+            var opToken = _token;
+            Advance();
+            var right = word == Builtins.Or ? ParseConnective(Builtins.And, depth, out var rightHeight) : ParseComparison(depth, out rightHeight);
+            if (right is null) return null;
+            height = Math.Max(height, rightHeight) + 1;
+            if (height > _maxDepth) return Fail<Expr>(opToken, SyntaxMessages.NestingTooDeep(_maxDepth));
+            left = new BinaryExpr(word == Builtins.Or ? BinaryOperator.Or : BinaryOperator.And, left, right, left.Position, At(opToken));
+        }
+        return left;
+    }
+
+    private Expr? ParseComparison(int depth, out int height)
+    {
+        height = 0;
+        if (!StartsExpression(_token)) return Fail<Expr>(_token, SyntaxMessages.ExpectedExpression(Describe(_previous), Describe(_token)));
+        var left = ParseExpression(depth, out height);
+        if (left is null) return null;
+        var opToken = _token;
+        BinaryOperator? op = opToken.Kind switch
+        {
+            TokenKind.Less => BinaryOperator.Less,
+            TokenKind.LessEqual => BinaryOperator.LessOrEqual,
+            TokenKind.Greater => BinaryOperator.Greater,
+            TokenKind.GreaterEqual => BinaryOperator.GreaterOrEqual,
+            TokenKind.Equals => BinaryOperator.Equal,
+            TokenKind.NotEqual => BinaryOperator.NotEqual,
+            _ => null,
+        };
+        if (op is null) return Fail<Expr>(opToken, SyntaxMessages.ExpectedComparison(Describe(opToken)));
+        Advance();
+        if (!StartsExpression(_token)) return Fail<Expr>(_token, SyntaxMessages.ExpectedExpression(Describe(opToken), Describe(_token)));
+        var right = ParseExpression(depth, out var rightHeight);
+        if (right is null) return null;
+        height = Math.Max(height, rightHeight) + 1;
+        if (height > _maxDepth) return Fail<Expr>(opToken, SyntaxMessages.NestingTooDeep(_maxDepth));
+        return new BinaryExpr(op.Value, left, right, left.Position, At(opToken));
+    }
+
     /// <summary><c>sum(k in A..B: E)</c> or <c>prod(k in A..B: E)</c>; the current token is the '('.</summary>
     private Expr? ParseBound(BoundKind kind, Token formToken, int depth, out int height)
     {
@@ -458,7 +628,9 @@ internal sealed class Parser
         if (!ParseRange(variable, depth + 1, out var from, out var to, out var rangeHeight)) return null;
         if (_token.Kind != TokenKind.Colon) return Fail<Expr>(_token, SyntaxMessages.ExpectedBodyColon(form, Describe(_token)));
         Advance();
+        _binders.Add(variable);
         var body = ParseBody(form, open, depth, out var bodyHeight);
+        _binders.RemoveAt(_binders.Count - 1);
         if (body is null) return null;
 
         height = Math.Max(rangeHeight, bodyHeight) + 1;
@@ -486,7 +658,10 @@ internal sealed class Parser
         if (!ParseRange(columnVariable, depth + 1, out var columnFrom, out var columnTo, out var columnHeight)) return null;
         if (_token.Kind != TokenKind.Colon) return Fail<Expr>(_token, SyntaxMessages.ExpectedBodyColon(form, Describe(_token)));
         Advance();
+        _binders.Add(rowVariable);
+        _binders.Add(columnVariable);
         var body = ParseBody(form, open, depth, out var bodyHeight);
+        _binders.RemoveRange(_binders.Count - 2, 2);
         if (body is null) return null;
 
         height = Math.Max(Math.Max(rowHeight, columnHeight), bodyHeight) + 1;
@@ -500,6 +675,7 @@ internal sealed class Parser
         if (token.Kind != TokenKind.Name) return Fail<string>(token, SyntaxMessages.ExpectedBoundVariable(form, Describe(token)));
         var name = TextOf(token);
         if (Builtins.Reserved.Contains(name)) return Fail<string>(token, SyntaxMessages.ReservedAsBoundVariable(name));
+        if (_definitions?.Contains(name) == true) return Fail<string>(token, SyntaxMessages.DefinitionAsBinder(name, "a bound variable"));
         Advance();
         return name;
     }
@@ -584,6 +760,8 @@ internal sealed class Parser
         if (_hasPrevious && _token.StartsOperand(_text)) return SyntaxMessages.MissingOperator(Describe(_previous), Describe(_token));
         return _token.Kind switch
         {
+            TokenKind.Less or TokenKind.LessEqual or TokenKind.Greater or TokenKind.GreaterEqual or TokenKind.NotEqual =>
+                SyntaxMessages.ComparisonOutsideCondition(Describe(_token)),
             TokenKind.RightParen => SyntaxMessages.UnmatchedParenthesis,
             TokenKind.RightBracket => SyntaxMessages.UnmatchedBracket,
             _ => otherwise,

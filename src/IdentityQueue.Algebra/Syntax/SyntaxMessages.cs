@@ -13,7 +13,9 @@ public static class SyntaxMessages
     public const string EndOfLine = "end of line";
 
     private const string FieldForms = "Q, GF(p) or GF(p^k)";
-    private const string FunctionList = "binom, fact, qint, qfact, qbinom, det, pf, perm, tr, transpose, id, and the forms sum, prod, matrix";
+    private const string FunctionList = "binom, fact, qint, qfact, qbinom, det, pf, perm, tr, transpose, id, " +
+        "min, max, floor, ceil, mod, gcd, abs, delta, iverson, when, fib, lucas, stirling1, stirling2, harmonic, bernoulli, catalan, multinomial, " +
+        "the forms sum, prod, matrix, and the names defined by let lines above";
 
     // ---- limits ----
 
@@ -62,6 +64,8 @@ public static class SyntaxMessages
     public static string ScientificNotation(string mantissa, string exponent) =>
         $"scientific notation is not supported; write {mantissa}*10^{exponent}";
 
+    public const string Factorial = "'!' is not an operator: write fact(n) for n!, and != (in a condition) for 'not equal'";
+
     public const string DoubleEquals = "'==' is not an operator; write a single '=' between the two sides of the identity";
 
     public const string DoubleStar = "'**' is not an operator; write '^' for a power";
@@ -107,8 +111,60 @@ public static class SyntaxMessages
     public static string UnknownFunction(string name) =>
         $"unknown function '{name}'; the functions are {FunctionList}";
 
-    public static string WrongArity(string name, int expected, int got) =>
-        $"{name} takes {expected} argument{(expected == 1 ? "" : "s")}, got {got}";
+    public static string WrongArity(string name, int min, int max, int got) =>
+        min == max ? $"{name} takes {min} argument{(min == 1 ? "" : "s")}, got {got}"
+        : max == int.MaxValue ? $"{name} takes {min} or more arguments, got {got}"
+        : $"{name} takes {min} to {max} arguments, got {got}";
+
+    // ---- conditions ----
+
+    public static string ExpectedComparison(string found) =>
+        $"expected a comparison (<, <=, >, >=, = or !=) in the condition, found {found}";
+
+    public static string ComparisonOutsideCondition(string found) =>
+        $"the comparison {found} can only be the condition of iverson(A < B) or when(A < B, THEN, ELSE)";
+
+    // ---- definitions ----
+
+    public static string ExpectedDefinitionName(string found) =>
+        $"expected the name to define after 'let', found {found}; write let NAME(P1, P2) = EXPR or let NAME = EXPR";
+
+    public static string ReservedAsDefinition(string name) =>
+        $"'{name}' is a reserved word (a built-in function or keyword) and cannot be defined";
+
+    public static string DefinedTwice(string name, int line) =>
+        $"'{name}' is already defined on line {line}; a name is defined once per file";
+
+    public static string ExpectedDefinitionParameter(string name, string found) =>
+        $"expected a parameter name in the definition of '{name}', found {found}";
+
+    public static string ExpectedDefinitionEquals(string name, string found) =>
+        $"expected '=' and the body of '{name}', found {found}";
+
+    public static string DefinitionAsBinder(string name, string role) =>
+        $"'{name}' is defined by a let line and cannot be {role}";
+
+    public static string RecursiveDefinition(string name) =>
+        $"'{name}' is used in its own definition; definitions cannot be recursive (write the sequence with sum, prod or a built-in number function)";
+
+    public static string DefinitionArity(string name, int parameters, int line, int got) =>
+        parameters == 0
+            ? $"'{name}' (defined on line {line}) has no parameters; write it as {name}, without parentheses"
+            : got < 0
+                ? $"'{name}' (defined on line {line}) takes {parameters} argument{(parameters == 1 ? "" : "s")}; call it as {name}(...)"
+                : $"'{name}' (defined on line {line}) takes {parameters} argument{(parameters == 1 ? "" : "s")}, got {got}";
+
+    public static string DefinitionIndexed(string name, int line) =>
+        $"'{name}' is defined on line {line} and cannot be indexed";
+
+    public static string DefinitionNameCaptured(string definition, string name, string binder) =>
+        $"the definition of '{definition}' uses the variable '{name}', which here would be {binder}; rename one, or pass it as a parameter";
+
+    public static string ExpansionTooLarge(int limit) =>
+        $"written out with its definitions, this has more than {limit} expression nodes (the limit MaxExpandedNodes)";
+
+    public const string DefinitionOutsideFile =
+        "a definition (let NAME = EXPR) can only stand on its own line of an .idq catalogue file (or in idq check --definitions FILE)";
 
     public static string ExpectedArgument(string after, string found) =>
         $"expected an argument after {after}, found {found}";

@@ -20,6 +20,12 @@ internal enum TokenKind
     Colon,
     Equals,
     DotDot,
+    /// <summary>The comparisons <c>&lt; &lt;= &gt; &gt;= !=</c> (and <see cref="Equals"/> inside a condition).</summary>
+    Less,
+    LessEqual,
+    Greater,
+    GreaterEqual,
+    NotEqual,
 
     /// <summary>Text that is no token; <see cref="Token.Message"/> says why.</summary>
     Invalid,

@@ -98,7 +98,23 @@ public sealed class LatexPrinter : IExprVisitor<StringBuilder>
 
     public StringBuilder VisitBinary(BinaryExpr node)
     {
-        // '^', the only binary operator.
+        if (Builtins.IsComparison(node.Operator))
+        {
+            Write(node.Left);
+            _output.Append(node.Operator switch
+            {
+                BinaryOperator.Less => " < ",
+                BinaryOperator.LessOrEqual => " \\le ",
+                BinaryOperator.Greater => " > ",
+                BinaryOperator.GreaterOrEqual => " \\ge ",
+                BinaryOperator.Equal => " = ",
+                BinaryOperator.And => " \\wedge ",
+                BinaryOperator.Or => " \\vee ",
+                _ => " \\ne ",
+            });
+            return Write(node.Right);
+        }
+        // '^'
         Operand(node.Left, AtomLevel);
         _output.Append("^{");
         Write(node.Right);
@@ -137,6 +153,52 @@ public sealed class LatexPrinter : IExprVisitor<StringBuilder>
                 _output.Append("I_{");
                 Write(a[0]);
                 return _output.Append('}');
+            // The number functions in their usual notation: F_n, L_n, Stirling's brackets and braces (Knuth's notation), H_n, B_n, C_n.
+            case Builtins.Fibonacci: return Subscripted("F", a[0]);
+            case Builtins.Lucas: return Subscripted("L", a[0]);
+            case Builtins.Harmonic: return Subscripted("H", a[0]);
+            case Builtins.Bernoulli: return Subscripted("B", a[0]);
+            case Builtins.Catalan: return Subscripted("C", a[0]);
+            case Builtins.Stirling1: return Braced("\\left[{", a[0], " \\atop ", a[1], "}\\right]");
+            case Builtins.Stirling2: return Braced("\\left\\{{", a[0], " \\atop ", a[1], "}\\right\\}");
+            case Builtins.Multinomial:
+                _output.Append("\\binom{");
+                List(a, " + ");
+                _output.Append("}{");
+                List(a, ", ");
+                return _output.Append('}');
+            case Builtins.Min or Builtins.Max or Builtins.Gcd:
+                _output.Append('\\').Append(node.Function).Append("\\left(");
+                List(a, ", ");
+                return _output.Append("\\right)");
+            case Builtins.Floor:
+                _output.Append("\\left\\lfloor ");
+                Write(a[0]);
+                return _output.Append(" \\right\\rfloor");
+            case Builtins.Ceil:
+                _output.Append("\\left\\lceil ");
+                Write(a[0]);
+                return _output.Append(" \\right\\rceil");
+            case Builtins.Abs:
+                _output.Append("\\left|");
+                Write(a[0]);
+                return _output.Append("\\right|");
+            case Builtins.Mod:
+                return Braced("\\left(", a[0], " \\bmod ", a[1], "\\right)");
+            case Builtins.Delta:
+                return Braced("\\delta_{", a[0], ",", a[1], "}");
+            case Builtins.Iverson:
+                _output.Append("\\left[");
+                Write(a[0]);
+                return _output.Append("\\right]");
+            case Builtins.When:
+                _output.Append("\\begin{cases} ");
+                Write(a[1]);
+                _output.Append(" & \\text{if } ");
+                Write(a[0]);
+                _output.Append(" \\\\ ");
+                Write(a[2]);
+                return _output.Append(" & \\text{otherwise} \\end{cases}");
             default:
                 _output.Append(node.Function switch
                 {
@@ -198,6 +260,22 @@ public sealed class LatexPrinter : IExprVisitor<StringBuilder>
             }
         }
         return _output.Append(" \\end{").Append(environment).Append('}');
+    }
+
+    private StringBuilder Subscripted(string letter, Expr index)
+    {
+        _output.Append(letter).Append("_{");
+        Write(index);
+        return _output.Append('}');
+    }
+
+    private void List(IReadOnlyList<Expr> items, string separator)
+    {
+        for (var i = 0; i < items.Count; i++)
+        {
+            if (i > 0) _output.Append(separator);
+            Write(items[i]);
+        }
     }
 
     private StringBuilder Braced(string open, Expr first, string middle, Expr second, string close)

@@ -258,6 +258,14 @@ public static class SmtLibWriter
 
         private BigInteger Integer(Expr e, string context) => ParameterEvaluator.EvaluateInteger(e, _scope, algebraLimits, context);
 
+        private Fraction Exact(Expr e, string context)
+        {
+            var value = ParameterEvaluator.EvaluateRational(e, _scope, algebraLimits, context);
+            if (value.Numerator.GetBitLength() > limits.MaxConstantBits || value.Denominator.GetBitLength() > limits.MaxConstantBits)
+                throw new HandOffSkip($"{ExprPrinter.Print(e)} has more than {limits.MaxConstantBits} bits (the limit MaxConstantBits)");
+            return Constant(value);
+        }
+
         private int Count(Expr e, string what)
         {
             var n = Integer(e, what);
@@ -338,6 +346,7 @@ public static class SmtLibWriter
         public Value VisitBinary(BinaryExpr node)
         {
             Visit();
+            if (Builtins.IsComparison(node.Operator)) return Value.Of(Exact(node, "a condition"));
             return PowerOf(node);
         }
 
@@ -345,9 +354,15 @@ public static class SmtLibWriter
         {
             var b = node.Left.Accept(this);
             var e = Integer(node.Right, "an exponent");
-            if (e.Sign < 0) throw new HandOffSkip($"the exponent is {e}; exponents must be non-negative integers");
-            if (e > limits.MaxExponent) throw new HandOffSkip($"it has the exponent {e}; the limit MaxExponent is {limits.MaxExponent}");
-            var k = (int)e;
+            if (BigInteger.Abs(e) > limits.MaxExponent)
+                throw new HandOffSkip($"it has the exponent {e}; the limit MaxExponent is {limits.MaxExponent} (a power is written out as a product)");
+            var k = (int)BigInteger.Abs(e);
+            if (e.Sign < 0)
+            {
+                // b^(−k) = 1/b^k: a division, so b^k is asserted nonzero like every divisor.
+                if (b.IsMatrix) throw new HandOffSkip($"the exponent is {e}; a matrix has only non-negative integer powers");
+                return Value.Of(Divide(Constant(Rational.One), Power(b.Scalar, k)));
+            }
             if (!b.IsMatrix) return Value.Of(Power(b.Scalar, k));
             if (b.Rows != b.Columns) throw new HandOffSkip($"only a square matrix has powers, not {b.Describe()}");
             var result = Identity(b.Rows);
@@ -412,6 +427,10 @@ public static class SmtLibWriter
                 }
                 case Builtins.QBinom:
                     return Value.Of(QBinomial(node));
+                case Builtins.When:
+                    // Decided once the parameters are fixed: only the chosen branch is written.
+                    return ParameterEvaluator.EvaluateRational(args[0], _scope, algebraLimits, "when's condition").IsZero
+                        ? args[2].Accept(this) : args[1].Accept(this);
                 case Builtins.Det:
                 case Builtins.Permanent:
                 case Builtins.Pfaffian:
@@ -440,6 +459,8 @@ public static class SmtLibWriter
                     return Identity((int)n);
                 }
                 default:
+                    // The integer and number functions of integer arguments are exact rational constants here.
+                    if (Builtins.ParameterFunctions.Contains(node.Function)) return Value.Of(Exact(node, $"an argument of {node.Function}"));
                     throw new HandOffSkip($"it uses the unknown function '{node.Function}'");
             }
         }

@@ -35,8 +35,19 @@ public class DegreeBoundTests
     [InlineData("det([[x^5, x^5], [1, 1]]) = 0", 5)]   // rows 5 + 0 = 5 < columns 5 + 5
     [InlineData("[[a, b], [c, d]]^3 = 0", 3)]
     [InlineData("27^5 + 84^5 = 144^5", 0)]
-    public void DegreeBound_IsExactOnUsualForms(string line, int degree) =>
-        Assert.Equal(degree, (int)Compile(line).Bounds.Degree);
+    [InlineData("q^(-3) + q = 0", 4)]                   // (1 + q^4)/q^3
+    [InlineData("x^(k - n)*y = 0 for n in 5..5, k in 2..2", 1)] // y/x^3: numerator degree 1
+    [InlineData("qbinom(2, 3, q)*q^(-5) = 0", 0)]       // qbinom = 0 folds, and so does the product: no division is left
+    [InlineData("x^fib(10) + iverson(2 < 3)*y^catalan(4) = 0", 55)] // number functions of parameters are exact constants
+    [InlineData("when(1 > 2, x^9, x^2) = 0", 2)]        // only the chosen branch is compiled
+    public void DegreeBound_IsExactOnUsualForms(string line, int degree)
+    {
+        var parsed = CatalogueParser.ParseIdentity(line);
+        Assert.True(parsed.Success, parsed.Error?.ToString());
+        var family = FamilyExpander.Expand(parsed.Value);
+        Assert.True(family.Success, family.Error?.ToString());
+        Assert.Equal(degree, (int)Compile(line, new Dictionary<string, BigInteger>(family.Instances[0])).Bounds.Degree);
+    }
 
     // Cauchy's double alternant: det[1/(x_i + y_j)] has numerator degree n(n−1) over the denominator Π(x_i + y_j) of degree n².
     [Fact]
@@ -60,5 +71,11 @@ public class DegreeBoundTests
     {
         var c = Compile("x^(2^64) = 1");
         Assert.Equal(BigInteger.Pow(2, 64), c.Bounds.Degree);
+        // Beyond 2^64: the degree is kept as a big integer, exactly (x + 1)^(2^70) has degree 2^70.
+        var big = Compile("(x+1)^(2^70) = (x^2+2*x+1)^(2^69)");
+        Assert.Equal(BigInteger.Pow(2, 70), big.Bounds.Degree);
+        Assert.Equal(BigInteger.Pow(2, 511), Compile("x^(2^511) = 1").Bounds.Degree);
+        // A negative exponent divides: 1/x^(2^100) adds 2^100 to the divisor degree.
+        Assert.Equal(BigInteger.Pow(2, 100), Compile("x^(-2^100) = y").Bounds.DivisorDegree);
     }
 }

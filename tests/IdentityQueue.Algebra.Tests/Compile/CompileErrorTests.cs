@@ -11,9 +11,11 @@ public class CompileErrorTests
 {
     public static TheoryData<string, string, int> Cases => new()
     {
-        { "x^(-1) = 1", "exponents must be non-negative integers", 4 },
+        { "[[a,b],[c,d]]^(-1) = 1", "a matrix has only non-negative integer powers", 16 },
+        { "0^(-1) = x", "0 raised to the negative power -1", 2 },
         { "x^y = 1", "'y' is a variable", 3 },
-        { "x^(10^1000) = 1", "the limit MaxExponent", 4 },
+        { "x^(10^1000) = 1", "the limit MaxExponentBits", 4 },
+        { "x^(-2^600) = 1", "the exponent has 601 bits; the limit MaxExponentBits is 512", 4 },
         { "2^(2^5000) = 0", "the limit MaxParameterBits", 5 },
         { "x^(1/2) = 0", "an exponent must be an integer, but it is 1/2", 4 },
         { "sum(k in 1..10^15: x^k) = 0", "the limit MaxProgramSize", 1 },
@@ -44,7 +46,16 @@ public class CompileErrorTests
         { "[[x]] + 1 = 0", "cannot add a 1×1 matrix and a scalar", 7 },
         { "id(0) = 0", "id's argument is 0", 4 },
         { "n[1] = x for n in 1..2", "'n' is an integer parameter here and cannot be indexed", 1 },
-        { "x^n = 1 for n in -2..2", "exponents must be non-negative integers", 3 },
+        { "[[x]]^n = 1 for n in -2..2", "a matrix has only non-negative integer powers", 7 },
+        { "fib(x) = 1", "an argument of fib must be an integer expression in the parameters, but 'x' is a variable", 5 },
+        { "mod(n, n - 1) = 0 for n in 1..2", "mod by zero", 8 },
+        { "stirling1(-1, 0) = 0", "stirling1's first argument must be non-negative, but it is -1", 1 },
+        { "catalan(n) = 0 for n in -1..0", "catalan's argument must be non-negative", 1 },
+        { "harmonic(-3) = 0", "harmonic's argument must be non-negative", 1 },
+        { "stirling2(3000, 1500) = 0", "the limit MaxNumberFunctionWork", 1 },
+        { "fib(10^4) = 0", "fib(10000) has more than 4096 bits (the limit MaxParameterBits)", 1 },
+        { "bernoulli(2000) = 0", "the limit MaxParameterBits", 1 },
+        { "when(n < 0, fact(n), 1/(n - n)) = 0 for n in 0..1", "division by zero", 23 },
         { "binom(x, 2^40) = 0", "the limit MaxFunctionArgument", 10 },
         { "qbinom(3000, 1500, q) = 0", "the limit MaxProgramSize", 1 },
     };

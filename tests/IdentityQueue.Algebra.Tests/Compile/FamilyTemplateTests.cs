@@ -82,6 +82,10 @@ public class FamilyTemplateTests
     [InlineData("det(matrix(i in 1..n, j in 1..n: x[i]^(j - 1))) = 1 for n in 1..3")] // a matrix size
     [InlineData("x[n] = x[n] for n in 1..3")] // an index
     [InlineData("a*x^a = a*x^a for a in 1..3")] // a scalar and an exponent at once
+    [InlineData("x*fib(n) = x*fib(n) for n in 1..3")] // a number function's value is a constant of the instance
+    [InlineData("iverson(n < 2)*x = 0 for n in 1..3")] // a condition
+    [InlineData("when(n < 2, x, y) = x for n in 1..3")] // a branch chosen by the parameter
+    [InlineData("x^(n - 3) = 1 for n in 1..3")] // a negative exponent
     public void ParametersThatShapeTheProgram_GetNoSharedCompilation(string line)
     {
         var entry = Entry(line);

@@ -41,6 +41,35 @@ public class CompiledVsInterpretedTests
         Assert.True(agreed > count * 3 / 4, $"only {agreed} of {count} comparisons were defined");
     }
 
+    /// <summary>Negative exponents (a reciprocal, b^(−e) = 1/b^e) and the integer functions: the program and the tree walk agree.</summary>
+    [Theory]
+    [InlineData("x^(-3)*y^2 - x^(k - n) = (x + y)^-2 for n in 0..4, k in 0..4")]
+    [InlineData("qbinom(m, j, q)*q^(j - m) = q^(-m) for m in 0..4, j in 0..6")]
+    [InlineData("(-1)^k*x^k = (-x)^k for k in -4..4")]
+    [InlineData("when(n <= 2, x^(n - 3), y^min(n, 3)) + x^mod(n, 3)*y^floor(n/2) = iverson(n != 1)*x for n in 0..6")]
+    [InlineData("when(n >= 1 and n <= 3 or n = 5, x^-n, y^abs(n - 4)) = iverson(n < 2 or n > 4 and n != 6)*x*delta(n, 2) for n in 0..6")]
+    public void NegativeExponents_AndIntegerFunctions(string line)
+    {
+        var entry = CatalogueParser.ParseIdentity(line).Value;
+        var family = FamilyExpander.Expand(entry);
+        Assert.True(family.Success, family.Error?.ToString());
+        var r = new Xoshiro256(17);
+        var field = PrimeField62.CreateRandom(ref r);
+        foreach (var parameters in family.Instances)
+        {
+            var compiled = IdentityCompiler.Compile(entry, parameters);
+            Assert.True(compiled.Success, compiled.Error?.ToString());
+            var program = compiled.Value!.Program;
+            var point = new Dictionary<string, Residue62> { ["x"] = field.Sample(ref r), ["y"] = field.Sample(ref r), ["q"] = field.Sample(ref r) };
+            var interpreted = new TreeInterpreter<PrimeField62, Residue62>(field, point, parameters).EvaluateDifference(entry.Left, entry.Right);
+            var registers = new Residue62[program.Length];
+            Assert.True(Evaluator.TryPrepareConstants<PrimeField62, Residue62>(field, program, out var constants));
+            Assert.True(Evaluator.Evaluate<PrimeField62, Residue62>(field, program, constants, program.Variables.Select(v => point[v]).ToArray(), registers));
+            Assert.False(interpreted.IsUndefined);
+            Assert.True(field.AreEqual(interpreted.Scalar, registers[program.Outputs[0]]), $"disagree on {line} at {string.Join(", ", parameters)}");
+        }
+    }
+
     [Fact]
     public void Rung31() { var r = new Xoshiro256(1); Agree<PrimeField31, Residue31>(PrimeField31.CreateRandom(ref r), 1); }
 

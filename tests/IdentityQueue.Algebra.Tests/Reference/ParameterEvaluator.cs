@@ -87,6 +87,17 @@ public static class ParameterEvaluator
         {
             var a = node.Left.Accept(this);
             var b = node.Right.Accept(this);
+            switch (node.Operator)
+            {
+                case BinaryOperator.Less: return a < b ? 1 : 0;
+                case BinaryOperator.LessOrEqual: return a <= b ? 1 : 0;
+                case BinaryOperator.Greater: return a > b ? 1 : 0;
+                case BinaryOperator.GreaterOrEqual: return a >= b ? 1 : 0;
+                case BinaryOperator.Equal: return a == b ? 1 : 0;
+                case BinaryOperator.NotEqual: return a != b ? 1 : 0;
+                case BinaryOperator.And: return !a.IsZero && !b.IsZero ? 1 : 0;
+                case BinaryOperator.Or: return !a.IsZero || !b.IsZero ? 1 : 0;
+            }
             if (b.Sign < 0) throw new ReferenceException($"negative exponent {b} in an integer parameter expression at {node.OperatorPosition}");
             if (b > ReferenceLimits.MaxExponent) throw new ReferenceException($"exponent {b} is beyond the reference limit {ReferenceLimits.MaxExponent}");
             return BigInteger.Pow(a, (int)b);
@@ -96,7 +107,37 @@ public static class ParameterEvaluator
         {
             if (node.Function == Builtins.Fact && node.Arguments.Count == 1) return Factorial(node.Arguments[0].Accept(this));
             if (node.Function == Builtins.Binom && node.Arguments.Count == 2) return Binomial(node.Arguments[0].Accept(this), node.Arguments[1].Accept(this));
-            throw new ReferenceException($"{node.Function}(...) at {node.Position} cannot appear in an integer parameter expression (only fact and binom can)");
+            var a = node.Arguments;
+            switch (node.Function)
+            {
+                // The integer functions by their textbook definitions (Graham, Knuth, Patashnik, "Concrete Mathematics", ch. 3 [memory]).
+                case Builtins.Floor or Builtins.Ceil:
+                {
+                    // floor(a/b) with a possibly inexact quotient: the only place a division need not be exact.
+                    BigInteger num, den = 1;
+                    if (a[0] is ProductExpr { Factors: [var n0, { Divide: true } d0] }) { num = n0.Value.Accept(this); den = d0.Value.Accept(this); }
+                    else num = a[0].Accept(this);
+                    if (den.Sign < 0) { num = -num; den = -den; }
+                    var q = BigInteger.Divide(num, den);
+                    if (q * den > num) q -= 1;        // now q = floor(num/den)
+                    return node.Function == Builtins.Floor || q * den == num ? q : q + 1;
+                }
+                case Builtins.Mod:
+                {
+                    var x = a[0].Accept(this);
+                    var m = a[1].Accept(this);
+                    var r = x - m * (x / m);
+                    return r.Sign != 0 && r.Sign != m.Sign ? r + m : r;
+                }
+                case Builtins.Min: return a.Select(e => e.Accept(this)).Min();
+                case Builtins.Max: return a.Select(e => e.Accept(this)).Max();
+                case Builtins.Gcd: return a.Select(e => e.Accept(this)).Aggregate(BigInteger.Zero, BigInteger.GreatestCommonDivisor);
+                case Builtins.Abs: return BigInteger.Abs(a[0].Accept(this));
+                case Builtins.Delta: return a[0].Accept(this) == a[1].Accept(this) ? 1 : 0;
+                case Builtins.Iverson: return a[0].Accept(this);
+                case Builtins.When: return a[0].Accept(this).IsZero ? a[2].Accept(this) : a[1].Accept(this);
+            }
+            throw new ReferenceException($"{node.Function}(...) at {node.Position} cannot appear in an integer parameter expression (only fact, binom and the integer functions can)");
         }
 
         public BigInteger VisitBound(BoundExpr node) =>

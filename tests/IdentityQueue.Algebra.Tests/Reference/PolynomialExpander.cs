@@ -272,7 +272,7 @@ public sealed class PolynomialExpander : IExprVisitor<ReferencePolynomial>
     private static void CheckArity(CallExpr node)
     {
         if (!Builtins.Arity.TryGetValue(node.Function, out var arity)) throw new ReferenceException($"unknown function {node.Function} at {node.Position}");
-        if (node.Arguments.Count != arity) throw new ReferenceException($"{node.Function} takes {arity} argument(s), not {node.Arguments.Count} (at {node.Position})");
+        if (node.Arguments.Count < arity.Min || node.Arguments.Count > arity.Max) throw new ReferenceException($"{node.Function} takes {arity} argument(s), not {node.Arguments.Count} (at {node.Position})");
     }
 
     /// <summary>Binds <paramref name="variable"/> to each value of A..B in turn (restoring any outer binding afterwards).</summary>

@@ -158,9 +158,16 @@ public sealed class TreeInterpreter<TField, T> : IExprVisitor<FieldValue<T>>
 
     public FieldValue<T> VisitBinary(BinaryExpr node)
     {
+        if (Builtins.IsComparison(node.Operator)) return Scalar(_field.FromInteger(ParameterEvaluator.Evaluate(node, _environment)));
         var baseValue = node.Left.Accept(this);
         var e = ParameterEvaluator.Evaluate(node.Right, _environment);
-        if (e.Sign < 0) throw new ReferenceException($"negative exponent {e} at {node.OperatorPosition}");
+        if (e.Sign < 0)
+        {
+            // b^(−e) = (1/b)^e: a reciprocal, undefined where b vanishes.
+            if (baseValue.IsMatrix) throw new ReferenceException($"negative exponent {e} of a matrix at {node.OperatorPosition}");
+            if (!_field.TryInvert(baseValue.Scalar, out var reciprocal)) throw new UndefinedException($"0 to a negative power at {node.OperatorPosition}");
+            return Scalar(Power(reciprocal, -e));
+        }
         if (!baseValue.IsMatrix) return Scalar(Power(baseValue.Scalar, e));
         var m = RequireSquare(baseValue, "a matrix power");
         var result = IdentityMatrix(m.GetLength(0));
@@ -177,7 +184,7 @@ public sealed class TreeInterpreter<TField, T> : IExprVisitor<FieldValue<T>>
     public FieldValue<T> VisitCall(CallExpr node)
     {
         if (!Builtins.Arity.TryGetValue(node.Function, out var arity)) throw new ReferenceException($"unknown function {node.Function}");
-        if (node.Arguments.Count != arity) throw new ReferenceException($"{node.Function} takes {arity} argument(s)");
+        if (node.Arguments.Count < arity.Min || node.Arguments.Count > arity.Max) throw new ReferenceException($"{node.Function} takes {arity} argument(s)");
         var args = node.Arguments;
         switch (node.Function)
         {
@@ -253,6 +260,11 @@ public sealed class TreeInterpreter<TField, T> : IExprVisitor<FieldValue<T>>
             }
             case Builtins.Identity:
                 return FieldValue<T>.FromMatrix(IdentityMatrix(Parameter(args[0], "id's order", 1, ReferenceLimits.MaxRangeLength)));
+            case Builtins.When:
+                return ParameterEvaluator.Evaluate(args[0], _environment).IsZero ? args[2].Accept(this) : args[1].Accept(this);
+            case Builtins.Min or Builtins.Max or Builtins.Floor or Builtins.Ceil or Builtins.Mod or Builtins.Gcd or Builtins.Abs
+                or Builtins.Delta or Builtins.Iverson:
+                return Scalar(_field.FromInteger(ParameterEvaluator.Evaluate(node, _environment)));
             default:
                 throw new ReferenceException($"unknown function {node.Function}");
         }

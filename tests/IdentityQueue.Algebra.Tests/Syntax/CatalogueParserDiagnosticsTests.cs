@@ -82,6 +82,15 @@ public class CatalogueParserDiagnosticsTests
         { "x = y for n in 1..3 k in 0..n", "unexpected 'k' after the range of 'n'; separate ranges with ','", 21 },
         { "x = y for n in 1..3 over Q", "the 'over FIELD' clause must come before the 'for' clause", 21 },
         { "x = y for n in 1..3 for k in 1..2", "a second 'for' clause", 21 },
+        // conditions and the new functions
+        { "iverson(n) = 1", "expected a comparison (<, <=, >, >=, = or !=) in the condition, found ')'", 10 },
+        { "x < y = 1", "the comparison '<' can only be the condition of iverson(A < B) or when(A < B, THEN, ELSE)", 3 },
+        { "iverson(n < 1 and) = 1", "expected an expression after 'and', found ')'", 18 },
+        { "n! = 1", "'!' is not an operator: write fact(n)", 2 },
+        { "min(n) = 1", "min takes 2 or more arguments, got 1", 1 },
+        { "when(n < 1, x) = 1", "when takes 3 arguments, got 2", 1 },
+        { "multinomial() = 1", "multinomial takes 1 or more arguments, got 0", 1 },
+        { "x = and", "expected an expression after '=', found 'and'", 5 },
         // labels
         { ": x = y", "empty label before ':'", 1 },
         { "lbl:", "expected an identity after the label 'lbl:', found end of line", 5 },

@@ -47,6 +47,11 @@ public class ExprPrinterTests
     [InlineData("det([[a,b],[c,d]])", "det([[a, b], [c, d]])")]
     [InlineData("(x[1])^2", "x[1]^2")]
     [InlineData("(fact(n))^2", "fact(n)^2")]
+    [InlineData("iverson(k<=n-1)", "iverson(k <= n - 1)")]
+    [InlineData("when(i=1,x,when(i!=2,y,z))", "when(i = 1, x, when(i != 2, y, z))")]
+    [InlineData("min(a,b,c)+gcd(n,k)", "min(a, b, c) + gcd(n, k)")]
+    [InlineData("q^(-1)", "q^-1")]
+    [InlineData("iverson(0<=k and k<=n or n<0)", "iverson(0 <= k and k <= n or n < 0)")]
     public void PrintsWithMinimalParentheses(string text, string printed)
     {
         Assert.Equal(printed, ExprPrinter.Print(Parse(text)));
@@ -61,6 +66,9 @@ public class ExprPrinterTests
         "qbinom(n, k, q) - (qbinom(n-1, k-1, q) + q^k*qbinom(n-1, k, q))",
         "transpose([[1, 2], [3, 4]])^2 - 2*id(2)",
         "a/b/c/(d/e)", "a - b - (c - d) - -e", "((a+b)^(c+d))^(e^f)",
+        "iverson(n - 1 < k*2) + when(n >= 2, x^(k-n), -1) - delta(i, j)*mod(n, 3)",
+        "fib(n-1)*fib(n+1) - fib(n)^2 - (-1)^n", "when(i < j and j <= n or i = n and n != 0 or 1 > 2, x, y)", "floor(n/2) + ceil((n+1)/3) + abs(1 - n) + max(1, n, 2*n)",
+        "stirling1(n, k) + stirling2(n, k) + harmonic(n) + bernoulli(2*n) + catalan(n) + multinomial(a, b, c) + lucas(-n)",
     };
 
     [Theory]

@@ -36,7 +36,8 @@ internal sealed class TreeText : IExprVisitor<string>
         return $"({head} {Join(operands)})";
     }
 
-    public string VisitBinary(BinaryExpr node) => $"(^ {node.Left.Accept(this)} {node.Right.Accept(this)})";
+    public string VisitBinary(BinaryExpr node) =>
+        $"({(node.Operator == BinaryOperator.Power ? "^" : Builtins.Symbol(node.Operator))} {node.Left.Accept(this)} {node.Right.Accept(this)})";
 
     public string VisitCall(CallExpr node) => $"({node.Function} {Join(node.Arguments)})";
 

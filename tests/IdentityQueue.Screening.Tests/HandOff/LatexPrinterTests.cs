@@ -37,6 +37,16 @@ public sealed class LatexPrinterTests
     [InlineData("(a + b)*c/d", @"\frac{\left(a + b\right) \cdot c}{d}")]
     [InlineData("a - b + c - -d", @"a - b + c - \left(-d\right)")]
     [InlineData("alpha + α + x1", @"\mathit{alpha} + \alpha + x_{1}")]
+    [InlineData("q^-1", @"q^{-1}")]
+    [InlineData("fib(n - 1) + lucas(n) + harmonic(n) + bernoulli(2*n) + catalan(n)", @"F_{n - 1} + L_{n} + H_{n} + B_{2 \cdot n} + C_{n}")]
+    [InlineData("stirling1(n, k) - stirling2(n, k)", @"\left[{n \atop k}\right] - \left\{{n \atop k}\right\}")]
+    [InlineData("multinomial(a, b, c)", @"\binom{a + b + c}{a, b, c}")]
+    [InlineData("min(a, b) + gcd(n, k)", @"\min\left(a, b\right) + \gcd\left(n, k\right)")]
+    [InlineData("floor(n/2) + ceil(n/3)", @"\left\lfloor \frac{n}{2} \right\rfloor + \left\lceil \frac{n}{3} \right\rceil")]
+    [InlineData("abs(n) + mod(n, 3) + delta(i, j)", @"\left|n\right| + \left(n \bmod 3\right) + \delta_{i,j}")]
+    [InlineData("iverson(k <= n)*x", @"\left[k \le n\right] \cdot x")]
+    [InlineData("iverson(0 <= k and k <= n or n < 0)", @"\left[0 \le k \wedge k \le n \vee n < 0\right]")]
+    [InlineData("when(n != 0, x, y)", @"\begin{cases} x & \text{if } n \ne 0 \\ y & \text{otherwise} \end{cases}")]
     public void PrintsReadableMath(string expression, string expected) => Assert.Equal(expected, Latex(expression));
 
     [Fact]

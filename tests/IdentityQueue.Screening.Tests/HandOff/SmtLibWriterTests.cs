@@ -45,6 +45,25 @@ public sealed class SmtLibWriterTests
 
     private static Dictionary<string, BigInteger> N(int n) => new() { ["n"] = n };
 
+    [Theory]
+    // Negative exponents become divisions (asserted nonzero), and integer and number functions of parameters exact constants;
+    // each identity is published (see CheckPublishedIdentitiesTests) and its perturbation is not.
+    [InlineData("(-1)^n*x^(-n)*(x^2 + x)^n = (-x - 1)^n", "(-1)^n*x^(-n)*(x^2 + x)^n = (x + 1)^n")]
+    [InlineData("qbinom(n, 2, 1/q) = q^(-2*(n-2))*qbinom(n, 2, q)", "qbinom(n, 2, 1/q) = q^(2*(n-2))*qbinom(n, 2, q)")]
+    [InlineData("x^n = sum(k in 0..n: stirling2(n, k)*fact(k)*binom(x, k))", "x^n = sum(k in 0..n: stirling1(n, k)*fact(k)*binom(x, k))")]
+    [InlineData("sum(k in 0..floor(n/2): binom(n, 2*k)*x^(2*k)) = ((1+x)^n + (1-x)^n)/2", "sum(k in 0..ceil(n/2): binom(n, 2*k)*x^(2*k)) = ((1+x)^n - (1-x)^n)/2")]
+    [InlineData("det(matrix(i in 1..n, j in 1..n: iverson(j <= i)*x[i]^j + delta(i, j))) = prod(i in 1..n: x[i]^i + 1)",
+        "det(matrix(i in 1..n, j in 1..n: iverson(j <= i)*x[i]^j)) = prod(i in 1..n: x[i]^i + 1)")]
+    [InlineData("y*(fib(n-1)*fib(n+1) - fib(n)^2) = y*(-1)^n + 0*harmonic(n) + 0*bernoulli(n) + 0*catalan(n) + 0*lucas(n) + 0*multinomial(n, 2)",
+        "y*(fib(n-1)*fib(n+1) - fib(n)^2) = y*(-1)^(n+1)")]
+    [InlineData("when(n > 3, x, y) + min(n, 2)*x = when(n <= 3, y, x) + 2*x + 0*(max(n, 1) + mod(n, 3) + gcd(n, 6) + abs(-n))",
+        "when(n > 3, x, y) + min(n, 2)*x = when(n <= 3, x, y) + 2*x")]
+    public void NewConstructs_TranslateToTheSameValues(string identity, string perturbed)
+    {
+        Assert.True(AgreesAtRandomPoints(Script(identity, N(5))), identity);
+        Assert.False(AgreesAtRandomPoints(Script(perturbed, N(5))), perturbed);
+    }
+
     [Fact]
     public void Script_DeclaresEveryVariable_QuotesIndexedNames_AndEndsWithCheckSat()
     {
@@ -227,6 +246,9 @@ public sealed class SmtLibWriterTests
         Assert.Contains("MaxExpansionSteps", Skip("sum(k in 1..1000000: x^k) = 0"));
         Assert.Contains("MaxExpansionSteps", Skip("sum(k in 1..300: sum(j in 1..300: x[k]*y[j])) = 0", limits: new HandOffLimits { MaxExpansionSteps = 10_000 }));
         Assert.Contains("MaxExponent", Skip("x^1000 = 0"));
+        Assert.Contains("MaxExponent", Skip("(x+1)^(2^70) = (x^2+2*x+1)^(2^69)"));
+        Assert.Contains("MaxExponent", Skip("x^(-1000) = 0"));
+        Assert.Contains("MaxConstantBits", Skip("fib(200) = 0", limits: new HandOffLimits { MaxConstantBits = 100 }));
         Assert.Contains("MaxConstantBits", Skip("fact(2000) = 0"));
     }
 

@@ -69,6 +69,29 @@ public sealed class CatalogueImporterTests
     }
 
     [Fact]
+    public void Idq_Definitions_AreWrittenOutPerFile_AndOtherFormatsRefuseThem()
+    {
+        using var store = TempStore.Create();
+        var summary = store.Import(store.File("d.idq", """
+            let sq(t) = t^2
+            let s(m) = sum(i in 1..m: sq(x[i]))
+            norm: s(n) = sum(i in 1..n: x[i]*x[i]) for n in 1..2
+            bad: sq(1, 2) = 1
+            """));
+        Assert.Equal(1, summary.Entries);
+        Assert.Equal(2, summary.Instances);
+        Assert.Equal("line 4, column 6: 'sq' (defined on line 1) takes 1 argument, got 2", store.Scalar("SELECT reason FROM rejection"));
+        // The stored side is the written-out expression: the worker parses it without the definitions.
+        Assert.Equal("sum(i in 1..n: x[i]^2)", store.Scalar("SELECT DISTINCT lhs FROM candidate"));
+
+        // Another file of the same import run does not see d.idq's definitions; a .jsonl field cannot define.
+        var other = store.Import(store.File("e.idq", "uses: sq(y) = y*y\n"));
+        Assert.Equal(1, other.Rejections);
+        var jsonl = store.Import(store.File("f.jsonl", """{"label": "def", "lhs": "let f(t) = t", "rhs": "0"}""" + "\n"));
+        Assert.Equal(1, jsonl.Rejections);
+    }
+
+    [Fact]
     public void Idq_RejectionReason_IsTheParsersDiagnostic()
     {
         using var store = TempStore.Create();
