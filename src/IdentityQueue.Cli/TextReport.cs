@@ -37,6 +37,9 @@ internal static class TextReport
             case Verdict.Invalid:
                 o.WriteLine($"invalid: {x.Invalid ?? r?.Message}");
                 return;
+            case Verdict.Survived or Verdict.Refuted when r is { Trials.Count: 0, Message: { } exact }:
+                o.WriteLine($"{(x.Verdict == Verdict.Survived ? "survived: true" : "refuted: false")} over {entry.Field}, {exact}");
+                return;
             case Verdict.Survived:
                 o.WriteLine($"survived: very likely true over {entry.Field} (screening is evidence, not proof)");
                 break;

@@ -26,6 +26,7 @@ public static class Screener
         if (UndefinedConstant(identity) is { } constant)
             return new ScreenResult(Verdict.Invalid, bounds.Degree, bounds.HeightLog2, null, trials, null, false,
                 $"the constant {constant} is not defined in {identity.Field}: its denominator is divisible by {identity.Field.Characteristic}");
+        if (ExactDecision.TryDecide(identity, options.Limits) is { } exact) return exact;
         var accumulated = 0.0;
         var consecutiveUndefined = 0;
         var climbed = new HashSet<int>(); // the rungs with a zero trial: the ladder's position

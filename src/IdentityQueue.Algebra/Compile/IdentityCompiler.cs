@@ -370,6 +370,15 @@ public static class IdentityCompiler
                     var k = Integer(args[1], "binom's second argument");
                     if (k.Sign < 0) return Value.Of(_b.Constant(Rational.Zero));
                     var count = CheckedCount(k, args[1], "binom's second argument");
+                    // A constant first argument gives an exact constant, with no 1/k! in the program: binom(10, 3) stays
+                    // defined over GF(3) (Lucas' congruences), where the constant 1/3! is not.
+                    if (_b.TryGetConstant(a, out var constant)
+                        && (long)count * (Math.Max(constant.Numerator.GetBitLength(), constant.Denominator.GetBitLength()) + 1) <= ProgramBuilder.MaxFoldedBits)
+                    {
+                        var exact = Rational.One;
+                        for (var i = 0; i < count; i++) exact = exact * (constant - i) / (i + 1);
+                        return Value.Of(_b.Constant(exact));
+                    }
                     var acc = _b.Constant(Rational.One);
                     var factorial = BigInteger.One;
                     for (var i = 0; i < count; i++)
