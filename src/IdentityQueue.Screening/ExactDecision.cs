@@ -52,10 +52,13 @@ public static class ExactDecision
         {
             var o = program.Outputs[i];
             if (field.IsZero(registers[o])) continue;
+            if (i < program.ConditionNames.Length)
+                return new ScreenResult(Verdict.Invalid, bounds.Degree, bounds.HeightLog2, null, [], null, false,
+                    $"{Prefix}: {program.ConditionNames[i]} is {Cut(show(registers[o]))}, not 0{In(identity)}");
             // The output is the unfolded lhs − rhs of the entry (IdentityCompiler.CompileDifference), so its operands are the sides.
             var ins = program.Instructions[o];
             var (lhs, rhs) = ins.Op == OpCode.Subtract ? (Cut(show(registers[ins.A])), Cut(show(registers[ins.B]))) : (Cut(show(registers[o])), "0");
-            var entry = program.OutputNames.Length > 0 ? $" at entry {program.OutputNames[i]}" : "";
+            var entry = program.OutputName(i) is { } name ? $" at entry {name}" : "";
             return new ScreenResult(Verdict.Refuted, bounds.Degree, bounds.HeightLog2, null, [], null, true,
                 $"{Prefix}: {lhs} ≠ {rhs}{entry}{In(identity)}");
         }

@@ -92,7 +92,7 @@ public static class TrialRunner
         {
             var value = outputs[o * stride + lane];
             if (!field.IsZero(value))
-                return new RecheckResult(true, field.ToCoefficients(value), program.OutputNames.Length > 0 ? program.OutputNames[o] : null);
+                return new RecheckResult(true, field.ToCoefficients(value), program.OutputName(o));
         }
         return new RecheckResult(true, null, null);
     }

@@ -129,14 +129,32 @@ public static class Builtins
 {
     public const string Binom = "binom", Fact = "fact", QInt = "qint", QFact = "qfact", QBinom = "qbinom";
     public const string Det = "det", Pfaffian = "pf", Permanent = "perm", Trace = "tr", Transpose = "transpose", Identity = "id";
+    public const string Inverse = "inv", Adjugate = "adj", Zero = "zero", Diagonal = "diag", Submatrix = "submatrix", Minor = "minor";
+    /// <summary><c>entry(M, i, j)</c>, also written <c>(M)[i, j]</c> after a parenthesis, a call or a matrix literal.</summary>
+    public const string Entry = "entry";
+    /// <summary>
+    /// Not callable by name: the node of an index list <c>[1, 3..n]</c> (an argument of submatrix and minor), whose
+    /// items are integer expressions or ranges (a call of <see cref="Range"/> with the two ends).
+    /// </summary>
+    public const string IndexList = "[]", Range = "..";
     public const string Sum = "sum", Prod = "prod", Matrix = "matrix";
 
-    /// <summary>Function name → number of arguments.</summary>
+    /// <summary>Function name → number of arguments; −1 for a function with a range of counts (<see cref="VariadicArity"/>).</summary>
     public static readonly IReadOnlyDictionary<string, int> Arity = new Dictionary<string, int>
     {
         [Binom] = 2, [Fact] = 1, [QInt] = 2, [QFact] = 2, [QBinom] = 3,
         [Det] = 1, [Pfaffian] = 1, [Permanent] = 1, [Trace] = 1, [Transpose] = 1, [Identity] = 1,
+        [Inverse] = 1, [Adjugate] = 1, [Zero] = -1, [Diagonal] = -1, [Submatrix] = 3, [Minor] = 3, [Entry] = 3,
     };
+
+    /// <summary>The least and greatest number of arguments of a function whose <see cref="Arity"/> is −1.</summary>
+    public static readonly IReadOnlyDictionary<string, (int Min, int Max)> VariadicArity = new Dictionary<string, (int, int)>
+    {
+        [Zero] = (1, 2), [Diagonal] = (1, int.MaxValue),
+    };
+
+    /// <summary>Whether argument <paramref name="index"/> of <paramref name="function"/> is an index list (<c>[1, 3..n]</c>).</summary>
+    public static bool TakesIndexList(string function, int index) => function is Submatrix or Minor && index >= 1;
 
     /// <summary>Words that may not name a variable or parameter.</summary>
     public static readonly IReadOnlySet<string> Reserved = new HashSet<string>(Arity.Keys) { Sum, Prod, Matrix, "over", "for", "in" };

@@ -108,6 +108,18 @@ public sealed class ExprPrinter : IExprVisitor<StringBuilder>
 
     public StringBuilder VisitCall(CallExpr node)
     {
+        switch (node.Function)
+        {
+            case Builtins.IndexList:
+                _output.Append('[');
+                WriteList(node.Arguments, ", ");
+                return _output.Append(']');
+            case Builtins.Range:
+                Write(node.Arguments[0]);
+                _output.Append("..");
+                Write(node.Arguments[1]);
+                return _output;
+        }
         _output.Append(node.Function).Append('(');
         WriteList(node.Arguments, ", ");
         return _output.Append(')');

@@ -314,7 +314,27 @@ internal sealed class Parser
         return new BinaryExpr(BinaryOperator.Power, baseExpr, exponent, baseExpr.Position, At(caret));
     }
 
+    /// <summary>
+    /// primary ['[' i ',' j ']']: an entry of a matrix expression, <c>(A*B)[i, j]</c>, after a parenthesis, a call or a
+    /// matrix literal (after a plain name the brackets make an indexed variable, <c>x[i]</c>).
+    /// </summary>
     private Expr? ParsePrimary(int depth, out int height)
+    {
+        var start = _token;
+        var primary = ParseAtom(depth, out height);
+        if (primary is null || _token.Kind != TokenKind.LeftBracket || primary is NameRef or IndexedName || start.Kind == TokenKind.Integer)
+            return primary;
+        var indices = new List<Expr>(2);
+        if (!ParseList(TokenKind.RightBracket, "the entry's index list", depth, indices, out var indexHeight,
+                static (after, found) => SyntaxMessages.ExpectedIndex(after, found), allowEmpty: false))
+            return null;
+        if (indices.Count != 2) return Fail<Expr>(start, SyntaxMessages.WrongArity("an entry [i, j] of a matrix", 2, indices.Count) .Replace("takes", "needs").Replace("argument", "index"));
+        height = Math.Max(height, indexHeight) + 1;
+        if (height > _maxDepth) return Fail<Expr>(start, SyntaxMessages.NestingTooDeep(_maxDepth));
+        return new CallExpr(Builtins.Entry, [primary, indices[0], indices[1]], primary.Position);
+    }
+
+    private Expr? ParseAtom(int depth, out int height)
     {
         height = 0;
         var token = _token;
@@ -384,11 +404,17 @@ internal sealed class Parser
 
     private Expr? ParseCall(string name, int arity, Token nameToken, int depth, out int height)
     {
-        var arguments = new List<Expr>(arity);
+        var arguments = new List<Expr>(Math.Max(arity, 1));
         if (!ParseList(TokenKind.RightParen, $"the argument list of {name}(...)", depth, arguments, out height,
-                static (after, found) => SyntaxMessages.ExpectedArgument(after, found), allowEmpty: true))
+                static (after, found) => SyntaxMessages.ExpectedArgument(after, found), allowEmpty: true, function: name))
             return null;
-        if (arguments.Count != arity) return Fail<Expr>(nameToken, SyntaxMessages.WrongArity(name, arity, arguments.Count));
+        if (arity < 0)
+        {
+            var (min, max) = Builtins.VariadicArity[name];
+            if (arguments.Count < min || arguments.Count > max)
+                return Fail<Expr>(nameToken, SyntaxMessages.WrongArityRange(name, min, max, arguments.Count));
+        }
+        else if (arguments.Count != arity) return Fail<Expr>(nameToken, SyntaxMessages.WrongArity(name, arity, arguments.Count));
         height++;
         if (height > _maxDepth) return Fail<Expr>(nameToken, SyntaxMessages.NestingTooDeep(_maxDepth));
         return new CallExpr(name, arguments.ToArray(), At(nameToken));
@@ -410,7 +436,7 @@ internal sealed class Parser
     /// <paramref name="height"/> is the largest item height.
     /// </summary>
     private bool ParseList(TokenKind close, string what, int depth, List<Expr> items, out int height,
-        Func<string, string, string> expectedItem, bool allowEmpty)
+        Func<string, string, string> expectedItem, bool allowEmpty, string? function = null)
     {
         height = 0;
         var open = _token;
@@ -423,8 +449,15 @@ internal sealed class Parser
         }
         while (true)
         {
-            if (!StartsExpression(_token)) return Report(_token, expectedItem(Describe(_previous), Describe(_token)));
-            var item = ParseExpression(depth + 1, out var itemHeight);
+            Expr? item;
+            int itemHeight;
+            if (function is not null && Builtins.TakesIndexList(function, items.Count))
+                item = ParseIndexList(function, items.Count + 1, depth + 1, out itemHeight);
+            else
+            {
+                if (!StartsExpression(_token)) return Report(_token, expectedItem(Describe(_previous), Describe(_token)));
+                item = ParseExpression(depth + 1, out itemHeight);
+            }
             if (item is null) return false;
             items.Add(item);
             height = Math.Max(height, itemHeight);
@@ -441,6 +474,47 @@ internal sealed class Parser
             return Report(_token, FollowMessage(SyntaxMessages.ExpectedCommaOrClose(close == TokenKind.RightParen ? ')' : ']',
                 open.Column, what, Describe(_token))));
         }
+    }
+
+    /// <summary>
+    /// <c>[item {, item}]</c> or <c>[]</c>, item := EXPR ['..' EXPR]: the rows or columns of submatrix and minor, in the
+    /// order given. A range A..B with B &lt; A is empty.
+    /// </summary>
+    private Expr? ParseIndexList(string function, int argument, int depth, out int height)
+    {
+        height = 0;
+        var open = _token;
+        if (open.Kind != TokenKind.LeftBracket) return Fail<Expr>(open, SyntaxMessages.ExpectedIndexList(function, argument, Describe(open)));
+        if (depth + 1 > _maxDepth) return Fail<Expr>(open, SyntaxMessages.NestingTooDeep(_maxDepth));
+        Advance();
+        var items = new List<Expr>();
+        if (_token.Kind == TokenKind.RightBracket)
+        {
+            Advance();
+            return new CallExpr(Builtins.IndexList, [], At(open));
+        }
+        while (true)
+        {
+            if (!StartsExpression(_token)) return Fail<Expr>(_token, SyntaxMessages.ExpectedIndexListItem(Describe(_previous), Describe(_token)));
+            var from = ParseExpression(depth + 1, out var fromHeight);
+            if (from is null) return null;
+            height = Math.Max(height, fromHeight);
+            if (_token.Kind == TokenKind.DotDot)
+            {
+                Advance();
+                if (!StartsExpression(_token)) return Fail<Expr>(_token, SyntaxMessages.ExpectedIndexListItem(Describe(_previous), Describe(_token)));
+                var to = ParseExpression(depth + 1, out var toHeight);
+                if (to is null) return null;
+                height = Math.Max(height, toHeight);
+                items.Add(new CallExpr(Builtins.Range, [from, to], from.Position));
+            }
+            else items.Add(from);
+            if (_token.Kind == TokenKind.Comma) { Advance(); continue; }
+            if (_token.Kind == TokenKind.RightBracket) { Advance(); break; }
+            return Fail<Expr>(_token, FollowMessage(SyntaxMessages.ExpectedCommaOrClose(']', open.Column, $"the index list of {function}", Describe(_token))));
+        }
+        height += 2;
+        return new CallExpr(Builtins.IndexList, items.ToArray(), At(open));
     }
 
     /// <summary><c>sum(k in A..B: E)</c> or <c>prod(k in A..B: E)</c>; the current token is the '('.</summary>

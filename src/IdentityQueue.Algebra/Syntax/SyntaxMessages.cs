@@ -13,7 +13,7 @@ public static class SyntaxMessages
     public const string EndOfLine = "end of line";
 
     private const string FieldForms = "Q, GF(p) or GF(p^k)";
-    private const string FunctionList = "binom, fact, qint, qfact, qbinom, det, pf, perm, tr, transpose, id, and the forms sum, prod, matrix";
+    private const string FunctionList = "binom, fact, qint, qfact, qbinom, det, pf, perm, tr, transpose, id, zero, diag, inv, adj, submatrix, minor, entry, and the forms sum, prod, matrix";
 
     // ---- limits ----
 
@@ -106,6 +106,16 @@ public static class SyntaxMessages
 
     public static string UnknownFunction(string name) =>
         $"unknown function '{name}'; the functions are {FunctionList}";
+
+    public static string WrongArityRange(string name, int min, int max, int got) =>
+        max == int.MaxValue ? $"{name} takes at least {min} argument{(min == 1 ? "" : "s")}, got {got}"
+            : $"{name} takes {min} to {max} arguments, got {got}";
+
+    public static string ExpectedIndexList(string name, int argument, string found) =>
+        $"argument {argument} of {name} is a list of row or column indices such as [1, 3..n], but found {found}";
+
+    public static string ExpectedIndexListItem(string after, string found) =>
+        $"expected an index or a range A..B after {after}, found {found}";
 
     public static string WrongArity(string name, int expected, int got) =>
         $"{name} takes {expected} argument{(expected == 1 ? "" : "s")}, got {got}";

@@ -36,6 +36,12 @@ public sealed class LatexPrinterTests
     [InlineData("a/b/c - d", @"\frac{\frac{a}{b}}{c} - d")]
     [InlineData("(a + b)*c/d", @"\frac{\left(a + b\right) \cdot c}{d}")]
     [InlineData("a - b + c - -d", @"a - b + c - \left(-d\right)")]
+    [InlineData("zero(2, 3)", @"0_{2\times 3}")]
+    [InlineData("inv(M)", @"M^{-1}")]
+    [InlineData("adj(M)", @"\operatorname{adj}\left(M\right)")]
+    [InlineData("(A*B)[i, j]", @"\left(A \cdot B\right)_{i,j}")]
+    [InlineData("diag(a, b)", @"\operatorname{diag}\left(a, b\right)")]
+    [InlineData("minor(M, [1, 3..n], [2])", @"\det M_{\{1, 3, \ldots, n\},\{2\}}")]
     [InlineData("alpha + α + x1", @"\mathit{alpha} + \alpha + x_{1}")]
     public void PrintsReadableMath(string expression, string expected) => Assert.Equal(expected, Latex(expression));
 
