@@ -31,6 +31,13 @@ public static class IdentityCompiler
     {
         limits ??= Limits.Default;
         parameters ??= NoParameters;
+        if (entry.Field.CharacteristicParameter is not null)
+        {
+            // over GF(p) with p a family parameter: this instance's field.
+            var field = entry.Field.Bind(parameters, limits.MaxFieldBits, out var error);
+            if (field is null) return CompileResult.Fail(new Diagnostic(entry.Field.ParameterPosition, error!));
+            entry = entry with { Field = field };
+        }
         var walker = new Walker(limits, parameters, shareParameters: false);
         try
         {
@@ -62,7 +69,7 @@ public static class IdentityCompiler
     /// </summary>
     public static FamilyTemplate? CompileTemplate(IdentityEntry entry, IReadOnlyDictionary<string, BigInteger> parameters, Limits? limits = null)
     {
-        if (parameters.Count == 0) return null;
+        if (parameters.Count == 0 || entry.Field.CharacteristicParameter is not null) return null;
         limits ??= Limits.Default;
         var walker = new Walker(limits, parameters, shareParameters: true);
         try

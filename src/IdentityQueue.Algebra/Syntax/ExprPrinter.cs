@@ -47,7 +47,7 @@ public sealed class ExprPrinter : IExprVisitor<StringBuilder>
         {
             output.Append(i == 0 ? " for " : ", ");
             var range = entry.Parameters[i];
-            printer.WriteRange(range.Name, range.From, range.To);
+            printer.WriteRange(range.PrimesOnly ? $"{range.Name} prime" : range.Name, range.From, range.To);
         }
         return output.ToString();
     }

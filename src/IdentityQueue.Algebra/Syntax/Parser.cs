@@ -94,6 +94,11 @@ internal sealed class Parser
             }
         }
 
+        if (field?.CharacteristicParameter is { } p && parameters?.Any(r => r.Name == p) != true)
+        {
+            Error ??= new Diagnostic(field.ParameterPosition, SyntaxMessages.FieldParameterNotInFamily(p));
+            return null;
+        }
         return new IdentityEntry(label, left, right, field ?? FieldSpec.Rationals,
             parameters is null ? [] : parameters.ToArray(), _line, _text);
     }
@@ -129,9 +134,11 @@ internal sealed class Parser
             if (Builtins.Reserved.Contains(name)) return Fail<List<ParameterRange>>(nameToken, SyntaxMessages.ReservedAsParameter(name));
             if (!names.Add(name)) return Fail<List<ParameterRange>>(nameToken, SyntaxMessages.DuplicateParameter(name));
             Advance();
+            var primes = _token.IsWord(_text, "prime");
+            if (primes) Advance();
 
             if (!ParseRange(name, 0, out var from, out var to, out _)) return null;
-            ranges.Add(new ParameterRange(name, from, to, At(nameToken)));
+            ranges.Add(new ParameterRange(name, from, to, At(nameToken)) { PrimesOnly = primes });
 
             if (_token.Kind != TokenKind.Comma) return ranges;
             Advance();
@@ -175,7 +182,7 @@ internal sealed class Parser
         if (open.Kind != TokenKind.LeftParen) return Fail<FieldSpec>(open, SyntaxMessages.ExpectedFieldParenthesis(Describe(open)));
         Advance();
         var pToken = _token;
-        if (pToken.Kind != TokenKind.Integer) return Fail<FieldSpec>(pToken, SyntaxMessages.ExpectedCharacteristic(Describe(pToken)));
+        if (pToken.Kind is not (TokenKind.Integer or TokenKind.Name)) return Fail<FieldSpec>(pToken, SyntaxMessages.ExpectedCharacteristic(Describe(pToken)));
         Advance();
         Token? kToken = null;
         if (_token.Kind == TokenKind.Caret)
@@ -192,6 +199,15 @@ internal sealed class Parser
 
         var fieldText = ShortText(nameToken.Start, close.End);
         var maxBits = _limits.MaxFieldBits;
+        if (pToken.Kind == TokenKind.Name)
+        {
+            // GF(p) with p a family parameter: checked per instance (FieldSpec.Bind), and against the ranges after the line.
+            var degree = 1;
+            if (kToken is { } degreeToken && (degreeToken.Length > 4
+                    || (degree = int.Parse(_text.AsSpan(degreeToken.Start, degreeToken.Length), NumberStyles.None, CultureInfo.InvariantCulture)) < 1))
+                return Fail<FieldSpec>(degreeToken, SyntaxMessages.ZeroFieldExponent(fieldText));
+            return FieldSpec.FiniteOfParameter(TextOf(pToken), degree, At(pToken));
+        }
         // Check the size from the digit count before converting, so a huge p costs nothing: 10^(d-1) ≥ 2^(3.32(d-1)).
         if ((pToken.Length - 1) * 3.3219 > maxBits) return Fail<FieldSpec>(pToken, SyntaxMessages.FieldTooLarge(fieldText, maxBits));
         var p = ParseInteger(pToken);

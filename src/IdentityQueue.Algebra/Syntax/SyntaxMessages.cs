@@ -107,6 +107,9 @@ public static class SyntaxMessages
     public static string UnknownFunction(string name) =>
         $"unknown function '{name}'; the functions are {FunctionList}";
 
+    public static string FieldParameterNotInFamily(string name) =>
+        $"GF({name}): '{name}' must be a parameter of this family line, e.g. 'for {name} prime in 2..50'";
+
     public static string WrongArityRange(string name, int min, int max, int got) =>
         max == int.MaxValue ? $"{name} takes at least {min} argument{(min == 1 ? "" : "s")}, got {got}"
             : $"{name} takes {min} to {max} arguments, got {got}";
