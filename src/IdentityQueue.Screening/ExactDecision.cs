@@ -17,6 +17,9 @@ public static class ExactDecision
     /// <summary>The prefix of every message of an exactly decided candidate.</summary>
     public const string Prefix = "decided exactly (no variables)";
 
+    /// <summary>Most coefficient operations of an exact series evaluation (registers × (N+1)²); beyond, it is screened.</summary>
+    private const double MaxSeriesOperations = 1 << 25;
+
     /// <summary>Longest value written into a message before it is cut (the digits are counted).</summary>
     private const int MaxShownDigits = 120;
 
@@ -28,6 +31,7 @@ public static class ExactDecision
     public static ScreenResult? TryDecide(CompiledIdentity identity, Limits limits)
     {
         var program = identity.Program;
+        if (identity.Field.IsSeries && program.Variables.All(v => v == identity.Field.SeriesVariable)) return DecideSeries(identity, limits);
         if (program.Variables.Length != 0) return null;
         if (identity.Field.IsRationals)
         {
@@ -66,6 +70,40 @@ public static class ExactDecision
             ? $": both sides are {Cut(show(registers[s.A]))}" : ": every entry of the two sides agrees";
         return new ScreenResult(Verdict.Survived, bounds.Degree, bounds.HeightLog2, null, [], null, true,
             $"{Prefix}{value}{In(identity)}; this is a proof, not screening evidence");
+    }
+
+    /// <summary>The prefix of the message of a power series identity in q alone, decided exactly.</summary>
+    public const string SeriesPrefix = "decided exactly (no variable but the series variable)";
+
+    /// <summary>A power series identity whose only variable is q: its coefficients up to q^N computed exactly (over Q, or in GF(p)).</summary>
+    private static ScreenResult? DecideSeries(CompiledIdentity identity, Limits limits)
+    {
+        var program = identity.Program;
+        if (identity.Field.IsRationals)
+        {
+            // Each register holds N + 1 coefficients and a product costs up to (N + 1)² operations on them; their sizes are
+            // those of an exact evaluation at q = 1 at most (coefficients of a truncation of a series with integer-bounded terms).
+            var n = (double)identity.Field.SeriesOrder + 1;
+            if (program.Length * n * n > MaxSeriesOperations
+                || BoundAnalysis.ExactEvaluationBits(program, 0, limits.MaxCertifyBits) > limits.MaxCertifyBits) return null;
+            return SeriesVerdict(identity, SeriesTrial.Evaluate<RationalField, Rational>(default, identity, new Rational[program.Variables.Length]));
+        }
+        var field = BigPrimeField.Create(identity.Field.Characteristic);
+        return SeriesVerdict(identity, SeriesTrial.Evaluate<BigPrimeField, BigResidue>(field, identity, new BigResidue[program.Variables.Length]));
+    }
+
+    private static ScreenResult SeriesVerdict(CompiledIdentity identity, RecheckResult r)
+    {
+        var bounds = identity.Bounds;
+        var q = identity.Field.SeriesVariable;
+        if (!r.Defined)
+            return new ScreenResult(Verdict.Invalid, bounds.Degree, bounds.HeightLog2, null, [], null, false,
+                $"{SeriesPrefix}: a divisor is not invertible as a power series in {q} (its constant term is 0){In(identity)}");
+        if (r.Refutes)
+            return new ScreenResult(identity.Program.IsCondition(r.Entry) ? Verdict.Invalid : Verdict.Refuted, bounds.Degree, bounds.HeightLog2,
+                null, [], null, true, $"{SeriesPrefix}: the {r.Entry} differ{In(identity)}".Replace("the coefficient of", "coefficients of"));
+        return new ScreenResult(Verdict.Survived, bounds.Degree, bounds.HeightLog2, null, [], null, true,
+            $"{SeriesPrefix}: the coefficients of both sides agree up to {q}^{identity.Field.SeriesOrder}{In(identity)}; this is a proof, not screening evidence");
     }
 
     private static string In(CompiledIdentity identity) =>

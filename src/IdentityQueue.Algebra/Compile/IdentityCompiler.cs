@@ -38,7 +38,7 @@ public static class IdentityCompiler
             if (field is null) return CompileResult.Fail(new Diagnostic(entry.Field.ParameterPosition, error!));
             entry = entry with { Field = field };
         }
-        var walker = new Walker(limits, parameters, shareParameters: false);
+        var walker = new Walker(limits, parameters, shareParameters: false, Series(entry.Field));
         try
         {
             var program = walker.CompileDifference(entry.Left, entry.Right);
@@ -71,7 +71,7 @@ public static class IdentityCompiler
     {
         if (parameters.Count == 0 || entry.Field.CharacteristicParameter is not null) return null;
         limits ??= Limits.Default;
-        var walker = new Walker(limits, parameters, shareParameters: true);
+        var walker = new Walker(limits, parameters, shareParameters: true, Series(entry.Field));
         try
         {
             var program = walker.CompileDifference(entry.Left, entry.Right);
@@ -82,6 +82,8 @@ public static class IdentityCompiler
             return null;
         }
     }
+
+    private static (string, int)? Series(FieldSpec field) => field.SeriesVariable is { } q ? (q, field.SeriesOrder) : null;
 
     /// <summary>A scalar register or a matrix of registers.</summary>
     private readonly struct Value
@@ -108,7 +110,8 @@ public static class IdentityCompiler
         public string Describe() => IsMatrix ? $"a {Rows}×{Columns} matrix" : "a scalar";
     }
 
-    private sealed class Walker(Limits limits, IReadOnlyDictionary<string, BigInteger> parameters, bool shareParameters) : IExprVisitor<Value>
+    private sealed class Walker(Limits limits, IReadOnlyDictionary<string, BigInteger> parameters, bool shareParameters,
+        (string Variable, int Order)? series = null) : IExprVisitor<Value>
     {
         private readonly ProgramBuilder _b = new(limits);
         private readonly Dictionary<string, BigInteger> _scope = new(parameters, StringComparer.Ordinal);
@@ -744,16 +747,31 @@ public static class IdentityCompiler
         public Value VisitBound(BoundExpr node)
         {
             Step(node);
-            var from = Integer(node.From, "a range start");
-            var to = Integer(node.To, "a range end");
-            if (to - from + 1 > limits.MaxProgramSize)
-                throw new CompileError(node.Position, $"the range {from}..{to} has more than {limits.MaxProgramSize} terms (the limit MaxProgramSize)");
+            IEnumerable<BigInteger> values;
+            var infiniteFrom = SeriesValuation.IsInfinity(node.From, _scope, negative: true);
+            var infiniteTo = SeriesValuation.IsInfinity(node.To, _scope, negative: false);
+            if (infiniteFrom || infiniteTo)
+            {
+                if (series is not { } s)
+                    throw new CompileError(node.Position, $"an infinite range needs a truncated power series entry: add 'up to q^N' (q the series variable) after the right side");
+                if (_shared is not null) ParameterFixesStructure = true;
+                values = SeriesValuation.Terms(node, infiniteFrom ? null : Integer(node.From, "a range start"),
+                    infiniteTo ? null : Integer(node.To, "a range end"), _scope, s.Variable, s.Order, limits);
+            }
+            else
+            {
+                var from = Integer(node.From, "a range start");
+                var to = Integer(node.To, "a range end");
+                if (to - from + 1 > limits.MaxProgramSize)
+                    throw new CompileError(node.Position, $"the range {from}..{to} has more than {limits.MaxProgramSize} terms (the limit MaxProgramSize)");
+                values = Range(from, to);
+            }
             var saved = _scope.TryGetValue(node.Variable, out var outer);
             var shadowed = Shadow(node.Variable);
             Value? acc = null;
             try
             {
-                for (var k = from; k <= to; k++)
+                foreach (var k in values)
                 {
                     _scope[node.Variable] = k;
                     var term = node.Body.Accept(this);
@@ -768,6 +786,11 @@ public static class IdentityCompiler
                 Unshadow(node.Variable, shadowed);
             }
             return acc ?? Value.Of(_b.Constant(node.Kind == BoundKind.Sum ? Rational.Zero : Rational.One));
+        }
+
+        private static IEnumerable<BigInteger> Range(BigInteger from, BigInteger to)
+        {
+            for (var k = from; k <= to; k++) yield return k;
         }
 
         public Value VisitMatrixComprehension(MatrixComprehension node)

@@ -28,6 +28,17 @@ public sealed record FieldSpec(FieldKind Kind, BigInteger Characteristic, int De
     public SourcePosition ParameterPosition { get; init; }
 
     /// <summary>
+    /// For a truncated power series identity (<c>up to q^N</c>): the series variable q; the two sides are compared as power
+    /// series in q up to q^<see cref="SeriesOrder"/>, that is in F[q]/(q^(N+1)). Null for an ordinary identity.
+    /// </summary>
+    public string? SeriesVariable { get; init; }
+
+    /// <summary>N of <c>up to q^N</c>.</summary>
+    public int SeriesOrder { get; init; }
+
+    public bool IsSeries => SeriesVariable is not null;
+
+    /// <summary>
     /// This field for one instance: p replaced by the parameter's value, which must be a prime (and the field within
     /// <paramref name="maxFieldBits"/>); null and the reason otherwise. A fixed field is itself.
     /// </summary>
@@ -50,15 +61,16 @@ public sealed record FieldSpec(FieldKind Kind, BigInteger Characteristic, int De
             error = $"GF({p}{(Degree == 1 ? "" : $"^{Degree}")}) is larger than the limit MaxFieldBits ({maxFieldBits} bits)";
             return null;
         }
-        return Finite(p, Degree);
+        return this with { Characteristic = p, CharacteristicParameter = null, ParameterPosition = default };
     }
 
-    /// <summary>The canonical text: <c>Q</c>, <c>GF(7)</c>, <c>GF(2^8)</c>, <c>GF(p)</c>.</summary>
+    /// <summary>The canonical text: <c>Q</c>, <c>GF(7)</c>, <c>GF(2^8)</c>, <c>GF(p)</c>, and <c>Q up to q^30</c> for a series identity.</summary>
     public override string ToString()
     {
-        if (Kind == FieldKind.Rationals) return "Q";
+        var series = IsSeries ? $" up to {SeriesVariable}^{SeriesOrder}" : "";
+        if (Kind == FieldKind.Rationals) return "Q" + series;
         var p = CharacteristicParameter ?? Characteristic.ToString();
-        return Degree == 1 ? $"GF({p})" : $"GF({p}^{Degree})";
+        return (Degree == 1 ? $"GF({p})" : $"GF({p}^{Degree})") + series;
     }
 }
 

@@ -59,9 +59,17 @@ internal sealed class Parser
 
         FieldSpec? field = null;
         List<ParameterRange>? parameters = null;
+        (string Variable, int Order)? series = null;
         while (!AtEnd)
         {
-            if (_token.IsWord(_text, "over"))
+            if (_token.IsWord(_text, "up"))
+            {
+                if (parameters is not null) return Fail<IdentityEntry>(_token, SyntaxMessages.SeriesAfterFor);
+                if (series is not null) return Fail<IdentityEntry>(_token, SyntaxMessages.SecondSeries);
+                series = ParseSeriesClause();
+                if (series is null) return null;
+            }
+            else if (_token.IsWord(_text, "over"))
             {
                 if (parameters is not null) return Fail<IdentityEntry>(_token, SyntaxMessages.OverAfterFor);
                 if (field is not null) return Fail<IdentityEntry>(_token, SyntaxMessages.SecondOver);
@@ -80,7 +88,7 @@ internal sealed class Parser
             {
                 return Fail<IdentityEntry>(_token, SyntaxMessages.AfterRange(parameters[^1].Name, Describe(_token)));
             }
-            else if (field is not null)
+            else if (field is not null || series is not null)
             {
                 return Fail<IdentityEntry>(_token, SyntaxMessages.AfterField(Describe(_token)));
             }
@@ -94,6 +102,7 @@ internal sealed class Parser
             }
         }
 
+        if (series is { } s) field = (field ?? FieldSpec.Rationals) with { SeriesVariable = s.Variable, SeriesOrder = s.Order };
         if (field?.CharacteristicParameter is { } p && parameters?.Any(r => r.Name == p) != true)
         {
             Error ??= new Diagnostic(field.ParameterPosition, SyntaxMessages.FieldParameterNotInFamily(p));
@@ -112,11 +121,17 @@ internal sealed class Parser
         return expr;
     }
 
-    /// <summary>A whole text that is one field.</summary>
+    /// <summary>A whole text that is one field, possibly with a series clause (<c>Q up to q^30</c>, as stored).</summary>
     public FieldSpec? ParseStandaloneField()
     {
         var field = ParseField();
         if (field is null) return null;
+        if (_token.IsWord(_text, "up"))
+        {
+            var series = ParseSeriesClause();
+            if (series is null) return null;
+            field = field with { SeriesVariable = series.Value.Variable, SeriesOrder = series.Value.Order };
+        }
         if (!AtEnd) return Fail<FieldSpec>(_token, SyntaxMessages.AfterField(Describe(_token), inIdentity: false));
         return field;
     }
@@ -163,6 +178,32 @@ internal sealed class Parser
     }
 
     // ---------------------------------------------------------------- fields
+
+    /// <summary><c>up to NAME^N</c>: a truncated power series identity in NAME, compared up to NAME^N (N a non-negative integer).</summary>
+    private (string Variable, int Order)? ParseSeriesClause()
+    {
+        Advance(); // 'up'
+        if (!_token.IsWord(_text, "to")) return FailValue(_token, SyntaxMessages.ExpectedSeriesClause(Describe(_token)));
+        Advance();
+        var nameToken = _token;
+        if (nameToken.Kind != TokenKind.Name || Builtins.Reserved.Contains(TextOf(nameToken)))
+            return FailValue(nameToken, SyntaxMessages.ExpectedSeriesClause(Describe(nameToken)));
+        Advance();
+        if (_token.Kind != TokenKind.Caret) return FailValue(_token, SyntaxMessages.ExpectedSeriesClause(Describe(_token)));
+        Advance();
+        var orderToken = _token;
+        if (orderToken.Kind != TokenKind.Integer) return FailValue(orderToken, SyntaxMessages.ExpectedSeriesClause(Describe(orderToken)));
+        Advance();
+        var order = ParseInteger(orderToken);
+        if (order > _limits.MaxSeriesOrder) return FailValue(orderToken, SyntaxMessages.SeriesTooLong(order, _limits.MaxSeriesOrder));
+        return (TextOf(nameToken), (int)order);
+    }
+
+    private (string, int)? FailValue(Token at, string message)
+    {
+        Report(at, message);
+        return null;
+    }
 
     /// <summary><c>Q</c> | <c>GF(p)</c> | <c>GF(p^k)</c>; p must be prime, k ≥ 1, and the field within MaxFieldBits.</summary>
     private FieldSpec? ParseField()

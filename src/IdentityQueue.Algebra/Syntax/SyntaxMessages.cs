@@ -107,6 +107,16 @@ public static class SyntaxMessages
     public static string UnknownFunction(string name) =>
         $"unknown function '{name}'; the functions are {FunctionList}";
 
+    public const string SeriesAfterFor = "'up to q^N' goes before 'for': LHS = RHS [over FIELD] [up to q^N] [for ...]";
+
+    public const string SecondSeries = "a second 'up to'; an entry has at most one series clause";
+
+    public static string ExpectedSeriesClause(string found) =>
+        $"expected a series clause 'up to q^N' (a variable, '^' and a non-negative integer), found {found}";
+
+    public static string SeriesTooLong(System.Numerics.BigInteger order, int limit) =>
+        $"up to q^{order} is beyond the limit MaxSeriesOrder ({limit})";
+
     public static string FieldParameterNotInFamily(string name) =>
         $"GF({name}): '{name}' must be a parameter of this family line, e.g. 'for {name} prime in 2..50'";
 

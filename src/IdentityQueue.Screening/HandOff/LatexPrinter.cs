@@ -205,9 +205,10 @@ public sealed class LatexPrinter : IExprVisitor<StringBuilder>
     public StringBuilder VisitBound(BoundExpr node)
     {
         _output.Append(node.Kind == BoundKind.Sum ? "\\sum_{" : "\\prod_{").Append(Name(node.Variable)).Append('=');
-        Write(node.From);
+        // an infinite end of a power series identity's range (up to q^N)
+        if (node.From is UnaryExpr { Operand: NameRef { Name: "inf" } }) _output.Append("-\\infty"); else Write(node.From);
         _output.Append("}^{");
-        Write(node.To);
+        if (node.To is NameRef { Name: "inf" }) _output.Append("\\infty"); else Write(node.To);
         _output.Append("} ");
         Operand(node.Body, PowerLevel);
         return _output;

@@ -51,6 +51,8 @@ public static class SmtLibWriter
         limits ??= HandOffLimits.Default;
         algebraLimits ??= Limits.Default;
         parameters ??= new Dictionary<string, BigInteger>();
+        if (entry.Field.IsSeries)
+            return new(null, $"it is a truncated power series identity (up to {entry.Field.SeriesVariable}^{entry.Field.SeriesOrder}): it compares coefficients, which is not a statement about real values");
         if (!entry.Field.IsRationals)
             return new(null, $"it is stated over {entry.Field}, an identity of polynomials over a finite field, which cannot be stated over the reals");
         try

@@ -37,6 +37,8 @@ public sealed class LatexPrinterTests
     [InlineData("(a + b)*c/d", @"\frac{\left(a + b\right) \cdot c}{d}")]
     [InlineData("a - b + c - -d", @"a - b + c - \left(-d\right)")]
     [InlineData("zero(2, 3)", @"0_{2\times 3}")]
+    [InlineData("prod(n in 1..inf: 1 - q^n)", @"\prod_{n=1}^{\infty} \left(1 - q^{n}\right)")]
+    [InlineData("sum(k in -inf..inf: q^(k^2))", @"\sum_{k=-\infty}^{\infty} q^{k^{2}}")]
     [InlineData("inv(M)", @"M^{-1}")]
     [InlineData("adj(M)", @"\operatorname{adj}\left(M\right)")]
     [InlineData("(A*B)[i, j]", @"\left(A \cdot B\right)_{i,j}")]

@@ -272,6 +272,7 @@ public sealed class SmtLibWriterTests
     public void WhatTheCompilerRejects_IsSkipped_NotTranslated()
     {
         Assert.Contains("skew-symmetric", Skip("pf([[0,1],[2,0]]) = 1"));
+        Assert.Contains("truncated power series identity (up to q^5)", Skip("prod(n in 1..inf: 1 - q^n) = 1 - q - q^2 up to q^5"));
         Assert.Contains("differ in type", Skip("[[a,b]] = a"));
         Assert.Contains("divides by zero", Skip("x/(2-2) = x"));
     }
