@@ -45,6 +45,17 @@ public sealed class ScreeningJob(IScreeningStore store, WorkerSettings settings,
         stats.ChunkDone(claimed.Count);
     }
 
+    /// <summary>
+    /// A compile error of a stored candidate: its catalogue line (the stored position) and the column in the stored side,
+    /// which is the catalogue's side as printed by the importer (`idq show` prints it), with the side and the values:
+    /// "line 36, column 20 of the stored rhs, at n=2, j=1: …".
+    /// </summary>
+    internal static string StoredMessage(Algebra.Syntax.IdentityEntry entry, Algebra.Syntax.Diagnostic error)
+    {
+        if (error.Side is null) return $"line {entry.Line}: {error}";
+        return $"line {entry.Line}, column {error.Position.Column} of the stored {error.Side}{(error.Values is null ? "" : $", {error.Values}")}: {error.Message}";
+    }
+
     /// <summary>Screens one candidate; a deterministic failure of this candidate is its outcome, never the chunk's.</summary>
     internal CandidateOutcome ScreenOne(CandidateWork work, int stage, CancellationToken cancellation)
     {
@@ -52,7 +63,7 @@ public sealed class ScreeningJob(IScreeningStore store, WorkerSettings settings,
         try
         {
             var compiled = compiler.Compile(work.Entry!, work.Parameters);
-            if (!compiled.Success) return new CandidateOutcome(work.Id, null, compiled.Error!.ToString(), null);
+            if (!compiled.Success) return new CandidateOutcome(work.Id, null, StoredMessage(work.Entry!, compiled.Error!), null);
             var options = new ScreeningOptions
             {
                 Seed = work.Seed,

@@ -167,6 +167,21 @@ public sealed class StoreEndToEndTests : IDisposable
         Assert.Equal(0, Idq("recheck", "--all", "--db", Db).Code);
     }
 
+    // A screening-time invalid names the catalogue line, the column in the stored side (as idq show prints it), the side
+    // and the values of the parameters and bound variables.
+    [Fact]
+    public void InvalidAtScreening_NamesTheLineTheSideAndTheValues()
+    {
+        var file = Path.Combine(_dir, "i.idq");
+        File.WriteAllText(file, "# first line\nok: x = x\nbad: x + sum(j in 0..n: x^j/(j-1)) = 0 for n in 2..3\n");
+        Idq("init", "--db", Db);
+        Idq("import", file, "--db", Db);
+        Idq("run", "--db", Db);
+        var rows = Query(Db, "SELECT label, message FROM verdicts WHERE state = 'invalid' ORDER BY label");
+        Assert.Equal("line 3, column 23 of the stored lhs, at n=2, j=1: division by zero", rows[0][1]);
+        Assert.Equal("line 3, column 23 of the stored lhs, at n=3, j=1: division by zero", rows[1][1]);
+    }
+
     [Fact]
     public void SqlStatusShowAndExport_Work()
     {

@@ -47,7 +47,9 @@ public static class IdentityCompiler
         }
         catch (CompileError e)
         {
-            return CompileResult.Fail(e.ToDiagnostic());
+            var order = entry.Parameters.Count > 0 ? entry.Parameters.Select(p => p.Name).ToList()
+                : parameters.Keys.OrderBy(k => k, StringComparer.Ordinal).ToList();
+            return CompileResult.Fail(e.ToDiagnostic(walker.Side, parameters, order));
         }
         catch (ProgramTooLargeException)
         {
@@ -124,10 +126,16 @@ public static class IdentityCompiler
 
         public SourcePosition LastPosition { get; private set; } = new(1, 1);
 
+        /// <summary>The side being compiled, <c>lhs</c> or <c>rhs</c>, for messages; null once both are done.</summary>
+        public string? Side { get; private set; }
+
         public StraightLineProgram CompileDifference(Expr left, Expr right)
         {
+            Side = "lhs";
             var l = left.Accept(this);
+            Side = "rhs";
             var r = right.Accept(this);
+            Side = null;
             if (!l.IsMatrix && !r.IsMatrix)
             {
                 var d = _b.RawSubtract(l.Scalar, r.Scalar);
@@ -774,7 +782,16 @@ public static class IdentityCompiler
                 foreach (var k in values)
                 {
                     _scope[node.Variable] = k;
-                    var term = node.Body.Accept(this);
+                    Value term;
+                    try
+                    {
+                        term = node.Body.Accept(this);
+                    }
+                    catch (CompileError e)
+                    {
+                        e.Bindings.Add((node.Variable, k));
+                        throw;
+                    }
                     acc = acc is null ? term
                         : node.Kind == BoundKind.Sum ? AddOrSubtract(acc.Value, term, node.Body.Position, subtract: false)
                         : Multiply(acc.Value, term, node.Position);
@@ -819,7 +836,16 @@ public static class IdentityCompiler
                     {
                         _scope[node.RowVariable] = r0 + i;
                         _scope[node.ColumnVariable] = c0 + j;
-                        e[i * (int)columns + j] = ScalarOf(node.Body, "a matrix entry");
+                        try
+                        {
+                            e[i * (int)columns + j] = ScalarOf(node.Body, "a matrix entry");
+                        }
+                        catch (CompileError error)
+                        {
+                            error.Bindings.Add((node.ColumnVariable, c0 + j));
+                            error.Bindings.Add((node.RowVariable, r0 + i));
+                            throw;
+                        }
                     }
             }
             finally

@@ -97,10 +97,21 @@ public sealed record IdentityEntry(
     public bool IsFamily => Parameters.Count > 0;
 }
 
-/// <summary>A problem found in catalogue text: where it is and what it is. Immutable.</summary>
+/// <summary>
+/// A problem found in catalogue text: where it is and what it is, and for a compile error the side and the values of the
+/// parameters and bound variables where it happened (<see cref="Context"/>: <c>rhs, at n=2, j=1</c>). Immutable.
+/// </summary>
 public sealed record Diagnostic(SourcePosition Position, string Message)
 {
-    public override string ToString() => $"{Position}: {Message}";
+    public string? Context { get; init; }
+
+    /// <summary>The side of a compile error, <c>lhs</c> or <c>rhs</c> (also in <see cref="Context"/>).</summary>
+    public string? Side { get; init; }
+
+    /// <summary>The values of a compile error, <c>at n=2, j=1</c> (also in <see cref="Context"/>).</summary>
+    public string? Values { get; init; }
+
+    public override string ToString() => Context is null ? $"{Position}: {Message}" : $"{Position}, {Context}: {Message}";
 }
 
 /// <summary>The outcome of parsing: a value, or a <see cref="Diagnostic"/> that carries the position. Never throws.</summary>
