@@ -62,4 +62,7 @@ public sealed record Limits
 
     /// <summary>Largest estimated size, in bits, of an exact rational evaluation used to certify a refutation.</summary>
     public long MaxCertifyBits { get; init; } = 1 << 22;
+
+    /// <summary>N in <c>up to q^N</c>: the highest power of q a truncated power series identity compares.</summary>
+    public int MaxSeriesOrder { get; init; } = 10_000;
 }

@@ -165,6 +165,15 @@ public static class CheckCommand
         }
         if (json) JsonReport.Write(output, entry, options, outcomes);
         else TextReport.Write(output, entry, options, outcomes);
+        // Every invalid message on standard error, like a parse error (with the text and a caret for a single line).
+        foreach (var o in outcomes.Where(o => o.Verdict == Verdict.Invalid))
+            error.WriteLine($"idq check: invalid: {o.Invalid ?? o.Result?.Message}");
+        if (outcomes is [{ Verdict: Verdict.Invalid, Invalid: not null }] && !json && text.Length <= 200
+            && IdentityCompiler.Compile(entry, family.Instances[0], options.Limits).Error is { Position: { Line: 1, Column: >= 1 } at })
+        {
+            error.WriteLine($"  {text}");
+            error.WriteLine($"  {new string(' ', Math.Min(at.Column - 1, text.Length))}^");
+        }
         return ExitCode(outcomes.Select(o => o.Verdict));
     }
 

@@ -53,13 +53,15 @@ internal static class ShowCommands
     {
         o.WriteLine($"candidate {c.Id}  {c.Label}" + (c.Family is null ? "" : $"  (family {c.Family}, {c.Params})") + $"  catalogue {c.Catalogue}");
         o.WriteLine($"  {c.Text}");
-        o.WriteLine($"  state          {state}" + (state == "survived" ? " (very likely true; screening is evidence, not proof)" : ""));
+        var exact = row?[7] is string text && text.StartsWith(ExactDecision.Prefix, StringComparison.Ordinal);
+        o.WriteLine($"  state          {state}" + (exact ? " (decided exactly: the identity has no variables)"
+            : state == "survived" ? " (very likely true; screening is evidence, not proof)" : ""));
         if (row is not null)
         {
             if (row[1] is not null) o.WriteLine($"  degree bound   {row[1]}");
             if (row[4] is double e) o.WriteLine($"  error bound    2^{e:F1} (valid as far as the degree bound holds)");
             if (row[7] is string m) o.WriteLine($"  message        {m}");
-            if (row[6] is long certified && certified != 0) o.WriteLine("  certified      the witness was confirmed exactly");
+            if (row[6] is long certified && certified != 0 && !exact) o.WriteLine("  certified      the witness was confirmed exactly");
         }
         o.WriteLine($"  trials         {trials.Count}");
         foreach (var t in trials)
@@ -170,11 +172,14 @@ internal static class ShowCommands
         var stored = candidates.LoadCandidate(id);
         if (stored is null) return "no such candidate";
         var witness = candidates.LoadTrials(id).LastOrDefault(t => t.Outcome == TrialOutcome.Nonzero);
-        if (witness is null) return "no refutation witness is stored";
         var bound = stored.Bind();
         if (!bound.Success) return $"its text does not parse: {bound.Error}";
         var compiled = IdentityCompiler.Compile(bound.Entry!, bound.Parameters);
         if (!compiled.Success) return $"it does not compile: {compiled.Error}";
+        if (witness is null)
+            // An identity without variables is refuted by exact evaluation, with no trial: evaluate it again.
+            return ExactDecision.TryDecide(compiled.Value!, Algebra.Limits.Default) is { Verdict: Verdict.Refuted } ? null
+                : "no refutation witness is stored";
         var again = WitnessChecker.Recheck(compiled.Value!, witness.Field, witness.Point);
         if (!again.Refutes) return "the witness no longer refutes it: lhs - rhs is zero or undefined there";
         if (!again.Difference!.SequenceEqual(witness.Difference!)) return "the re-evaluated difference differs from the stored one";

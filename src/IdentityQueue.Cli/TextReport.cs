@@ -35,7 +35,10 @@ internal static class TextReport
         switch (x.Verdict)
         {
             case Verdict.Invalid:
-                o.WriteLine($"invalid: {x.Invalid ?? r?.Message}");
+                o.WriteLine("invalid (the reason is on standard error)");
+                return;
+            case Verdict.Survived or Verdict.Refuted when r is { Trials.Count: 0, Message: { } exact }:
+                o.WriteLine($"{(x.Verdict == Verdict.Survived ? "survived: true" : "refuted: false")} over {entry.Field}, {exact}");
                 return;
             case Verdict.Survived:
                 o.WriteLine($"survived: very likely true over {entry.Field} (screening is evidence, not proof)");

@@ -15,7 +15,7 @@ namespace IdentityQueue.Screening;
 public static class BlockTrialRunner
 {
     /// <summary>Whether trials of <paramref name="identity"/> on <paramref name="rung"/> run as a block (over Q, the 31- and 62-bit rungs).</summary>
-    public static bool Handles(CompiledIdentity identity, Rung rung) => identity.Field.IsRationals && rung.PrimeBits is 31 or 62;
+    public static bool Handles(CompiledIdentity identity, Rung rung) => identity.Field.IsRationals && !identity.Field.IsSeries && rung.PrimeBits is 31 or 62;
 
     /// <summary>The lanes a block of <paramref name="lanes"/> trials on <paramref name="rung"/> computes: whole vectors (what it costs).</summary>
     public static int PaddedLanes(Rung rung, int lanes)

@@ -32,6 +32,7 @@ public static class Screener
         if (UndefinedConstant(identity) is { } constant)
             return new ScreenResult(Verdict.Invalid, bounds.Degree, bounds.HeightLog2, null, trials, null, false,
                 $"the constant {constant} is not defined in {identity.Field}: its denominator is divisible by {identity.Field.Characteristic}");
+        if (ExactDecision.TryDecide(identity, options.Limits) is { } exact) return exact;
         var accumulated = 0.0;
         var consecutiveUndefined = 0;
         var climbed = new HashSet<int>(); // the rungs with a zero trial: the ladder's position
@@ -179,12 +180,28 @@ public static class Screener
         return null;
     }
 
+    /// <summary>
+    /// A side condition (a Pfaffian's argument skew-symmetric) that failed at a trial point: which, and the witness that
+    /// anyone can re-check (the trial is stored as the candidate's witness).
+    /// </summary>
+    private static string ConditionMessage(TrialRecord w)
+    {
+        var f = w.Field;
+        var field = f.DefiningPolynomial is null ? $"modulus p = {f.Modulus}" : $"GF({f.Modulus}^{f.ExtensionDegree}), defining polynomial coefficients [{string.Join(", ", f.DefiningPolynomial)}]";
+        var point = string.Join(", ", w.Point.Select(v => $"{v.Name} = {(v.Coordinates.Length == 1 ? v.Coordinates[0].ToString() : $"[{string.Join(", ", v.Coordinates)}]")}"));
+        var value = w.Difference is { Length: 1 } d ? d[0].ToString() : $"[{string.Join(", ", w.Difference ?? [])}]";
+        return $"{w.Entry} must be 0 for a skew-symmetric matrix, but it is {value} at trial {w.Seq} ({field}; {point})";
+    }
+
     private static ScreenResult Undecided(CompiledIdentity identity, List<TrialRecord> trials, double accumulated, string message) =>
         new(Verdict.Undecided, identity.Bounds.Degree, identity.Bounds.HeightLog2, accumulated, trials, null, false, message);
 
     private static ScreenResult Refuted(CompiledIdentity identity, ScreeningOptions options, List<TrialRecord> trials, TrialRecord witness,
         CancellationToken cancellation)
     {
+        if (identity.Program.IsCondition(witness.Entry))
+            return new ScreenResult(Verdict.Invalid, identity.Bounds.Degree, identity.Bounds.HeightLog2, null, trials, witness, false,
+                ConditionMessage(witness));
         var certified = options.Certify && WitnessChecker.Certify(identity, witness, options.Limits, cancellation);
         return new ScreenResult(Verdict.Refuted, identity.Bounds.Degree, identity.Bounds.HeightLog2, null, trials, witness, certified, null);
     }

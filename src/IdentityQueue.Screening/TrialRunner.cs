@@ -49,7 +49,9 @@ public static class TrialRunner
     {
         var point = new T[identity.Program.Variables.Length];
         for (var i = 0; i < point.Length; i++) point[i] = field.Sample(ref random);
-        var difference = EvaluateDifference<TField, T>(field, identity.Program, point, cancellation);
+        var difference = identity.Field.IsSeries
+            ? SeriesTrial.Evaluate<TField, T>(field, identity, point)
+            : EvaluateDifference<TField, T>(field, identity.Program, point, cancellation);
         return Record<TField, T>(field, identity, seq, pointSeed, point, definingPolynomial, difference, Elapsed(clock));
     }
 
@@ -61,7 +63,8 @@ public static class TrialRunner
         var variables = identity.Program.Variables;
         var trialField = new TrialField(field.Characteristic, field.ExtensionDegree, definingPolynomial, field.SizeLog2);
         var pointValues = new PointValue[point.Length];
-        for (var i = 0; i < point.Length; i++) pointValues[i] = new PointValue(variables[i], field.ToCoefficients(point[i]));
+        if (identity.Field.IsSeries) pointValues = SeriesTrial.Point<TField, T>(field, identity, point);
+        else for (var i = 0; i < point.Length; i++) pointValues[i] = new PointValue(variables[i], field.ToCoefficients(point[i]));
         if (!difference.Defined)
             return new TrialRecord(seq, trialField, pointSeed, TrialOutcome.Undefined, pointValues, null, null, null, elapsedMicroseconds);
         if (difference.Refutes)
@@ -93,7 +96,7 @@ public static class TrialRunner
         {
             var value = outputs[o * stride + lane];
             if (!field.IsZero(value))
-                return new RecheckResult(true, field.ToCoefficients(value), program.OutputNames.Length > 0 ? program.OutputNames[o] : null);
+                return new RecheckResult(true, field.ToCoefficients(value), program.OutputName(o));
         }
         return new RecheckResult(true, null, null);
     }

@@ -37,11 +37,13 @@ public static class WitnessChecker
         var byName = point.ToDictionary(v => v.Name, v => v.Coordinates, StringComparer.Ordinal);
         for (var i = 0; i < values.Length; i++)
         {
+            if (program.Variables[i] == identity.Field.SeriesVariable) continue; // the series q itself
             if (!byName.TryGetValue(program.Variables[i], out var coordinates))
                 throw new ArgumentException($"the witness gives no value for the variable '{program.Variables[i]}'");
             values[i] = field.FromCoefficients(coordinates);
         }
-        return TrialRunner.EvaluateDifference<TField, T>(field, program, values);
+        return identity.Field.IsSeries ? SeriesTrial.Evaluate<TField, T>(field, identity, values)
+            : TrialRunner.EvaluateDifference<TField, T>(field, program, values);
     }
 
     /// <summary>
@@ -54,6 +56,16 @@ public static class WitnessChecker
     {
         if (!identity.Field.IsRationals)
             return Recheck(identity, witness.Field, witness.Point).Refutes;
+        if (identity.Field.IsSeries)
+        {
+            // exact rationals in Q[q]/(q^(N+1)) at the witness point, read as integers
+            var exact = new Rational[identity.Program.Variables.Length];
+            var given = witness.Point.ToDictionary(v => v.Name, v => v.Coordinates[0], StringComparer.Ordinal);
+            for (var i = 0; i < exact.Length; i++)
+                exact[i] = identity.Program.Variables[i] == identity.Field.SeriesVariable ? Rational.Zero : given[identity.Program.Variables[i]];
+            if (BoundAnalysis.ExactEvaluationBits(identity.Program, given.Count == 0 ? 1 : given.Values.Max(v => (double)v.GetBitLength()), limits.MaxCertifyBits) * (identity.Field.SeriesOrder + 1) > limits.MaxCertifyBits) return false;
+            return SeriesTrial.Evaluate<RationalField, Rational>(default, identity, exact).Refutes;
+        }
         var program = identity.Program;
         var coordinateBits = witness.Point.Count == 0 ? 1 : witness.Point.Max(v => (double)v.Coordinates[0].GetBitLength());
         if (BoundAnalysis.ExactEvaluationBits(program, coordinateBits, limits.MaxCertifyBits) > limits.MaxCertifyBits) return false;

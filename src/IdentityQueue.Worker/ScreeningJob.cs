@@ -70,6 +70,17 @@ public sealed class ScreeningJob(IScreeningStore store, WorkerSettings settings,
         stats.ChunkDone(claimed.Count);
     }
 
+    /// <summary>
+    /// A compile error of a stored candidate: its catalogue line (the stored position) and the column in the stored side,
+    /// which is the catalogue's side as printed by the importer (`idq show` prints it), with the side and the values:
+    /// "line 36, column 20 of the stored rhs, at n=2, j=1: …".
+    /// </summary>
+    internal static string StoredMessage(Algebra.Syntax.IdentityEntry entry, Algebra.Syntax.Diagnostic error)
+    {
+        if (error.Side is null) return $"line {entry.Line}: {error}";
+        return $"line {entry.Line}, column {error.Position.Column} of the stored {error.Side}{(error.Values is null ? "" : $", {error.Values}")}: {error.Message}";
+    }
+
     /// <summary>A graceful stop: what is screened is saved (a candidate stopped mid-screen with its finished trials, as pending), the rest goes back to pending.</summary>
     private void Stop(List<CandidateOutcome> outcomes, List<long> unscreened, int stage)
     {
@@ -89,7 +100,7 @@ public sealed class ScreeningJob(IScreeningStore store, WorkerSettings settings,
         try
         {
             var compiled = compiler.Compile(work.Entry!, work.Parameters);
-            if (!compiled.Success) return new Prepared(work, new CandidateOutcome(work.Id, null, compiled.Error!.ToString(), null), null, null, TimeSpan.Zero);
+            if (!compiled.Success) return new Prepared(work, new CandidateOutcome(work.Id, null, StoredMessage(work.Entry!, compiled.Error!), null), null, null, TimeSpan.Zero);
             var options = new ScreeningOptions
             {
                 Seed = work.Seed,

@@ -56,6 +56,21 @@ public class CheckCommandTests
         Assert.True(point.TryGetProperty("x[2]", out _));
     }
 
+    // Every invalid message goes to standard error with the side and the values; standard output only says "invalid".
+    [Fact]
+    public void InvalidInstances_ArePrintedOnStandardError()
+    {
+        var (code, output, error) = Run("check", "x = x + sum(j in 0..n: x^j/(j-1)) for n in 2..3", "--seed", "1");
+        Assert.Equal(2, code);
+        Assert.Contains("idq check: invalid: line 1, column 27, rhs, at n=2, j=1: division by zero", error);
+        Assert.Contains("idq check: invalid: line 1, column 27, rhs, at n=3, j=1: division by zero", error);
+        Assert.DoesNotContain("division by zero", output);
+        // a screening-time invalid (a Pfaffian's argument that is not skew-symmetric) goes there too
+        var pf = Run("check", "pf([[0, a], [b, 0]]) = a", "--seed", "1");
+        Assert.Equal(2, pf.Code);
+        Assert.Contains("idq check: invalid: pf's argument at line 1, column 4: entry [1,2] + entry [2,1] must be 0", pf.Err);
+    }
+
     [Fact]
     public void MalformedInput_ExitsTwoWithThePosition()
     {

@@ -86,7 +86,12 @@ public sealed class StoreEndToEndTests : IDisposable
             Assert.Equal(expected, states[$"vdm-reversed[n={n}]"]);
 
         // every survivor reached the target; every refutation has a witness that is certified
-        Assert.All(Query(Db, "SELECT error_bound_log2 FROM survivors"), r => Assert.True(Convert.ToDouble(r[0], CultureInfo.InvariantCulture) <= -64));
+        // (lander-parkin has no variables: decided exactly, with no error bound)
+        Assert.All(Query(Db, "SELECT error_bound_log2, message FROM survivors"), r =>
+        {
+            if (r[0] is null) Assert.StartsWith(Screening.ExactDecision.Prefix, (string)r[1]!);
+            else Assert.True(Convert.ToDouble(r[0], CultureInfo.InvariantCulture) <= -64);
+        });
         Assert.All(Query(Db, "SELECT r.certified, v.witness_modulus FROM verdicts v JOIN result r ON r.candidate_id = v.candidate_id WHERE v.state = 'refuted'"),
             r => { Assert.Equal(1L, r[0]); Assert.NotNull(r[1]); });
 
@@ -188,6 +193,44 @@ public sealed class StoreEndToEndTests : IDisposable
         Assert.All(before, t => Assert.Contains(t, after));
         Assert.True(Convert.ToDouble(Query(Db, "SELECT error_bound_log2 FROM verdicts WHERE label = 't'").Single()[0], CultureInfo.InvariantCulture) <= -256);
         Assert.Equal(1L, Query(Db, "SELECT count(*) FROM trial t JOIN candidate c ON c.id = t.candidate_id WHERE c.label = 'f'").Single()[0]);
+    }
+
+    [Fact]
+    public void ConstantIdentities_AreDecidedExactly_WithBothValuesAndNoErrorBound()
+    {
+        // Lander & Parkin, Bull. AMS 72 (1966) 1079: 27^5 + 84^5 + 110^5 + 133^5 = 144^5; 2^5 = 32 (common practice).
+        var file = Path.Combine(_dir, "c.idq");
+        File.WriteAllText(file, "lp: 27^5 + 84^5 + 110^5 + 133^5 = 144^5\nfive: 2^5 = 31\n");
+        Idq("init", "--db", Db);
+        Idq("import", file, "--db", Db);
+        Assert.Equal(0, Idq("run", "--db", Db).Code);
+        var rows = Query(Db, "SELECT label, state, trials, error_bound_log2, message FROM verdicts ORDER BY label");
+        Assert.Equal(("five", "refuted", 0L), ((string)rows[0][0]!, (string)rows[0][1]!, Convert.ToInt64(rows[0][2], CultureInfo.InvariantCulture)));
+        Assert.Null(rows[0][3]);
+        Assert.Equal($"{Screening.ExactDecision.Prefix}: 32 ≠ 31", rows[0][4]);
+        Assert.Equal(("lp", "survived"), ((string)rows[1][0]!, (string)rows[1][1]!));
+        Assert.Null(rows[1][3]);
+        var show = Idq("show", "five", "--db", Db);
+        Assert.Contains("32 ≠ 31", show.Out);
+        Assert.Contains("decided exactly", show.Out);
+        Assert.DoesNotContain("4096", show.Out);
+        Assert.DoesNotContain("4096", Idq("show", "lp", "--db", Db).Out);
+        Assert.Equal(0, Idq("recheck", "--all", "--db", Db).Code);
+    }
+
+    // A screening-time invalid names the catalogue line, the column in the stored side (as idq show prints it), the side
+    // and the values of the parameters and bound variables.
+    [Fact]
+    public void InvalidAtScreening_NamesTheLineTheSideAndTheValues()
+    {
+        var file = Path.Combine(_dir, "i.idq");
+        File.WriteAllText(file, "# first line\nok: x = x\nbad: x + sum(j in 0..n: x^j/(j-1)) = 0 for n in 2..3\n");
+        Idq("init", "--db", Db);
+        Idq("import", file, "--db", Db);
+        Idq("run", "--db", Db);
+        var rows = Query(Db, "SELECT label, message FROM verdicts WHERE state = 'invalid' ORDER BY label");
+        Assert.Equal("line 3, column 23 of the stored lhs, at n=2, j=1: division by zero", rows[0][1]);
+        Assert.Equal("line 3, column 23 of the stored lhs, at n=3, j=1: division by zero", rows[1][1]);
     }
 
     [Fact]

@@ -56,6 +56,7 @@ public static class FamilyExpander
             throw new CompileError(range.Position, $"the family has more than {limits.MaxFamilySize} instances (the limit MaxFamilySize)");
         for (var v = from; v <= to; v++)
         {
+            if (range.PrimesOnly && (v < 2 || !Fields.Primality.IsPrime(v))) continue;
             scope[range.Name] = v;
             Walk(ranges, depth + 1, scope, result, limits);
             if (result.Count > limits.MaxFamilySize)

@@ -31,7 +31,14 @@ public static class IdentityCompiler
     {
         limits ??= Limits.Default;
         parameters ??= NoParameters;
-        var walker = new Walker(limits, parameters, shareParameters: false);
+        if (entry.Field.CharacteristicParameter is not null)
+        {
+            // over GF(p) with p a family parameter: this instance's field.
+            var field = entry.Field.Bind(parameters, limits.MaxFieldBits, out var error);
+            if (field is null) return CompileResult.Fail(new Diagnostic(entry.Field.ParameterPosition, error!));
+            entry = entry with { Field = field };
+        }
+        var walker = new Walker(limits, parameters, shareParameters: false, Series(entry.Field));
         try
         {
             var program = walker.CompileDifference(entry.Left, entry.Right);
@@ -40,7 +47,9 @@ public static class IdentityCompiler
         }
         catch (CompileError e)
         {
-            return CompileResult.Fail(e.ToDiagnostic());
+            var order = entry.Parameters.Count > 0 ? entry.Parameters.Select(p => p.Name).ToList()
+                : parameters.Keys.OrderBy(k => k, StringComparer.Ordinal).ToList();
+            return CompileResult.Fail(e.ToDiagnostic(walker.Side, parameters, order));
         }
         catch (ProgramTooLargeException)
         {
@@ -62,9 +71,9 @@ public static class IdentityCompiler
     /// </summary>
     public static FamilyTemplate? CompileTemplate(IdentityEntry entry, IReadOnlyDictionary<string, BigInteger> parameters, Limits? limits = null)
     {
-        if (parameters.Count == 0) return null;
+        if (parameters.Count == 0 || entry.Field.CharacteristicParameter is not null) return null;
         limits ??= Limits.Default;
-        var walker = new Walker(limits, parameters, shareParameters: true);
+        var walker = new Walker(limits, parameters, shareParameters: true, Series(entry.Field));
         try
         {
             var program = walker.CompileDifference(entry.Left, entry.Right);
@@ -75,6 +84,8 @@ public static class IdentityCompiler
             return null;
         }
     }
+
+    private static (string, int)? Series(FieldSpec field) => field.SeriesVariable is { } q ? (q, field.SeriesOrder) : null;
 
     /// <summary>A scalar register or a matrix of registers.</summary>
     private readonly struct Value
@@ -101,7 +112,8 @@ public static class IdentityCompiler
         public string Describe() => IsMatrix ? $"a {Rows}×{Columns} matrix" : "a scalar";
     }
 
-    private sealed class Walker(Limits limits, IReadOnlyDictionary<string, BigInteger> parameters, bool shareParameters) : IExprVisitor<Value>
+    private sealed class Walker(Limits limits, IReadOnlyDictionary<string, BigInteger> parameters, bool shareParameters,
+        (string Variable, int Order)? series = null) : IExprVisitor<Value>
     {
         private readonly ProgramBuilder _b = new(limits);
         private readonly Dictionary<string, BigInteger> _scope = new(parameters, StringComparer.Ordinal);
@@ -114,14 +126,20 @@ public static class IdentityCompiler
 
         public SourcePosition LastPosition { get; private set; } = new(1, 1);
 
+        /// <summary>The side being compiled, <c>lhs</c> or <c>rhs</c>, for messages; null once both are done.</summary>
+        public string? Side { get; private set; }
+
         public StraightLineProgram CompileDifference(Expr left, Expr right)
         {
+            Side = "lhs";
             var l = left.Accept(this);
+            Side = "rhs";
             var r = right.Accept(this);
+            Side = null;
             if (!l.IsMatrix && !r.IsMatrix)
             {
                 var d = _b.RawSubtract(l.Scalar, r.Scalar);
-                return _b.Build([d], []);
+                return Build([d], []);
             }
             // A matrix compared with the literal 0 means the zero matrix.
             if (!r.IsMatrix && IsLiteralZero(right)) r = ZeroMatrix(l.Rows, l.Columns);
@@ -136,8 +154,21 @@ public static class IdentityCompiler
                     outputs[i * l.Columns + j] = _b.RawSubtract(l[i, j], r[i, j]);
                     names[i * l.Columns + j] = $"[{i + 1},{j + 1}]";
                 }
-            return _b.Build(outputs, names);
+            // Two 0×0 matrices (or 0×n) are equal: the identity is 0 = 0, decided exactly.
+            if (outputs.Length == 0) return Build([_b.RawSubtract(_b.Constant(Rational.Zero), _b.Constant(Rational.Zero))], []);
+            return Build(outputs, names);
         }
+
+        /// <summary>
+        /// Side conditions found while compiling (the skew-symmetry of a Pfaffian's argument where its entries are not
+        /// written as negatives of each other): registers that must vanish, with their names. They come first among the
+        /// program's outputs (<see cref="StraightLineProgram.ConditionNames"/>), so a trial checks them at its point.
+        /// </summary>
+        private readonly List<(int Register, string Name)> _conditions = [];
+
+        private StraightLineProgram Build(int[] outputs, string[] names) =>
+            _conditions.Count == 0 ? _b.Build(outputs, names)
+                : _b.Build([.. _conditions.Select(c => c.Register), .. outputs], names, [.. _conditions.Select(c => c.Name)]);
 
         private static bool IsLiteralZero(Expr e) => e is IntegerLiteral { Value.IsZero: true };
 
@@ -460,7 +491,7 @@ public static class IdentityCompiler
             for (var i = 0; i < l.Rows; i++)
                 for (var j = 0; j < r.Columns; j++)
                 {
-                    var acc = _b.Multiply(l[i, 0], r[0, j]);
+                    var acc = l.Columns == 0 ? _b.Constant(Rational.Zero) : _b.Multiply(l[i, 0], r[0, j]);
                     for (var k = 1; k < l.Columns; k++) acc = _b.Add(acc, _b.Multiply(l[i, k], r[k, j]));
                     e[i * r.Columns + j] = acc;
                 }
@@ -543,6 +574,15 @@ public static class IdentityCompiler
                     var k = Integer(args[1], "binom's second argument");
                     if (k.Sign < 0) return Value.Of(_b.Constant(Rational.Zero));
                     var count = CheckedCount(k, args[1], "binom's second argument");
+                    // A constant first argument gives an exact constant, with no 1/k! in the program: binom(10, 3) stays
+                    // defined over GF(3) (Lucas' congruences), where the constant 1/3! is not.
+                    if (_b.TryGetConstant(a, out var constant)
+                        && (long)count * (Math.Max(constant.Numerator.GetBitLength(), constant.Denominator.GetBitLength()) + 1) <= ProgramBuilder.MaxFoldedBits)
+                    {
+                        var exact = Rational.One;
+                        for (var i = 0; i < count; i++) exact = exact * (constant - i) / (i + 1);
+                        return Value.Of(_b.Constant(exact));
+                    }
                     var acc = _b.Constant(Rational.One);
                     var factorial = BigInteger.One;
                     for (var i = 0; i < count; i++)
@@ -580,8 +620,8 @@ public static class IdentityCompiler
                 {
                     var m = MatrixOf(args[0], "tr's argument");
                     if (m.Rows != m.Columns) throw new CompileError(args[0].Position, $"tr needs a square matrix, not {m.Describe()}");
-                    var acc = m[0, 0];
-                    for (var i = 1; i < m.Rows; i++) acc = _b.Add(acc, m[i, i]);
+                    var acc = _b.Constant(Rational.Zero);
+                    for (var i = 0; i < m.Rows; i++) acc = _b.Add(acc, m[i, i]);
                     return Value.Of(acc);
                 }
                 case Builtins.Transpose:
@@ -593,11 +633,43 @@ public static class IdentityCompiler
                     return Value.Matrix(m.Columns, m.Rows, e);
                 }
                 case Builtins.Identity:
+                    return Identity(Order(args[0], "id's argument"));
+                case Builtins.Zero:
                 {
-                    var n = Integer(args[0], "id's argument");
-                    if (n < 1 || n > limits.MaxMatrixOrder)
-                        throw new CompileError(args[0].Position, $"id's argument is {n}; it must be between 1 and the limit MaxMatrixOrder ({limits.MaxMatrixOrder})");
-                    return Identity((int)n);
+                    var rows = Order(args[0], "zero's first argument");
+                    return ZeroMatrix(rows, args.Count == 2 ? Order(args[1], "zero's second argument") : rows);
+                }
+                case Builtins.Diagonal:
+                    return Diagonal(node);
+                case Builtins.Entry:
+                {
+                    var m = MatrixOf(args[0], "the matrix of an entry");
+                    var i = Integer(args[1], "a row index");
+                    var j = Integer(args[2], "a column index");
+                    if (i < 1 || i > m.Rows || j < 1 || j > m.Columns)
+                        throw new CompileError(args[i < 1 || i > m.Rows ? 1 : 2].Position,
+                            $"the entry [{i},{j}] is outside {m.Describe()} (rows and columns count from 1)");
+                    return Value.Of(m[(int)i - 1, (int)j - 1]);
+                }
+                case Builtins.Submatrix:
+                    return Submatrix(node);
+                case Builtins.Minor:
+                {
+                    var sub = Submatrix(node);
+                    if (sub.Rows != sub.Columns)
+                        throw new CompileError(node.Position, $"minor needs as many rows as columns, but it selects {sub.Rows} rows and {sub.Columns} columns");
+                    return Value.Of(Determinant(sub));
+                }
+                case Builtins.Adjugate:
+                    return Adjugate(SquareOf(args[0], "adj"));
+                case Builtins.Inverse:
+                {
+                    var m = SquareOf(args[0], "inv");
+                    // inv(M) = adj(M)/det(M): undefined (the trial is resampled) where det(M) vanishes.
+                    if (_b.TryGetConstant(Determinant(m), out var d) && d.IsZero)
+                        throw new CompileError(args[0].Position, "inv of a matrix whose determinant is 0");
+                    var inverse = _b.Invert(Determinant(m));
+                    return Map(Adjugate(m), x => _b.Multiply(x, inverse));
                 }
                 default:
                     // The integer and number functions of integer arguments are exact constants once the parameters are fixed, so their
@@ -661,11 +733,12 @@ public static class IdentityCompiler
             if (m.Rows != m.Columns)
                 throw new CompileError(node.Arguments[0].Position, $"{node.Function} needs a square matrix, not {m.Describe()}");
             var n = m.Rows;
+            // The empty (0×0) matrix has det = perm = pf = 1: the empty product, as in the Laplace expansion (common practice).
+            if (n == 0) return _b.Constant(Rational.One);
             switch (node.Function)
             {
                 case Builtins.Det:
-                    if (n == 1) return m[0, 0];
-                    return _b.MatrixFunction(OpCode.Determinant, n, m.Entries);
+                    return Determinant(m);
                 case Builtins.Permanent:
                     if (n > limits.MaxPermanentOrder)
                         throw new CompileError(node.Position, $"perm of a {n}×{n} matrix exceeds the limit MaxPermanentOrder ({limits.MaxPermanentOrder})");
@@ -674,34 +747,230 @@ public static class IdentityCompiler
                 default:
                     if (n % 2 == 1)
                         throw new CompileError(node.Arguments[0].Position, $"pf needs a skew-symmetric matrix of even order, but this one is {n}×{n}");
-                    for (var i = 0; i < n; i++)
-                    {
-                        if (!_b.TryGetConstant(m[i, i], out var d) || !d.IsZero)
-                            throw new CompileError(node.Arguments[0].Position, $"pf needs a skew-symmetric matrix, but entry [{i + 1},{i + 1}] is not 0");
-                        for (var j = i + 1; j < n; j++)
-                            if (!_b.AreNegatives(m[i, j], m[j, i]))
-                                throw new CompileError(node.Arguments[0].Position, $"pf needs a skew-symmetric matrix, but entry [{j + 1},{i + 1}] is not the negative of entry [{i + 1},{j + 1}]");
-                    }
+                    SkewConditions(m, node.Arguments[0].Position);
                     return _b.MatrixFunction(OpCode.Pfaffian, n, m.Entries);
             }
+        }
+
+        /// <summary>
+        /// Skew-symmetry is a property of the values, not of the spelling: an entry pair written as negatives (or constants)
+        /// is checked here; any other pair becomes a side condition [j,i] + [i,j] = 0 (a diagonal entry: [i,i] = 0) that
+        /// every trial evaluates at its point. A constant that breaks it is a compile error.
+        /// </summary>
+        private void SkewConditions(Value m, SourcePosition at)
+        {
+            var n = m.Rows;
+            var where = $"pf's argument at {at}";
+            for (var i = 0; i < n; i++)
+            {
+                if (_b.TryGetConstant(m[i, i], out var d))
+                {
+                    if (!d.IsZero) throw new CompileError(at, $"pf needs a skew-symmetric matrix, but entry [{i + 1},{i + 1}] is {d}, not 0");
+                }
+                else _conditions.Add((m[i, i], $"{where}: entry [{i + 1},{i + 1}]"));
+                for (var j = i + 1; j < n; j++)
+                {
+                    if (_b.AreNegatives(m[i, j], m[j, i])) continue;
+                    var sum = _b.Add(m[i, j], m[j, i]);
+                    if (_b.TryGetConstant(sum, out var c))
+                    {
+                        if (c.IsZero) continue;
+                        throw new CompileError(at, $"pf needs a skew-symmetric matrix, but entry [{j + 1},{i + 1}] is not the negative of entry [{i + 1},{j + 1}] (their sum is {c})");
+                    }
+                    _conditions.Add((sum, $"{where}: entry [{i + 1},{j + 1}] + entry [{j + 1},{i + 1}]"));
+                }
+            }
+        }
+
+        private int Determinant(Value m) => m.Rows switch
+        {
+            0 => _b.Constant(Rational.One),
+            1 => m[0, 0],
+            _ => ConstantDeterminant(m) is { } d ? _b.Constant(d) : _b.MatrixFunction(OpCode.Determinant, m.Rows, m.Entries),
+        };
+
+        /// <summary>
+        /// The exact determinant of a small matrix of constants (Gaussian elimination over Q), so that inv(zero(2)) is seen
+        /// to divide by 0; null when an entry is not a constant, or the matrix is larger than 8×8.
+        /// </summary>
+        private Rational? ConstantDeterminant(Value m)
+        {
+            var n = m.Rows;
+            if (n > 8) return null;
+            var a = new Rational[n, n];
+            for (var i = 0; i < n; i++)
+                for (var j = 0; j < n; j++)
+                {
+                    if (!_b.TryGetConstant(m[i, j], out var c)) return null;
+                    a[i, j] = c;
+                }
+            var det = Rational.One;
+            for (var k = 0; k < n; k++)
+            {
+                var pivot = k;
+                while (pivot < n && a[pivot, k].IsZero) pivot++;
+                if (pivot == n) return Rational.Zero;
+                if (pivot != k)
+                {
+                    det = -det;
+                    for (var j = 0; j < n; j++) (a[k, j], a[pivot, j]) = (a[pivot, j], a[k, j]);
+                }
+                det *= a[k, k];
+                for (var i = k + 1; i < n; i++)
+                {
+                    var f = a[i, k] / a[k, k];
+                    for (var j = k; j < n; j++) a[i, j] -= f * a[k, j];
+                }
+            }
+            return det;
+        }
+
+        private Value SquareOf(Expr e, string function)
+        {
+            var m = MatrixOf(e, $"{function}'s argument");
+            if (m.Rows != m.Columns) throw new CompileError(e.Position, $"{function} needs a square matrix, not {m.Describe()}");
+            return m;
+        }
+
+        /// <summary>adj(M)[i,j] = (−1)^(i+j)·det(M without row j and column i): n² determinants of order n − 1; adj of 1×1 is [[1]].</summary>
+        private Value Adjugate(Value m)
+        {
+            var n = m.Rows;
+            if ((long)n * n * Math.Max(1, (long)(n - 1) * (n - 1)) > limits.MaxProgramSize)
+                throw new CompileError(LastPosition, $"adj of a {n}×{n} matrix needs more than {limits.MaxProgramSize} operands (the limit MaxProgramSize)");
+            var e = new int[n * n];
+            var minor = new int[(n - 1) * (n - 1)];
+            for (var i = 0; i < n; i++)
+                for (var j = 0; j < n; j++)
+                {
+                    var k = 0;
+                    for (var r = 0; r < n; r++)
+                    {
+                        if (r == j) continue;
+                        for (var c = 0; c < n; c++)
+                            if (c != i) minor[k++] = m[r, c];
+                    }
+                    var cofactor = Determinant(Value.Matrix(n - 1, n - 1, (int[])minor.Clone()));
+                    e[i * n + j] = (i + j) % 2 == 0 ? cofactor : _b.Negate(cofactor);
+                }
+            return Value.Matrix(n, n, e);
+        }
+
+        /// <summary>An order (rows or columns of id, zero): 0 up to the limit MaxMatrixOrder.</summary>
+        private int Order(Expr e, string what)
+        {
+            var n = Integer(e, what);
+            if (n < 0 || n > limits.MaxMatrixOrder)
+                throw new CompileError(e.Position, $"{what} is {n}; it must be between 0 and the limit MaxMatrixOrder ({limits.MaxMatrixOrder})");
+            return (int)n;
+        }
+
+        /// <summary><c>diag(a, b, …)</c>, or <c>diag(v)</c> of a row or column vector v: the square matrix with these entries on its diagonal.</summary>
+        private Value Diagonal(CallExpr node)
+        {
+            var entries = new List<int>();
+            var values = node.Arguments.Select(a => a.Accept(this)).ToList();
+            if (values is [{ IsMatrix: true } v])
+            {
+                if (v.Rows != 1 && v.Columns != 1)
+                    throw new CompileError(node.Arguments[0].Position, $"diag of one matrix needs a row or a column vector, not {v.Describe()}");
+                entries.AddRange(v.Entries!);
+            }
+            else
+                for (var a = 0; a < values.Count; a++)
+                {
+                    if (values[a].IsMatrix)
+                        throw new CompileError(node.Arguments[a].Position, $"an argument of diag must be a scalar, but it is {values[a].Describe()}");
+                    entries.Add(values[a].Scalar);
+                }
+            var n = entries.Count;
+            if (n > limits.MaxMatrixOrder)
+                throw new CompileError(node.Position, $"the matrix is {n}×{n}; the limit MaxMatrixOrder is {limits.MaxMatrixOrder}");
+            var zero = _b.Constant(Rational.Zero);
+            var e = Enumerable.Repeat(zero, n * n).ToArray();
+            for (var i = 0; i < n; i++) e[i * n + i] = entries[i];
+            return Value.Matrix(n, n, e);
+        }
+
+        /// <summary><c>submatrix(M, ROWS, COLUMNS)</c>: the rows and columns listed, in the order given (indices from 1).</summary>
+        private Value Submatrix(CallExpr node)
+        {
+            var m = MatrixOf(node.Arguments[0], $"{node.Function}'s first argument");
+            var rows = Indices(node.Arguments[1], m.Rows, "row");
+            var columns = Indices(node.Arguments[2], m.Columns, "column");
+            var e = new int[rows.Count * columns.Count];
+            for (var i = 0; i < rows.Count; i++)
+                for (var j = 0; j < columns.Count; j++) e[i * columns.Count + j] = m[rows[i], columns[j]];
+            return Value.Matrix(rows.Count, columns.Count, e);
+        }
+
+        /// <summary>The 0-based indices of an index list <c>[1, 3..n]</c>, each checked against the matrix's size.</summary>
+        private List<int> Indices(Expr list, int size, string what)
+        {
+            if (list is not CallExpr { Function: Builtins.IndexList } call)
+                throw new CompileError(list.Position, $"expected a list of {what} indices such as [1, 3..n]");
+            var result = new List<int>();
+            foreach (var item in call.Arguments)
+            {
+                BigInteger from, to;
+                if (item is CallExpr { Function: Builtins.Range } range)
+                {
+                    from = Integer(range.Arguments[0], "a range start");
+                    to = Integer(range.Arguments[1], "a range end");
+                }
+                else from = to = Integer(item, $"a {what} index");
+                for (var k = from; k <= to; k++)
+                {
+                    if (k < 1 || k > size)
+                        throw new CompileError(item.Position, $"the {what} index {k} is outside 1..{size}");
+                    if (result.Count >= limits.MaxMatrixOrder)
+                        throw new CompileError(item.Position, $"the list has more than {limits.MaxMatrixOrder} {what}s (the limit MaxMatrixOrder)");
+                    result.Add((int)k - 1);
+                }
+            }
+            return result;
         }
 
         public Value VisitBound(BoundExpr node)
         {
             Step(node);
-            var from = Integer(node.From, "a range start");
-            var to = Integer(node.To, "a range end");
-            if (to - from + 1 > limits.MaxProgramSize)
-                throw new CompileError(node.Position, $"the range {from}..{to} has more than {limits.MaxProgramSize} terms (the limit MaxProgramSize)");
+            IEnumerable<BigInteger> values;
+            var infiniteFrom = SeriesValuation.IsInfinity(node.From, _scope, negative: true);
+            var infiniteTo = SeriesValuation.IsInfinity(node.To, _scope, negative: false);
+            if (infiniteFrom || infiniteTo)
+            {
+                if (series is not { } s)
+                    throw new CompileError(node.Position, $"an infinite range needs a truncated power series entry: add 'up to q^N' (q the series variable) after the right side");
+                if (_shared is not null) ParameterFixesStructure = true;
+                values = SeriesValuation.Terms(node, infiniteFrom ? null : Integer(node.From, "a range start"),
+                    infiniteTo ? null : Integer(node.To, "a range end"), _scope, s.Variable, s.Order, limits);
+            }
+            else
+            {
+                var from = Integer(node.From, "a range start");
+                var to = Integer(node.To, "a range end");
+                if (to - from + 1 > limits.MaxProgramSize)
+                    throw new CompileError(node.Position, $"the range {from}..{to} has more than {limits.MaxProgramSize} terms (the limit MaxProgramSize)");
+                values = Range(from, to);
+            }
             var saved = _scope.TryGetValue(node.Variable, out var outer);
             var shadowed = Shadow(node.Variable);
             Value? acc = null;
             try
             {
-                for (var k = from; k <= to; k++)
+                foreach (var k in values)
                 {
                     _scope[node.Variable] = k;
-                    var term = node.Body.Accept(this);
+                    Value term;
+                    try
+                    {
+                        term = node.Body.Accept(this);
+                    }
+                    catch (CompileError e)
+                    {
+                        e.Bindings.Add((node.Variable, k));
+                        throw;
+                    }
                     acc = acc is null ? term
                         : node.Kind == BoundKind.Sum ? AddOrSubtract(acc.Value, term, node.Body.Position, subtract: false)
                         : Multiply(acc.Value, term, node.Position);
@@ -715,6 +984,11 @@ public static class IdentityCompiler
             return acc ?? Value.Of(_b.Constant(node.Kind == BoundKind.Sum ? Rational.Zero : Rational.One));
         }
 
+        private static IEnumerable<BigInteger> Range(BigInteger from, BigInteger to)
+        {
+            for (var k = from; k <= to; k++) yield return k;
+        }
+
         public Value VisitMatrixComprehension(MatrixComprehension node)
         {
             Step(node);
@@ -724,8 +998,9 @@ public static class IdentityCompiler
             var c1 = Integer(node.ColumnTo, "a range end");
             var rows = r1 - r0 + 1;
             var columns = c1 - c0 + 1;
-            if (rows < 1 || columns < 1)
-                throw new CompileError(node.Position, $"the matrix would have {BigInteger.Max(rows, 0)} rows and {BigInteger.Max(columns, 0)} columns; a matrix needs at least one of each");
+            // An empty range gives no rows (or columns): 0×0 matrices have det = pf = perm = 1.
+            if (rows < 0) rows = 0;
+            if (columns < 0) columns = 0;
             if (rows > limits.MaxMatrixOrder || columns > limits.MaxMatrixOrder)
                 throw new CompileError(node.Position, $"the matrix is {rows}×{columns}; the limit MaxMatrixOrder is {limits.MaxMatrixOrder}");
             var e = new int[(int)rows * (int)columns];
@@ -740,7 +1015,16 @@ public static class IdentityCompiler
                     {
                         _scope[node.RowVariable] = r0 + i;
                         _scope[node.ColumnVariable] = c0 + j;
-                        e[i * (int)columns + j] = ScalarOf(node.Body, "a matrix entry");
+                        try
+                        {
+                            e[i * (int)columns + j] = ScalarOf(node.Body, "a matrix entry");
+                        }
+                        catch (CompileError error)
+                        {
+                            error.Bindings.Add((node.ColumnVariable, c0 + j));
+                            error.Bindings.Add((node.RowVariable, r0 + i));
+                            throw;
+                        }
                     }
             }
             finally

@@ -163,7 +163,7 @@ internal sealed class ProgramBuilder(Limits limits)
     }
 
     /// <summary>The program of the given outputs, with instructions that no output uses removed and registers renumbered.</summary>
-    public StraightLineProgram Build(int[] outputs, string[] outputNames)
+    public StraightLineProgram Build(int[] outputs, string[] outputNames, string[]? conditionNames = null)
     {
         var live = new bool[_instructions.Count];
         foreach (var o in outputs) live[o] = true;
@@ -201,7 +201,8 @@ internal sealed class ProgramBuilder(Limits limits)
         var outs = new int[outputs.Length];
         for (var i = 0; i < outs.Length; i++) outs[i] = map[outputs[i]];
         return new([.. kept], [.. _constants], [.. _exponents], [.. operands], [.. _variables], outs, outputNames,
-            _parameterConstants.Count == 0 ? null : new Dictionary<string, int>(_parameterConstants, StringComparer.Ordinal));
+            _parameterConstants.Count == 0 ? null : new Dictionary<string, int>(_parameterConstants, StringComparer.Ordinal),
+            conditionNames ?? []);
     }
 
     private Instruction RenumberMatrix(Instruction ins, int[] map, List<int> operands)

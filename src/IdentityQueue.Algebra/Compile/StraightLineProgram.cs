@@ -38,8 +38,10 @@ public sealed class StraightLineProgram
 {
     internal StraightLineProgram(
         Instruction[] instructions, Rational[] constants, BigInteger[] exponents, int[] operands,
-        string[] variables, int[] outputs, string[] outputNames, IReadOnlyDictionary<string, int>? parameterConstants = null)
+        string[] variables, int[] outputs, string[] outputNames, IReadOnlyDictionary<string, int>? parameterConstants = null,
+        string[]? conditionNames = null)
     {
+        ConditionNames = conditionNames ?? [];
         ParameterConstants = parameterConstants;
         Instructions = instructions;
         Constants = constants;
@@ -57,10 +59,27 @@ public sealed class StraightLineProgram
     public int[] Operands { get; }
     /// <summary>Evaluated variable names in order of first appearance: <c>x</c>, <c>x[3]</c>, <c>a[1,2]</c>.</summary>
     public string[] Variables { get; }
-    /// <summary>Registers holding lhs − rhs (entrywise for matrices).</summary>
+    /// <summary>
+    /// Registers that must vanish: first the side conditions (<see cref="ConditionNames"/>), then lhs − rhs (entrywise for
+    /// matrices).
+    /// </summary>
     public int[] Outputs { get; }
-    /// <summary>Empty for a scalar identity; <c>[i,j]</c> per output of a matrix identity.</summary>
+    /// <summary>Empty for a scalar identity; <c>[i,j]</c> per lhs − rhs output of a matrix identity (after the conditions).</summary>
     public string[] OutputNames { get; }
+
+    /// <summary>
+    /// The side conditions, one per leading output: values that must vanish for the identity to make sense (the
+    /// skew-symmetry of a Pfaffian's argument, where the entries are not written as negatives of each other). A trial where
+    /// one does not vanish makes the candidate invalid, with that trial as its witness.
+    /// </summary>
+    public string[] ConditionNames { get; }
+
+    /// <summary>The name of output <paramref name="o"/>: a condition's name, an entry <c>[i,j]</c>, or null for a scalar identity.</summary>
+    public string? OutputName(int o) =>
+        o < ConditionNames.Length ? ConditionNames[o] : OutputNames.Length > 0 ? OutputNames[o - ConditionNames.Length] : null;
+
+    /// <summary>Whether <paramref name="name"/> (a trial's entry) names a side condition rather than an entry of lhs − rhs.</summary>
+    public bool IsCondition(string? name) => name is not null && Array.IndexOf(ConditionNames, name) >= 0;
 
     public int Length => Instructions.Length;
 
@@ -83,6 +102,6 @@ public sealed class StraightLineProgram
             if (!parameters.TryGetValue(name, out var value)) throw new ArgumentException($"no value for the parameter '{name}'", nameof(parameters));
             constants[index] = value;
         }
-        return new StraightLineProgram(Instructions, constants, Exponents, Operands, Variables, Outputs, OutputNames, ParameterConstants);
+        return new StraightLineProgram(Instructions, constants, Exponents, Operands, Variables, Outputs, OutputNames, ParameterConstants, ConditionNames);
     }
 }

@@ -135,6 +135,14 @@ public static class Builtins
 {
     public const string Binom = "binom", Fact = "fact", QInt = "qint", QFact = "qfact", QBinom = "qbinom";
     public const string Det = "det", Pfaffian = "pf", Permanent = "perm", Trace = "tr", Transpose = "transpose", Identity = "id";
+    public const string Inverse = "inv", Adjugate = "adj", Zero = "zero", Diagonal = "diag", Submatrix = "submatrix", Minor = "minor";
+    /// <summary><c>entry(M, i, j)</c>, also written <c>(M)[i, j]</c> after a parenthesis, a call or a matrix literal.</summary>
+    public const string Entry = "entry";
+    /// <summary>
+    /// Not callable by name: the node of an index list <c>[1, 3..n]</c> (an argument of submatrix and minor), whose
+    /// items are integer expressions or ranges (a call of <see cref="Range"/> with the two ends).
+    /// </summary>
+    public const string IndexList = "[]", Range = "..";
     public const string Sum = "sum", Prod = "prod", Matrix = "matrix";
 
     // Integer functions of parameters and bound variables (exact, evaluated once the parameters are fixed).
@@ -153,6 +161,7 @@ public static class Builtins
     {
         [Binom] = (2, 2), [Fact] = (1, 1), [QInt] = (2, 2), [QFact] = (2, 2), [QBinom] = (3, 3),
         [Det] = (1, 1), [Pfaffian] = (1, 1), [Permanent] = (1, 1), [Trace] = (1, 1), [Transpose] = (1, 1), [Identity] = (1, 1),
+        [Inverse] = (1, 1), [Adjugate] = (1, 1), [Zero] = (1, 2), [Diagonal] = (1, int.MaxValue), [Submatrix] = (3, 3), [Minor] = (3, 3), [Entry] = (3, 3),
         [Min] = (2, int.MaxValue), [Max] = (2, int.MaxValue), [Floor] = (1, 1), [Ceil] = (1, 1), [Mod] = (2, 2),
         [Gcd] = (2, int.MaxValue), [Abs] = (1, 1), [Delta] = (2, 2), [Iverson] = (1, 1), [When] = (3, 3),
         [Fibonacci] = (1, 1), [Lucas] = (1, 1), [Stirling1] = (2, 2), [Stirling2] = (2, 2), [Harmonic] = (1, 1),
@@ -191,6 +200,9 @@ public static class Builtins
 
     /// <summary>The connectives of conditions: <c>A &lt; B and C &lt; D or E = F</c> (<c>and</c> binds tighter).</summary>
     public const string And = "and", Or = "or";
+
+    /// <summary>Whether argument <paramref name="index"/> of <paramref name="function"/> is an index list (<c>[1, 3..n]</c>).</summary>
+    public static bool TakesIndexList(string function, int index) => function is Submatrix or Minor && index >= 1;
 
     /// <summary>Words that may not name a variable or parameter.</summary>
     public static readonly IReadOnlySet<string> Reserved = new HashSet<string>(Arity.Keys) { Sum, Prod, Matrix, Let, And, Or, "over", "for", "in" };

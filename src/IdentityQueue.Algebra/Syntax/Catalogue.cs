@@ -4,21 +4,85 @@ namespace IdentityQueue.Algebra.Syntax;
 
 public enum FieldKind { Rationals, Finite }
 
-/// <summary>The field an identity is stated over: Q, GF(p) or GF(p^k). Immutable.</summary>
+/// <summary>
+/// The field an identity is stated over: Q, GF(p) or GF(p^k); in a family line p may be a parameter
+/// (<see cref="CharacteristicParameter"/>, <c>over GF(p) for p prime in 2..50</c>), fixed per instance by
+/// <see cref="Bind"/>. Immutable.
+/// </summary>
 public sealed record FieldSpec(FieldKind Kind, BigInteger Characteristic, int Degree)
 {
     public static readonly FieldSpec Rationals = new(FieldKind.Rationals, BigInteger.Zero, 1);
 
     public static FieldSpec Finite(BigInteger p, int k = 1) => new(FieldKind.Finite, p, k);
 
+    /// <summary>GF(p) or GF(p^k) whose p is the family parameter <paramref name="name"/>, written at <paramref name="at"/>.</summary>
+    public static FieldSpec FiniteOfParameter(string name, int k, SourcePosition at) =>
+        new(FieldKind.Finite, BigInteger.Zero, k) { CharacteristicParameter = name, ParameterPosition = at };
+
     public bool IsRationals => Kind == FieldKind.Rationals;
 
-    /// <summary>The canonical text: <c>Q</c>, <c>GF(7)</c>, <c>GF(2^8)</c>.</summary>
-    public override string ToString() => Kind == FieldKind.Rationals ? "Q" : Degree == 1 ? $"GF({Characteristic})" : $"GF({Characteristic}^{Degree})";
+    /// <summary>The family parameter that is the characteristic, or null when the field is fixed.</summary>
+    public string? CharacteristicParameter { get; init; }
+
+    /// <summary>Where the parameter is written in the field.</summary>
+    public SourcePosition ParameterPosition { get; init; }
+
+    /// <summary>
+    /// For a truncated power series identity (<c>up to q^N</c>): the series variable q; the two sides are compared as power
+    /// series in q up to q^<see cref="SeriesOrder"/>, that is in F[q]/(q^(N+1)). Null for an ordinary identity.
+    /// </summary>
+    public string? SeriesVariable { get; init; }
+
+    /// <summary>N of <c>up to q^N</c>.</summary>
+    public int SeriesOrder { get; init; }
+
+    public bool IsSeries => SeriesVariable is not null;
+
+    /// <summary>
+    /// This field for one instance: p replaced by the parameter's value, which must be a prime (and the field within
+    /// <paramref name="maxFieldBits"/>); null and the reason otherwise. A fixed field is itself.
+    /// </summary>
+    public FieldSpec? Bind(IReadOnlyDictionary<string, BigInteger> parameters, int maxFieldBits, out string? error)
+    {
+        error = null;
+        if (CharacteristicParameter is not { } name) return this;
+        if (!parameters.TryGetValue(name, out var p))
+        {
+            error = $"GF({name}): '{name}' is not a parameter of the family (write: for {name} prime in A..B)";
+            return null;
+        }
+        if (p < 2 || !Fields.Primality.IsPrime(p))
+        {
+            error = $"GF({name}) needs a prime {name}, but {name} = {p} (write: for {name} prime in A..B)";
+            return null;
+        }
+        if ((double)p.GetBitLength() * Degree > maxFieldBits + 1)
+        {
+            error = $"GF({p}{(Degree == 1 ? "" : $"^{Degree}")}) is larger than the limit MaxFieldBits ({maxFieldBits} bits)";
+            return null;
+        }
+        return this with { Characteristic = p, CharacteristicParameter = null, ParameterPosition = default };
+    }
+
+    /// <summary>The canonical text: <c>Q</c>, <c>GF(7)</c>, <c>GF(2^8)</c>, <c>GF(p)</c>, and <c>Q up to q^30</c> for a series identity.</summary>
+    public override string ToString()
+    {
+        var series = IsSeries ? $" up to {SeriesVariable}^{SeriesOrder}" : "";
+        if (Kind == FieldKind.Rationals) return "Q" + series;
+        var p = CharacteristicParameter ?? Characteristic.ToString();
+        return (Degree == 1 ? $"GF({p})" : $"GF({p}^{Degree})") + series;
+    }
 }
 
-/// <summary>A family parameter <c>NAME in FROM..TO</c>; the ends may use earlier parameters of the same line.</summary>
-public sealed record ParameterRange(string Name, Expr From, Expr To, SourcePosition Position);
+/// <summary>
+/// A family parameter <c>NAME in FROM..TO</c>, or <c>NAME prime in FROM..TO</c> for the primes of the range
+/// (<see cref="PrimesOnly"/>); the ends may use earlier parameters of the same line.
+/// </summary>
+public sealed record ParameterRange(string Name, Expr From, Expr To, SourcePosition Position)
+{
+    /// <summary>Only the primes of the range are instances.</summary>
+    public bool PrimesOnly { get; init; }
+}
 
 /// <summary>One parsed catalogue line: <c>[label:] LHS = RHS [over FIELD] [for ...]</c>. Immutable.</summary>
 public sealed record IdentityEntry(
@@ -33,10 +97,21 @@ public sealed record IdentityEntry(
     public bool IsFamily => Parameters.Count > 0;
 }
 
-/// <summary>A problem found in catalogue text: where it is and what it is. Immutable.</summary>
+/// <summary>
+/// A problem found in catalogue text: where it is and what it is, and for a compile error the side and the values of the
+/// parameters and bound variables where it happened (<see cref="Context"/>: <c>rhs, at n=2, j=1</c>). Immutable.
+/// </summary>
 public sealed record Diagnostic(SourcePosition Position, string Message)
 {
-    public override string ToString() => $"{Position}: {Message}";
+    public string? Context { get; init; }
+
+    /// <summary>The side of a compile error, <c>lhs</c> or <c>rhs</c> (also in <see cref="Context"/>).</summary>
+    public string? Side { get; init; }
+
+    /// <summary>The values of a compile error, <c>at n=2, j=1</c> (also in <see cref="Context"/>).</summary>
+    public string? Values { get; init; }
+
+    public override string ToString() => Context is null ? $"{Position}: {Message}" : $"{Position}, {Context}: {Message}";
 }
 
 /// <summary>The outcome of parsing: a value, or a <see cref="Diagnostic"/> that carries the position. Never throws.</summary>

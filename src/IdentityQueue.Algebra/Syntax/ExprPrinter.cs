@@ -47,7 +47,7 @@ public sealed class ExprPrinter : IExprVisitor<StringBuilder>
         {
             output.Append(i == 0 ? " for " : ", ");
             var range = entry.Parameters[i];
-            printer.WriteRange(range.Name, range.From, range.To);
+            printer.WriteRange(range.PrimesOnly ? $"{range.Name} prime" : range.Name, range.From, range.To);
         }
         return output.ToString();
     }
@@ -123,6 +123,18 @@ public sealed class ExprPrinter : IExprVisitor<StringBuilder>
 
     public StringBuilder VisitCall(CallExpr node)
     {
+        switch (node.Function)
+        {
+            case Builtins.IndexList:
+                _output.Append('[');
+                WriteList(node.Arguments, ", ");
+                return _output.Append(']');
+            case Builtins.Range:
+                Write(node.Arguments[0]);
+                _output.Append("..");
+                Write(node.Arguments[1]);
+                return _output;
+        }
         _output.Append(node.Function).Append('(');
         WriteList(node.Arguments, ", ");
         return _output.Append(')');

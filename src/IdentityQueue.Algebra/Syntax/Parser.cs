@@ -73,9 +73,17 @@ internal sealed class Parser
 
         FieldSpec? field = null;
         List<ParameterRange>? parameters = null;
+        (string Variable, int Order)? series = null;
         while (!AtEnd)
         {
-            if (_token.IsWord(_text, "over"))
+            if (_token.IsWord(_text, "up"))
+            {
+                if (parameters is not null) return Fail<IdentityEntry>(_token, SyntaxMessages.SeriesAfterFor);
+                if (series is not null) return Fail<IdentityEntry>(_token, SyntaxMessages.SecondSeries);
+                series = ParseSeriesClause();
+                if (series is null) return null;
+            }
+            else if (_token.IsWord(_text, "over"))
             {
                 if (parameters is not null) return Fail<IdentityEntry>(_token, SyntaxMessages.OverAfterFor);
                 if (field is not null) return Fail<IdentityEntry>(_token, SyntaxMessages.SecondOver);
@@ -94,7 +102,7 @@ internal sealed class Parser
             {
                 return Fail<IdentityEntry>(_token, SyntaxMessages.AfterRange(parameters[^1].Name, Describe(_token)));
             }
-            else if (field is not null)
+            else if (field is not null || series is not null)
             {
                 return Fail<IdentityEntry>(_token, SyntaxMessages.AfterField(Describe(_token)));
             }
@@ -113,6 +121,12 @@ internal sealed class Parser
                 if (parameters.Any(p => p.Name == name))
                     return Fail<IdentityEntry>(at, SyntaxMessages.DefinitionNameCaptured(definition, name, $"the family parameter '{name}' of this line"));
 
+        if (series is { } s) field = (field ?? FieldSpec.Rationals) with { SeriesVariable = s.Variable, SeriesOrder = s.Order };
+        if (field?.CharacteristicParameter is { } p && parameters?.Any(r => r.Name == p) != true)
+        {
+            Error ??= new Diagnostic(field.ParameterPosition, SyntaxMessages.FieldParameterNotInFamily(p));
+            return null;
+        }
         return new IdentityEntry(label, left, right, field ?? FieldSpec.Rationals,
             parameters is null ? [] : parameters.ToArray(), _line, _text);
     }
@@ -179,11 +193,17 @@ internal sealed class Parser
         return expr;
     }
 
-    /// <summary>A whole text that is one field.</summary>
+    /// <summary>A whole text that is one field, possibly with a series clause (<c>Q up to q^30</c>, as stored).</summary>
     public FieldSpec? ParseStandaloneField()
     {
         var field = ParseField();
         if (field is null) return null;
+        if (_token.IsWord(_text, "up"))
+        {
+            var series = ParseSeriesClause();
+            if (series is null) return null;
+            field = field with { SeriesVariable = series.Value.Variable, SeriesOrder = series.Value.Order };
+        }
         if (!AtEnd) return Fail<FieldSpec>(_token, SyntaxMessages.AfterField(Describe(_token), inIdentity: false));
         return field;
     }
@@ -202,9 +222,11 @@ internal sealed class Parser
             if (!names.Add(name)) return Fail<List<ParameterRange>>(nameToken, SyntaxMessages.DuplicateParameter(name));
             if (_definitions?.Contains(name) == true) return Fail<List<ParameterRange>>(nameToken, SyntaxMessages.DefinitionAsBinder(name, "a family parameter"));
             Advance();
+            var primes = _token.IsWord(_text, "prime");
+            if (primes) Advance();
 
             if (!ParseRange(name, 0, out var from, out var to, out _)) return null;
-            ranges.Add(new ParameterRange(name, from, to, At(nameToken)));
+            ranges.Add(new ParameterRange(name, from, to, At(nameToken)) { PrimesOnly = primes });
 
             if (_token.Kind != TokenKind.Comma) return ranges;
             Advance();
@@ -230,6 +252,32 @@ internal sealed class Parser
 
     // ---------------------------------------------------------------- fields
 
+    /// <summary><c>up to NAME^N</c>: a truncated power series identity in NAME, compared up to NAME^N (N a non-negative integer).</summary>
+    private (string Variable, int Order)? ParseSeriesClause()
+    {
+        Advance(); // 'up'
+        if (!_token.IsWord(_text, "to")) return FailValue(_token, SyntaxMessages.ExpectedSeriesClause(Describe(_token)));
+        Advance();
+        var nameToken = _token;
+        if (nameToken.Kind != TokenKind.Name || Builtins.Reserved.Contains(TextOf(nameToken)))
+            return FailValue(nameToken, SyntaxMessages.ExpectedSeriesClause(Describe(nameToken)));
+        Advance();
+        if (_token.Kind != TokenKind.Caret) return FailValue(_token, SyntaxMessages.ExpectedSeriesClause(Describe(_token)));
+        Advance();
+        var orderToken = _token;
+        if (orderToken.Kind != TokenKind.Integer) return FailValue(orderToken, SyntaxMessages.ExpectedSeriesClause(Describe(orderToken)));
+        Advance();
+        var order = ParseInteger(orderToken);
+        if (order > _limits.MaxSeriesOrder) return FailValue(orderToken, SyntaxMessages.SeriesTooLong(order, _limits.MaxSeriesOrder));
+        return (TextOf(nameToken), (int)order);
+    }
+
+    private (string, int)? FailValue(Token at, string message)
+    {
+        Report(at, message);
+        return null;
+    }
+
     /// <summary><c>Q</c> | <c>GF(p)</c> | <c>GF(p^k)</c>; p must be prime, k ≥ 1, and the field within MaxFieldBits.</summary>
     private FieldSpec? ParseField()
     {
@@ -248,7 +296,7 @@ internal sealed class Parser
         if (open.Kind != TokenKind.LeftParen) return Fail<FieldSpec>(open, SyntaxMessages.ExpectedFieldParenthesis(Describe(open)));
         Advance();
         var pToken = _token;
-        if (pToken.Kind != TokenKind.Integer) return Fail<FieldSpec>(pToken, SyntaxMessages.ExpectedCharacteristic(Describe(pToken)));
+        if (pToken.Kind is not (TokenKind.Integer or TokenKind.Name)) return Fail<FieldSpec>(pToken, SyntaxMessages.ExpectedCharacteristic(Describe(pToken)));
         Advance();
         Token? kToken = null;
         if (_token.Kind == TokenKind.Caret)
@@ -265,6 +313,15 @@ internal sealed class Parser
 
         var fieldText = ShortText(nameToken.Start, close.End);
         var maxBits = _limits.MaxFieldBits;
+        if (pToken.Kind == TokenKind.Name)
+        {
+            // GF(p) with p a family parameter: checked per instance (FieldSpec.Bind), and against the ranges after the line.
+            var degree = 1;
+            if (kToken is { } degreeToken && (degreeToken.Length > 4
+                    || (degree = int.Parse(_text.AsSpan(degreeToken.Start, degreeToken.Length), NumberStyles.None, CultureInfo.InvariantCulture)) < 1))
+                return Fail<FieldSpec>(degreeToken, SyntaxMessages.ZeroFieldExponent(fieldText));
+            return FieldSpec.FiniteOfParameter(TextOf(pToken), degree, At(pToken));
+        }
         // Check the size from the digit count before converting, so a huge p costs nothing: 10^(d-1) ≥ 2^(3.32(d-1)).
         if ((pToken.Length - 1) * 3.3219 > maxBits) return Fail<FieldSpec>(pToken, SyntaxMessages.FieldTooLarge(fieldText, maxBits));
         var p = ParseInteger(pToken);
@@ -387,7 +444,27 @@ internal sealed class Parser
         return new BinaryExpr(BinaryOperator.Power, baseExpr, exponent, baseExpr.Position, At(caret));
     }
 
+    /// <summary>
+    /// primary ['[' i ',' j ']']: an entry of a matrix expression, <c>(A*B)[i, j]</c>, after a parenthesis, a call or a
+    /// matrix literal (after a plain name the brackets make an indexed variable, <c>x[i]</c>).
+    /// </summary>
     private Expr? ParsePrimary(int depth, out int height)
+    {
+        var start = _token;
+        var primary = ParseAtom(depth, out height);
+        if (primary is null || _token.Kind != TokenKind.LeftBracket || primary is NameRef or IndexedName || start.Kind == TokenKind.Integer)
+            return primary;
+        var indices = new List<Expr>(2);
+        if (!ParseList(TokenKind.RightBracket, "the entry's index list", depth, indices, out var indexHeight,
+                static (after, found) => SyntaxMessages.ExpectedIndex(after, found), allowEmpty: false))
+            return null;
+        if (indices.Count != 2) return Fail<Expr>(start, SyntaxMessages.WrongArity("an entry [i, j] of a matrix", 2, indices.Count) .Replace("takes", "needs").Replace("argument", "index"));
+        height = Math.Max(height, indexHeight) + 1;
+        if (height > _maxDepth) return Fail<Expr>(start, SyntaxMessages.NestingTooDeep(_maxDepth));
+        return new CallExpr(Builtins.Entry, [primary, indices[0], indices[1]], primary.Position);
+    }
+
+    private Expr? ParseAtom(int depth, out int height)
     {
         height = 0;
         var token = _token;
@@ -505,7 +582,7 @@ internal sealed class Parser
         var arguments = new List<Expr>(Math.Min(arity.Min, 8));
         if (!ParseList(TokenKind.RightParen, $"the argument list of {name}(...)", depth, arguments, out height,
                 static (after, found) => SyntaxMessages.ExpectedArgument(after, found), allowEmpty: true,
-                firstIsCondition: Builtins.TakesCondition(name)))
+                firstIsCondition: Builtins.TakesCondition(name), function: name))
             return null;
         if (arguments.Count < arity.Min || arguments.Count > arity.Max)
             return Fail<Expr>(nameToken, SyntaxMessages.WrongArity(name, arity.Min, arity.Max, arguments.Count));
@@ -530,7 +607,7 @@ internal sealed class Parser
     /// <paramref name="height"/> is the largest item height.
     /// </summary>
     private bool ParseList(TokenKind close, string what, int depth, List<Expr> items, out int height,
-        Func<string, string, string> expectedItem, bool allowEmpty, bool firstIsCondition = false)
+        Func<string, string, string> expectedItem, bool allowEmpty, bool firstIsCondition = false, string? function = null)
     {
         height = 0;
         var open = _token;
@@ -543,10 +620,17 @@ internal sealed class Parser
         }
         while (true)
         {
-            if (!StartsExpression(_token)) return Report(_token, expectedItem(Describe(_previous), Describe(_token)));
-            var item = firstIsCondition && items.Count == 0
-                ? ParseCondition(depth + 1, out var itemHeight)
-                : ParseExpression(depth + 1, out itemHeight);
+            Expr? item;
+            int itemHeight;
+            if (function is not null && Builtins.TakesIndexList(function, items.Count))
+                item = ParseIndexList(function, items.Count + 1, depth + 1, out itemHeight);
+            else
+            {
+                if (!StartsExpression(_token)) return Report(_token, expectedItem(Describe(_previous), Describe(_token)));
+                item = firstIsCondition && items.Count == 0
+                    ? ParseCondition(depth + 1, out itemHeight)
+                    : ParseExpression(depth + 1, out itemHeight);
+            }
             if (item is null) return false;
             items.Add(item);
             height = Math.Max(height, itemHeight);
@@ -613,6 +697,47 @@ internal sealed class Parser
         height = Math.Max(height, rightHeight) + 1;
         if (height > _maxDepth) return Fail<Expr>(opToken, SyntaxMessages.NestingTooDeep(_maxDepth));
         return new BinaryExpr(op.Value, left, right, left.Position, At(opToken));
+    }
+
+    /// <summary>
+    /// <c>[item {, item}]</c> or <c>[]</c>, item := EXPR ['..' EXPR]: the rows or columns of submatrix and minor, in the
+    /// order given. A range A..B with B &lt; A is empty.
+    /// </summary>
+    private Expr? ParseIndexList(string function, int argument, int depth, out int height)
+    {
+        height = 0;
+        var open = _token;
+        if (open.Kind != TokenKind.LeftBracket) return Fail<Expr>(open, SyntaxMessages.ExpectedIndexList(function, argument, Describe(open)));
+        if (depth + 1 > _maxDepth) return Fail<Expr>(open, SyntaxMessages.NestingTooDeep(_maxDepth));
+        Advance();
+        var items = new List<Expr>();
+        if (_token.Kind == TokenKind.RightBracket)
+        {
+            Advance();
+            return new CallExpr(Builtins.IndexList, [], At(open));
+        }
+        while (true)
+        {
+            if (!StartsExpression(_token)) return Fail<Expr>(_token, SyntaxMessages.ExpectedIndexListItem(Describe(_previous), Describe(_token)));
+            var from = ParseExpression(depth + 1, out var fromHeight);
+            if (from is null) return null;
+            height = Math.Max(height, fromHeight);
+            if (_token.Kind == TokenKind.DotDot)
+            {
+                Advance();
+                if (!StartsExpression(_token)) return Fail<Expr>(_token, SyntaxMessages.ExpectedIndexListItem(Describe(_previous), Describe(_token)));
+                var to = ParseExpression(depth + 1, out var toHeight);
+                if (to is null) return null;
+                height = Math.Max(height, toHeight);
+                items.Add(new CallExpr(Builtins.Range, [from, to], from.Position));
+            }
+            else items.Add(from);
+            if (_token.Kind == TokenKind.Comma) { Advance(); continue; }
+            if (_token.Kind == TokenKind.RightBracket) { Advance(); break; }
+            return Fail<Expr>(_token, FollowMessage(SyntaxMessages.ExpectedCommaOrClose(']', open.Column, $"the index list of {function}", Describe(_token))));
+        }
+        height += 2;
+        return new CallExpr(Builtins.IndexList, items.ToArray(), At(open));
     }
 
     /// <summary><c>sum(k in A..B: E)</c> or <c>prod(k in A..B: E)</c>; the current token is the '('.</summary>

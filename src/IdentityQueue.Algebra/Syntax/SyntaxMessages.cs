@@ -13,7 +13,7 @@ public static class SyntaxMessages
     public const string EndOfLine = "end of line";
 
     private const string FieldForms = "Q, GF(p) or GF(p^k)";
-    private const string FunctionList = "binom, fact, qint, qfact, qbinom, det, pf, perm, tr, transpose, id, " +
+    private const string FunctionList = "binom, fact, qint, qfact, qbinom, det, pf, perm, tr, transpose, id, zero, diag, inv, adj, submatrix, minor, entry, " +
         "min, max, floor, ceil, mod, gcd, abs, delta, iverson, when, fib, lucas, stirling1, stirling2, harmonic, bernoulli, catalan, multinomial, " +
         "the forms sum, prod, matrix, and the names defined by let lines above";
 
@@ -165,6 +165,32 @@ public static class SyntaxMessages
 
     public const string DefinitionOutsideFile =
         "a definition (let NAME = EXPR) can only stand on its own line of an .idq catalogue file (or in idq check --definitions FILE)";
+
+    public const string SeriesAfterFor = "'up to q^N' goes before 'for': LHS = RHS [over FIELD] [up to q^N] [for ...]";
+
+    public const string SecondSeries = "a second 'up to'; an entry has at most one series clause";
+
+    public static string ExpectedSeriesClause(string found) =>
+        $"expected a series clause 'up to q^N' (a variable, '^' and a non-negative integer), found {found}";
+
+    public static string SeriesTooLong(System.Numerics.BigInteger order, int limit) =>
+        $"up to q^{order} is beyond the limit MaxSeriesOrder ({limit})";
+
+    public static string FieldParameterNotInFamily(string name) =>
+        $"GF({name}): '{name}' must be a parameter of this family line, e.g. 'for {name} prime in 2..50'";
+
+    public static string WrongArityRange(string name, int min, int max, int got) =>
+        max == int.MaxValue ? $"{name} takes at least {min} argument{(min == 1 ? "" : "s")}, got {got}"
+            : $"{name} takes {min} to {max} arguments, got {got}";
+
+    public static string ExpectedIndexList(string name, int argument, string found) =>
+        $"argument {argument} of {name} is a list of row or column indices such as [1, 3..n], but found {found}";
+
+    public static string ExpectedIndexListItem(string after, string found) =>
+        $"expected an index or a range A..B after {after}, found {found}";
+
+    public static string WrongArity(string name, int expected, int got) =>
+        $"{name} takes {expected} argument{(expected == 1 ? "" : "s")}, got {got}";
 
     public static string ExpectedArgument(string after, string found) =>
         $"expected an argument after {after}, found {found}";

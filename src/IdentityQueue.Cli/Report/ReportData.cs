@@ -111,6 +111,8 @@ internal sealed class ReportData
     public required IReadOnlyList<StageCount> Stages { get; init; }
     /// <summary>Survivors per bin of <see cref="Bins.EvidenceBits"/>.</summary>
     public required IReadOnlyList<long> EvidenceBins { get; init; }
+    /// <summary>Survivors decided exactly (no variables, or a power series in q alone): no error bound, not in the bins.</summary>
+    public required long ExactSurvivors { get; init; }
     /// <summary>Candidates with at least one trial, per bin of <see cref="Bins.Microseconds"/> of their summed trial times.</summary>
     public required IReadOnlyList<long> TimeBins { get; init; }
     public required long TimedCandidates { get; init; }
@@ -154,6 +156,11 @@ internal sealed class ReportData
               FROM result r JOIN candidate c ON c.id = r.candidate_id JOIN catalogue k ON k.id = c.catalogue_id
               WHERE r.state = 'survived' AND r.error_bound_log2 IS NOT NULL{where}) b
         GROUP BY b.bin
+        """;
+
+    internal static string ExactSurvivorsQuery(string where) => $"""
+        SELECT COUNT(*) FROM result r JOIN candidate c ON c.id = r.candidate_id JOIN catalogue k ON k.id = c.catalogue_id
+        WHERE r.state = 'survived' AND r.error_bound_log2 IS NULL{where}
         """;
 
     internal static string TimeQuery(string where) => $"""
@@ -217,6 +224,7 @@ internal sealed class ReportData
             StateCounts = [.. query(StatesQuery(where)).Rows.Select(r => new StateCount(Text(r[0]), Text(r[1]), Long(r[2])))],
             Stages = [.. query(StagesQuery(where)).Rows.Select(r => new StageCount(Int(r[0]), Int(r[1]), Long(r[2])))],
             EvidenceBins = evidence,
+            ExactSurvivors = Long(query(ExactSurvivorsQuery(where)).Rows[0][0]),
             TimeBins = time,
             TimedCandidates = timed,
             TotalMicroseconds = totalUs,

@@ -141,7 +141,11 @@ internal static class ReportPage
             "Bits of evidence b per survivor: a false identity would have passed all of its trials with probability at most 2<sup>−b</sup>. " +
             "Very likely true, not proven; each bound is only as good as the degree bound behind it.");
         var survivors = data.EvidenceBins.Sum();
-        if (survivors == 0) Empty(html, "No survivors.");
+        if (data.ExactSurvivors > 0)
+            html.Append("<p class=\"note\" data-exact=\"").Append(data.ExactSurvivors).Append("\">")
+                .Append(data.ExactSurvivors).Append(" survivors were decided exactly (no variables, or a power series in q alone): they are true, ")
+                .Append("have no error bound and are not in the chart.</p>\n");
+        if (survivors == 0) Empty(html, data.ExactSurvivors > 0 ? "No survivors with an error bound." : "No survivors.");
         else
         {
             var bins = Trimmed(data.EvidenceBins, Bins.EvidenceBits, ColorOf("survived"));

@@ -199,6 +199,50 @@ public sealed class LatexPrinter : IExprVisitor<StringBuilder>
                 _output.Append(" \\\\ ");
                 Write(a[2]);
                 return _output.Append(" & \\text{otherwise} \\end{cases}");
+            case Builtins.Zero:
+                _output.Append("0_{");
+                Write(a[0]);
+                if (a.Count == 2) { _output.Append("\\times "); Write(a[1]); }
+                return _output.Append('}');
+            case Builtins.Inverse:
+                Operand(a[0], AtomLevel);
+                return _output.Append("^{-1}");
+            case Builtins.Entry:
+                Operand(a[0], AtomLevel);
+                _output.Append("_{");
+                Write(a[1]);
+                _output.Append(',');
+                Write(a[2]);
+                return _output.Append('}');
+            case Builtins.Diagonal:
+                _output.Append("\\operatorname{diag}\\left(");
+                for (var i = 0; i < a.Count; i++)
+                {
+                    if (i > 0) _output.Append(", ");
+                    Write(a[i]);
+                }
+                return _output.Append("\\right)");
+            case Builtins.Submatrix or Builtins.Minor:
+                // M_{R,C} for the submatrix on rows R and columns C; a minor is its determinant.
+                if (node.Function == Builtins.Minor) _output.Append("\\det ");
+                Operand(a[0], AtomLevel);
+                _output.Append("_{");
+                Write(a[1]);
+                _output.Append(',');
+                Write(a[2]);
+                return _output.Append('}');
+            case Builtins.IndexList:
+                _output.Append("\\{");
+                for (var i = 0; i < a.Count; i++)
+                {
+                    if (i > 0) _output.Append(", ");
+                    Write(a[i]);
+                }
+                return _output.Append("\\}");
+            case Builtins.Range:
+                Write(a[0]);
+                _output.Append(", \\ldots, ");
+                return Write(a[1]);
             default:
                 _output.Append(node.Function switch
                 {
@@ -206,6 +250,7 @@ public sealed class LatexPrinter : IExprVisitor<StringBuilder>
                     Builtins.Trace => "\\operatorname{tr}",
                     Builtins.Permanent => "\\operatorname{perm}",
                     Builtins.Pfaffian => "\\operatorname{pf}",
+                    Builtins.Adjugate => "\\operatorname{adj}",
                     _ => $"\\operatorname{{{Escape(node.Function)}}}",
                 });
                 if (a[0] is MatrixLiteral or MatrixComprehension)
@@ -222,9 +267,10 @@ public sealed class LatexPrinter : IExprVisitor<StringBuilder>
     public StringBuilder VisitBound(BoundExpr node)
     {
         _output.Append(node.Kind == BoundKind.Sum ? "\\sum_{" : "\\prod_{").Append(Name(node.Variable)).Append('=');
-        Write(node.From);
+        // an infinite end of a power series identity's range (up to q^N)
+        if (node.From is UnaryExpr { Operand: NameRef { Name: "inf" } }) _output.Append("-\\infty"); else Write(node.From);
         _output.Append("}^{");
-        Write(node.To);
+        if (node.To is NameRef { Name: "inf" }) _output.Append("\\infty"); else Write(node.To);
         _output.Append("} ");
         Operand(node.Body, PowerLevel);
         return _output;

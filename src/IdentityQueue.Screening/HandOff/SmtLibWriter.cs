@@ -51,6 +51,8 @@ public static class SmtLibWriter
         limits ??= HandOffLimits.Default;
         algebraLimits ??= Limits.Default;
         parameters ??= new Dictionary<string, BigInteger>();
+        if (entry.Field.IsSeries)
+            return new(null, $"it is a truncated power series identity (up to {entry.Field.SeriesVariable}^{entry.Field.SeriesOrder}): it compares coefficients, which is not a statement about real values");
         if (!entry.Field.IsRationals)
             return new(null, $"it is stated over {entry.Field}, an identity of polynomials over a finite field, which cannot be stated over the reals");
         try
@@ -143,6 +145,9 @@ public static class SmtLibWriter
         private readonly TermGraph _g = new(limits);
         private readonly Dictionary<string, BigInteger> _scope = new(parameters, StringComparer.Ordinal);
         private readonly List<int> _divisors = [];
+        // Side conditions that must hold for the identity to make sense: the sums [i,j] + [j,i] (and diagonal entries) of a
+        // Pfaffian's argument, which must vanish; the negation asserts that one does not, or that the sides differ.
+        private readonly List<int> _conditions = [];
 
         public SmtLibObligation Negation(Expr left, Expr right)
         {
@@ -157,13 +162,20 @@ public static class SmtLibWriter
             foreach (var (a, b) in pairs)
                 sides.Add(a.IsPolynomial && b.IsPolynomial ? (a.Num, b.Num) : (_g.Product(a.Num, Den(b)), _g.Product(b.Num, Den(a))));
 
-            var roots = _divisors.Concat(sides.SelectMany(s => new[] { s.Item1, s.Item2 })).ToList();
+            var roots = _divisors.Concat(_conditions).Concat(sides.SelectMany(s => new[] { s.Item1, s.Item2 })).ToList();
             var (definitions, terms) = _g.Write(roots);
             var assertions = new List<string>();
             for (var i = 0; i < _divisors.Count; i++) assertions.Add($"(assert (not (= {terms[i]} 0)))");
-            var differences = Enumerable.Range(0, sides.Count)
-                .Select(k => $"(not (= {terms[_divisors.Count + 2 * k]} {terms[_divisors.Count + 2 * k + 1]}))").ToList();
-            assertions.Add(differences.Count == 1 ? $"(assert {differences[0]})" : $"(assert (or {string.Join(' ', differences)}))");
+            var offset = _divisors.Count + _conditions.Count;
+            var differences = Enumerable.Range(0, _conditions.Count).Select(k => $"(not (= {terms[_divisors.Count + k]} 0))")
+                .Concat(Enumerable.Range(0, sides.Count).Select(k => $"(not (= {terms[offset + 2 * k]} {terms[offset + 2 * k + 1]}))")).ToList();
+            // Two 0×0 matrices are equal: nothing can differ, and `false` is unsat.
+            assertions.Add(differences.Count switch
+            {
+                0 => "(assert false)",
+                1 => $"(assert {differences[0]})",
+                _ => $"(assert (or {string.Join(' ', differences)}))",
+            });
             var declarations = _g.Variables.Select(v => $"(declare-const {TermGraph.Symbol(v)} Real)").ToList();
             return new SmtLibObligation(declarations, definitions, assertions, _divisors.Count, sides.Count);
         }
@@ -234,7 +246,7 @@ public static class SmtLibWriter
             for (var i = 0; i < l.Rows; i++)
                 for (var j = 0; j < r.Columns; j++)
                 {
-                    var acc = Multiply(l[i, 0], r[0, j]);
+                    var acc = l.Columns == 0 ? Constant(Rational.Zero) : Multiply(l[i, 0], r[0, j]);
                     for (var k = 1; k < l.Columns; k++) acc = Add(acc, Multiply(l[i, k], r[k, j]), subtract: false);
                     e[i * r.Columns + j] = acc;
                 }
@@ -439,8 +451,8 @@ public static class SmtLibWriter
                 {
                     var m = MatrixOf(args[0], "tr's argument");
                     if (m.Rows != m.Columns) throw new HandOffSkip($"tr needs a square matrix, not {m.Describe()}");
-                    var acc = m[0, 0];
-                    for (var i = 1; i < m.Rows; i++) acc = Add(acc, m[i, i], subtract: false);
+                    var acc = Constant(Rational.Zero);
+                    for (var i = 0; i < m.Rows; i++) acc = Add(acc, m[i, i], subtract: false);
                     return Value.Of(acc);
                 }
                 case Builtins.Transpose:
@@ -452,11 +464,48 @@ public static class SmtLibWriter
                     return Value.Matrix(m.Columns, m.Rows, e);
                 }
                 case Builtins.Identity:
+                    return Identity(Order(args[0], "id's argument"));
+                case Builtins.Zero:
                 {
-                    var n = Integer(args[0], "id's argument");
-                    if (n < 1) throw new HandOffSkip($"id's argument is {n}; it must be at least 1");
-                    CheckOrder(n, n);
-                    return Identity((int)n);
+                    var rows = Order(args[0], "zero's first argument");
+                    var columns = args.Count == 2 ? Order(args[1], "zero's second argument") : rows;
+                    CheckOrder(rows, columns);
+                    return Zeros(rows, columns);
+                }
+                case Builtins.Diagonal:
+                {
+                    var values = args.Select(a => a.Accept(this)).ToList();
+                    var entries = values is [{ IsMatrix: true } v] && (v.Rows == 1 || v.Columns == 1) ? v.Entries!.ToList()
+                        : values.Select(x => x.IsMatrix ? throw new HandOffSkip($"an argument of diag is {x.Describe()}") : x.Scalar).ToList();
+                    CheckOrder(entries.Count, entries.Count);
+                    var e = Enumerable.Repeat(Poly(_g.Zero), entries.Count * entries.Count).ToArray();
+                    for (var i = 0; i < entries.Count; i++) e[i * entries.Count + i] = entries[i];
+                    return Value.Matrix(entries.Count, entries.Count, e);
+                }
+                case Builtins.Entry:
+                {
+                    var m = MatrixOf(args[0], "the matrix of an entry");
+                    var i = Integer(args[1], "a row index");
+                    var j = Integer(args[2], "a column index");
+                    if (i < 1 || i > m.Rows || j < 1 || j > m.Columns) throw new HandOffSkip($"the entry [{i},{j}] is outside {m.Describe()}");
+                    return Value.Of(m[(int)i - 1, (int)j - 1]);
+                }
+                case Builtins.Submatrix:
+                    return Submatrix(node);
+                case Builtins.Minor:
+                {
+                    var sub = Submatrix(node);
+                    if (sub.Rows != sub.Columns) throw new HandOffSkip($"minor selects {sub.Rows} rows and {sub.Columns} columns");
+                    return Value.Of(Determinant(sub, "minor"));
+                }
+                case Builtins.Adjugate:
+                    return Adjugate(SquareOf(args[0], "adj"));
+                case Builtins.Inverse:
+                {
+                    // inv(M) = adj(M)/det(M), with det(M) asserted nonzero like every divisor.
+                    var m = SquareOf(args[0], "inv");
+                    var det = Determinant(m, "inv");
+                    return Map(Adjugate(m), x => Divide(x, det));
                 }
                 default:
                     // The integer and number functions of integer arguments are exact rational constants here.
@@ -505,8 +554,7 @@ public static class SmtLibWriter
 
         private Fraction MatrixFunction(CallExpr node)
         {
-            var m = MatrixOf(node.Arguments[0], $"{node.Function}'s argument");
-            if (m.Rows != m.Columns) throw new HandOffSkip($"{node.Function} needs a square matrix, not {m.Describe()}");
+            var m = SquareOf(node.Arguments[0], node.Function);
             var n = m.Rows;
             if (n > limits.MaxExpansionOrder)
                 throw new HandOffSkip($"it has {node.Function} of a {n}×{n} matrix; the limit MaxExpansionOrder is {limits.MaxExpansionOrder}");
@@ -517,8 +565,87 @@ public static class SmtLibWriter
                 case Builtins.Permanent: return Laplace(m, 0, (1 << n) - 1, signed: false, memo);
                 default:
                     if (n % 2 == 1) throw new HandOffSkip($"pf needs a skew-symmetric matrix of even order, but this one is {n}×{n}");
+                    // Skew-symmetry as the compiler checks it: as values, not as spelling.
+                    for (var i = 0; i < n; i++)
+                    {
+                        if (!_g.IsZero(m[i, i].Num)) _conditions.Add(m[i, i].Num);
+                        for (var j = i + 1; j < n; j++)
+                        {
+                            var sum = Add(m[i, j], m[j, i], subtract: false);
+                            if (!_g.IsZero(sum.Num)) _conditions.Add(sum.Num);
+                        }
+                    }
                     return Pfaffian(m, (1 << n) - 1, memo);
             }
+        }
+
+        private Value SquareOf(Expr e, string function)
+        {
+            var m = MatrixOf(e, $"{function}'s argument");
+            return m.Rows == m.Columns ? m : throw new HandOffSkip($"{function} needs a square matrix, not {m.Describe()}");
+        }
+
+        private Fraction Determinant(Value m, string function)
+        {
+            if (m.Rows > limits.MaxExpansionOrder)
+                throw new HandOffSkip($"it has {function} of a {m.Rows}×{m.Rows} matrix; the limit MaxExpansionOrder is {limits.MaxExpansionOrder}");
+            return Laplace(m, 0, (1 << m.Rows) - 1, signed: true, new Dictionary<int, Fraction>());
+        }
+
+        /// <summary>adj(M)[i,j] = (−1)^(i+j)·det(M without row j and column i).</summary>
+        private Value Adjugate(Value m)
+        {
+            var n = m.Rows;
+            var e = new Fraction[n * n];
+            for (var i = 0; i < n; i++)
+                for (var j = 0; j < n; j++)
+                {
+                    var minor = new List<Fraction>();
+                    for (var r = 0; r < n; r++)
+                        for (var c = 0; c < n; c++)
+                            if (r != j && c != i) minor.Add(m[r, c]);
+                    var cofactor = Determinant(Value.Matrix(n - 1, n - 1, [.. minor]), "adj");
+                    e[i * n + j] = (i + j) % 2 == 0 ? cofactor : Negate(cofactor);
+                }
+            return Value.Matrix(n, n, e);
+        }
+
+        private int Order(Expr e, string what)
+        {
+            var n = Integer(e, what);
+            if (n.Sign < 0) throw new HandOffSkip($"{what} is {n}; it must be at least 0");
+            CheckOrder(n, n);
+            return (int)n;
+        }
+
+        private Value Submatrix(CallExpr node)
+        {
+            var m = MatrixOf(node.Arguments[0], $"{node.Function}'s first argument");
+            var rows = Indices(node.Arguments[1], m.Rows, "row");
+            var columns = Indices(node.Arguments[2], m.Columns, "column");
+            var e = new Fraction[rows.Count * columns.Count];
+            for (var i = 0; i < rows.Count; i++)
+                for (var j = 0; j < columns.Count; j++) e[i * columns.Count + j] = m[rows[i], columns[j]];
+            return Value.Matrix(rows.Count, columns.Count, e);
+        }
+
+        private List<int> Indices(Expr list, int size, string what)
+        {
+            if (list is not CallExpr { Function: Builtins.IndexList } call) throw new HandOffSkip($"a list of {what} indices is missing");
+            var result = new List<int>();
+            foreach (var item in call.Arguments)
+            {
+                var (from, to) = item is CallExpr { Function: Builtins.Range } range
+                    ? (Integer(range.Arguments[0], "a range start"), Integer(range.Arguments[1], "a range end"))
+                    : (Integer(item, $"a {what} index"), Integer(item, $"a {what} index"));
+                for (var k = from; k <= to; k++)
+                {
+                    if (k < 1 || k > size) throw new HandOffSkip($"the {what} index {k} is outside 1..{size}");
+                    CheckOrder(result.Count, 0);
+                    result.Add((int)k - 1);
+                }
+            }
+            return result;
         }
 
         /// <summary>
@@ -611,7 +738,8 @@ public static class SmtLibWriter
             var c1 = Integer(node.ColumnTo, "a range end");
             var rows = r1 - r0 + 1;
             var columns = c1 - c0 + 1;
-            if (rows < 1 || columns < 1) throw new HandOffSkip($"it has a matrix with {BigInteger.Max(rows, 0)} rows and {BigInteger.Max(columns, 0)} columns");
+            if (rows < 0) rows = 0;
+            if (columns < 0) columns = 0;
             CheckOrder(rows, columns);
             var e = new Fraction[(int)rows * (int)columns];
             var savedRow = _scope.TryGetValue(node.RowVariable, out var outerRow);

@@ -152,7 +152,7 @@ public sealed class CatalogueImporter(StoreConnection store)
                         entries++;
                         foreach (var c in made.Instances)
                         {
-                            rows.Candidate(c.Label, made.Family, c.Params, made.Lhs, made.Rhs, made.Field, line.Number);
+                            rows.Candidate(c.Label, made.Family, c.Params, made.Lhs, made.Rhs, c.Field ?? made.Field, line.Number);
                             instances++;
                         }
                     }
@@ -188,8 +188,14 @@ public sealed class CatalogueImporter(StoreConnection store)
         };
     }
 
-    /// <summary>An entry's candidates: the label given in the file (or null), the sides and field as stored, and one label and params per instance.</summary>
-    private sealed record Made(string? Label, string? Family, string Lhs, string Rhs, string Field, IReadOnlyList<(string Label, string? Params)> Instances);
+    /// <summary>An instance whose field GF(p) has a p that is not prime (or too large): the entry's rejection.</summary>
+    private sealed class FieldBindingException(string message) : Exception(message);
+
+    /// <summary>
+    /// An entry's candidates: the label given in the file (or null), the sides and field as stored, and one label, params
+    /// and own field (GF(p) of a family parameter p, overriding the entry's) per instance.
+    /// </summary>
+    private sealed record Made(string? Label, string? Family, string Lhs, string Rhs, string Field, IReadOnlyList<(string Label, string? Params, string? Field)> Instances);
 
     /// <summary>
     /// One line to its candidates, or the reason it is rejected; (null, null) for a line with no entry. A failure in
@@ -208,9 +214,9 @@ public sealed class CatalogueImporter(StoreConnection store)
             var rhs = ExprPrinter.Print(entry.Right);
             var field = entry.Field.ToString();
             var ownLabel = entry.Label ?? $"{fileName}:{line.Number}";
-            if (!entry.IsFamily) return (new Made(entry.Label, null, lhs, rhs, field, [(ownLabel, null)]), null);
+            if (!entry.IsFamily) return (new Made(entry.Label, null, lhs, rhs, field, [(ownLabel, null, null)]), null);
             var names = entry.Parameters.Select(p => p.Name).ToList();
-            var instances = new List<(string, string?)>(expansion.Instances.Count);
+            var instances = new List<(string, string?, string?)>(expansion.Instances.Count);
             var label = new StringBuilder();
             foreach (var assignment in expansion.Instances)
             {
@@ -221,9 +227,17 @@ public sealed class CatalogueImporter(StoreConnection store)
                     if (i > 0) label.Append(',');
                     label.Append(ordered[i].Key).Append('=').Append(ordered[i].Value.ToString(CultureInfo.InvariantCulture));
                 }
-                instances.Add((label.Append(']').ToString(), ParamsText.Write(ordered)));
+                // GF(p) of a family parameter: each instance stores its own field; one that is not prime is refused here.
+                var own = entry.Field.CharacteristicParameter is null ? null
+                    : entry.Field.Bind(assignment, options.Limits.MaxFieldBits, out var fieldError)?.ToString()
+                      ?? throw new FieldBindingException(read.Describe(new Diagnostic(entry.Field.ParameterPosition, fieldError!)));
+                instances.Add((label.Append(']').ToString(), ParamsText.Write(ordered), own));
             }
             return (new Made(entry.Label, ownLabel, lhs, rhs, field, instances), null);
+        }
+        catch (FieldBindingException e)
+        {
+            return (null, e.Message);
         }
         catch (Exception e) when (e is not OutOfMemoryException)
         {

@@ -69,7 +69,8 @@ public class CatalogueParserDiagnosticsTests
         { "x = y over R", "unknown field 'R'; write Q, GF(p) or GF(p^k)", 12 },
         { "x = y over", "expected a field (Q, GF(p) or GF(p^k)) after 'over', found end of line", 11 },
         { "x = y over GF(7", "expected ')' to close '(' at column 14, found end of line", 16 },
-        { "x = y over GF(x)", "expected a prime p after 'GF(', found 'x'", 15 },
+        { "x = y over GF(x)", "GF(x): 'x' must be a parameter of this family line", 15 },
+        { "x = y over GF(+)", "expected a prime p after 'GF(', found '+'", 15 },
         { "x = y over Q Q", "unexpected 'Q' after the field", 14 },
         { "x = y over GF(7) over Q", "a second 'over' clause", 18 },
         // families

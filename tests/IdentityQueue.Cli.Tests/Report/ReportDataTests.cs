@@ -82,9 +82,11 @@ public sealed class ReportDataTests(ReportDataTests.Store store) : IClassFixture
     {
         var data = Load();
         var evidence = new long[Bins.EvidenceBits.Count];
-        foreach (var r in Sql("SELECT error_bound_log2 FROM survivors")) evidence[Bins.EvidenceBits.IndexOf(-Convert.ToDouble(r[0], CultureInfo.InvariantCulture))]++;
+        foreach (var r in Sql("SELECT error_bound_log2 FROM survivors WHERE error_bound_log2 IS NOT NULL")) evidence[Bins.EvidenceBits.IndexOf(-Convert.ToDouble(r[0], CultureInfo.InvariantCulture))]++;
         Assert.Equal(evidence, data.EvidenceBins);
-        Assert.Equal(data.Total("survived"), data.EvidenceBins.Sum());
+        // survivors decided exactly have no error bound: counted apart
+        Assert.Equal(L(Sql("SELECT count(*) FROM survivors WHERE error_bound_log2 IS NULL").Single()[0]), data.ExactSurvivors);
+        Assert.Equal(data.Total("survived"), data.EvidenceBins.Sum() + data.ExactSurvivors);
 
         var perCandidate = Sql("SELECT candidate_id, elapsed_us FROM trial").GroupBy(r => L(r[0])).Select(g => g.Sum(r => L(r[1]))).ToList();
         var time = new long[Bins.Microseconds.Count];

@@ -18,6 +18,7 @@ public class ReportPageTests
         StateCounts = empty ? [] : [new StateCount("cat" + Hostile, "survived", 3), new StateCount("cat" + Hostile, "refuted", 2)],
         Stages = empty ? [] : [new StageCount(1, 31, 2)],
         EvidenceBins = [.. Enumerable.Range(0, Bins.EvidenceBits.Count).Select(i => empty ? 0L : i == 4 ? 3L : 0L)],
+        ExactSurvivors = 0,
         TimeBins = [.. Enumerable.Range(0, Bins.Microseconds.Count).Select(i => empty ? 0L : i == 3 ? 5L : 0L)],
         TimedCandidates = empty ? 0 : 5,
         TotalMicroseconds = empty ? 0 : 400,

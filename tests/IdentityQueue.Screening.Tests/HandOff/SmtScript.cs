@@ -40,6 +40,7 @@ internal sealed class SmtScript
     {
         get
         {
+            if (Assertions[^1] is "false") return []; // nothing can differ (two 0×0 matrices)
             var last = (List<object>)Assertions[^1];
             var items = (string)last[0] == "or" ? last.Skip(1).Cast<List<object>>() : [last];
             return items.Select(n => (List<object>)n[1]).Select(eq => (eq[1], eq[2]));

@@ -35,6 +35,22 @@ public sealed class CatalogueImporterTests
         { "c.csv", Csv, 5 },
     };
 
+    // over GF(p) for p prime in A..B: each instance stores its own field; a p that is not prime rejects the line.
+    [Theory]
+    [InlineData("c.idq", "wilson: fact(p-1) = -1 over GF(p) for p prime in 2..12\nbad: x = x over GF(p) for p in 2..4\n")]
+    [InlineData("c.csv", "label,lhs,rhs,over,for\nwilson,fact(p-1),-1,GF(p),p prime in 2..12\nbad,x,x,GF(p),p in 2..4\n")]
+    public void PrimeFamily_StoresEachInstancesOwnField(string name, string text)
+    {
+        using var store = TempStore.Create();
+        var summary = store.Import(store.File(name, text));
+        Assert.Equal(5, summary.Instances);
+        Assert.Equal(1, summary.Rejections);
+        var fields = store.Rows("SELECT label, field FROM candidate ORDER BY id").Select(r => ((string)r[0]!, (string)r[1]!));
+        Assert.Equal([("wilson[p=2]", "GF(2)"), ("wilson[p=3]", "GF(3)"), ("wilson[p=5]", "GF(5)"), ("wilson[p=7]", "GF(7)"), ("wilson[p=11]", "GF(11)")], fields);
+        var reason = (string)store.Rows("SELECT reason FROM rejection").Single()[0]!;
+        Assert.Contains("GF(p) needs a prime p, but p = 4", reason);
+    }
+
     [Theory]
     [MemberData(nameof(Formats))]
     public void Import_StoresLabelledEntries_FamilyInstances_AndTheRejection(string name, string text, int brokenLine)
