@@ -207,23 +207,12 @@ public sealed class LatexPrinter : IExprVisitor<StringBuilder>
             case Builtins.Inverse:
                 Operand(a[0], AtomLevel);
                 return _output.Append("^{-1}");
-            case Builtins.Entry:
-                Operand(a[0], AtomLevel);
-                _output.Append("_{");
-                Write(a[1]);
-                _output.Append(',');
-                Write(a[2]);
-                return _output.Append('}');
             case Builtins.Diagonal:
                 _output.Append("\\operatorname{diag}\\left(");
-                for (var i = 0; i < a.Count; i++)
-                {
-                    if (i > 0) _output.Append(", ");
-                    Write(a[i]);
-                }
+                List(a, ", ");
                 return _output.Append("\\right)");
-            case Builtins.Submatrix or Builtins.Minor:
-                // M_{R,C} for the submatrix on rows R and columns C; a minor is its determinant.
+            case Builtins.Entry or Builtins.Submatrix or Builtins.Minor:
+                // M_{i,j} for an entry, M_{R,C} for the submatrix on rows R and columns C; a minor is its determinant.
                 if (node.Function == Builtins.Minor) _output.Append("\\det ");
                 Operand(a[0], AtomLevel);
                 _output.Append("_{");
@@ -233,11 +222,7 @@ public sealed class LatexPrinter : IExprVisitor<StringBuilder>
                 return _output.Append('}');
             case Builtins.IndexList:
                 _output.Append("\\{");
-                for (var i = 0; i < a.Count; i++)
-                {
-                    if (i > 0) _output.Append(", ");
-                    Write(a[i]);
-                }
+                List(a, ", ");
                 return _output.Append("\\}");
             case Builtins.Range:
                 Write(a[0]);
