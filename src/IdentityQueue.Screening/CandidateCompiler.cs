@@ -24,7 +24,7 @@ public sealed class CandidateCompiler(Limits limits)
     /// The instance of <paramref name="entry"/> with <paramref name="parameters"/>. Instances are told apart from other
     /// families by the entry's text (the catalogue line without its ranges) and the names of their parameters.
     /// </summary>
-    public CompileResult Compile(IdentityEntry entry, IReadOnlyDictionary<string, BigInteger> parameters)
+    public Result<CompiledIdentity> Compile(IdentityEntry entry, IReadOnlyDictionary<string, BigInteger> parameters)
     {
         if (parameters.Count == 0) return IdentityCompiler.Compile(entry, parameters, limits);
         var key = Key(entry, parameters);

@@ -25,20 +25,3 @@ internal sealed class CompileError(SourcePosition position, string message) : Ex
         return new Diagnostic(Position, Message) { Context = context.Length == 0 ? null : context, Side = side, Values = at };
     }
 }
-
-/// <summary>The outcome of compiling: a program, or a diagnostic with the position. Never throws.</summary>
-public readonly struct CompileResult
-{
-    private CompileResult(CompiledIdentity? value, Diagnostic? error)
-    {
-        Value = value;
-        Error = error;
-    }
-
-    public CompiledIdentity? Value { get; }
-    public Diagnostic? Error { get; }
-    public bool Success => Error is null;
-
-    public static CompileResult Ok(CompiledIdentity value) => new(value, null);
-    public static CompileResult Fail(Diagnostic error) => new(null, error);
-}

@@ -23,10 +23,10 @@ public sealed class FamilyTemplate
     public StraightLineProgram Program { get; }
 
     /// <summary>The instance with <paramref name="parameters"/>: what compiling it alone gives, up to folding of its constants.</summary>
-    public CompileResult Instance(IReadOnlyDictionary<string, BigInteger> parameters)
+    public Result<CompiledIdentity> Instance(IReadOnlyDictionary<string, BigInteger> parameters)
     {
         // A family whose parameters appear nowhere in the expression: every instance is the same program.
         var program = Program.ParameterConstants is null ? Program : Program.WithParameters(parameters);
-        return CompileResult.Ok(new CompiledIdentity(Entry, parameters, program, BoundAnalysis.Analyse(program)));
+        return Result<CompiledIdentity>.Ok(new CompiledIdentity(Entry, parameters, program, BoundAnalysis.Analyse(program)));
     }
 }

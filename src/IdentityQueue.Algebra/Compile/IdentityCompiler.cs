@@ -27,7 +27,7 @@ public static class IdentityCompiler
     private static readonly IReadOnlyDictionary<string, BigInteger> NoParameters = new Dictionary<string, BigInteger>();
 
     /// <summary>Compiles one instance; errors come back as a <see cref="Diagnostic"/> with the position, never as an exception.</summary>
-    public static CompileResult Compile(IdentityEntry entry, IReadOnlyDictionary<string, BigInteger>? parameters = null, Limits? limits = null)
+    public static Result<CompiledIdentity> Compile(IdentityEntry entry, IReadOnlyDictionary<string, BigInteger>? parameters = null, Limits? limits = null)
     {
         limits ??= Limits.Default;
         parameters ??= NoParameters;
@@ -35,7 +35,7 @@ public static class IdentityCompiler
         {
             // over GF(p) with p a family parameter: this instance's field.
             var field = entry.Field.Bind(parameters, limits.MaxFieldBits, out var error);
-            if (field is null) return CompileResult.Fail(new Diagnostic(entry.Field.ParameterPosition, error!));
+            if (field is null) return Result<CompiledIdentity>.Fail(new Diagnostic(entry.Field.ParameterPosition, error!));
             entry = entry with { Field = field };
         }
         var walker = new Walker(limits, parameters, shareParameters: false, Series(entry.Field));
@@ -43,22 +43,22 @@ public static class IdentityCompiler
         {
             var program = walker.CompileDifference(entry.Left, entry.Right);
             var bounds = BoundAnalysis.Analyse(program);
-            return CompileResult.Ok(new CompiledIdentity(entry, parameters, program, bounds));
+            return Result<CompiledIdentity>.Ok(new CompiledIdentity(entry, parameters, program, bounds));
         }
         catch (CompileError e)
         {
             var order = entry.Parameters.Count > 0 ? entry.Parameters.Select(p => p.Name).ToList()
                 : parameters.Keys.OrderBy(k => k, StringComparer.Ordinal).ToList();
-            return CompileResult.Fail(e.ToDiagnostic(walker.Side, parameters, order));
+            return Result<CompiledIdentity>.Fail(e.ToDiagnostic(walker.Side, parameters, order));
         }
         catch (ProgramTooLargeException)
         {
-            return CompileResult.Fail(new Diagnostic(walker.LastPosition,
+            return Result<CompiledIdentity>.Fail(new Diagnostic(walker.LastPosition,
                 $"the identity expands to more than {limits.MaxProgramSize} instructions (the limit MaxProgramSize)"));
         }
         catch (InsufficientExecutionStackException)
         {
-            return CompileResult.Fail(new Diagnostic(walker.LastPosition,
+            return Result<CompiledIdentity>.Fail(new Diagnostic(walker.LastPosition,
                 $"the expression is nested too deeply to compile (see the limit MaxNestingDepth, {limits.MaxNestingDepth})"));
         }
     }

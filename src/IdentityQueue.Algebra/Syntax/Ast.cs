@@ -5,7 +5,12 @@ namespace IdentityQueue.Algebra.Syntax;
 /// <summary>A 1-based line and column in catalogue text. Immutable.</summary>
 public readonly record struct SourcePosition(int Line, int Column)
 {
-    public override string ToString() => $"line {Line}, column {Column}";
+    /// <summary>No place in a text (line 0): a problem with an option value or a whole file.</summary>
+    public static readonly SourcePosition None = default;
+
+    public bool IsNone => Line == 0;
+
+    public override string ToString() => IsNone ? "" : $"line {Line}, column {Column}";
 }
 
 /// <summary>A node of the closed expression tree. Immutable; walk it with an <see cref="IExprVisitor{TResult}"/>.</summary>

@@ -111,30 +111,8 @@ public sealed record Diagnostic(SourcePosition Position, string Message)
     /// <summary>The values of a compile error, <c>at n=2, j=1</c> (also in <see cref="Context"/>).</summary>
     public string? Values { get; init; }
 
-    public override string ToString() => Context is null ? $"{Position}: {Message}" : $"{Position}, {Context}: {Message}";
+    public override string ToString() =>
+        Position.IsNone ? (Context is null ? Message : $"{Context}: {Message}")
+        : Context is null ? $"{Position}: {Message}" : $"{Position}, {Context}: {Message}";
 }
 
-/// <summary>The outcome of parsing: a value, or a <see cref="Diagnostic"/> that carries the position. Never throws.</summary>
-public readonly struct ParseResult<T>
-{
-    private readonly T? _value;
-
-    private ParseResult(T? value, Diagnostic? error)
-    {
-        _value = value;
-        Error = error;
-    }
-
-    public static ParseResult<T> Ok(T value) => new(value, null);
-
-    public static ParseResult<T> Fail(Diagnostic error) => new(default, error);
-
-    public static ParseResult<T> Fail(SourcePosition at, string message) => new(default, new Diagnostic(at, message));
-
-    public bool Success => Error is null;
-
-    public Diagnostic? Error { get; }
-
-    /// <summary>The parsed value; throws if parsing failed.</summary>
-    public T Value => Error is null ? _value! : throw new InvalidOperationException($"parse failed: {Error}");
-}

@@ -20,68 +20,68 @@ public static class CatalogueParser
     /// adds a definition and gives a successful null result, and every later line may use it: uses are written out into the
     /// entry's tree, so the entry holds no trace of them. Without a scope a <c>let</c> line is an error.
     /// </remarks>
-    public static ParseResult<IdentityEntry?> ParseLine(string text, int lineNumber, Limits? limits = null, DefinitionScope? definitions = null)
+    public static Result<IdentityEntry?> ParseLine(string text, int lineNumber, Limits? limits = null, DefinitionScope? definitions = null)
     {
         ArgumentNullException.ThrowIfNull(text);
         limits ??= Limits.Default;
         if (text.Length > limits.MaxLineLength)
-            return ParseResult<IdentityEntry?>.Fail(new SourcePosition(lineNumber, 1), SyntaxMessages.LineTooLong(text.Length, limits.MaxLineLength));
+            return Result<IdentityEntry?>.Fail(new SourcePosition(lineNumber, 1), SyntaxMessages.LineTooLong(text.Length, limits.MaxLineLength));
 
         var first = SkipSpaces(text, 0);
-        if (first == text.Length || text[first] == '#') return ParseResult<IdentityEntry?>.Ok(null);
+        if (first == text.Length || text[first] == '#') return Result<IdentityEntry?>.Ok(null);
 
         var (label, start, labelError) = FindLabel(text, first);
-        if (labelError) return ParseResult<IdentityEntry?>.Fail(new SourcePosition(lineNumber, first + 1), SyntaxMessages.EmptyLabel);
+        if (labelError) return Result<IdentityEntry?>.Fail(new SourcePosition(lineNumber, first + 1), SyntaxMessages.EmptyLabel);
 
         if (label is null && IsDefinition(text, first))
         {
-            if (definitions is null) return ParseResult<IdentityEntry?>.Fail(new SourcePosition(lineNumber, first + 1), SyntaxMessages.DefinitionOutsideFile);
+            if (definitions is null) return Result<IdentityEntry?>.Fail(new SourcePosition(lineNumber, first + 1), SyntaxMessages.DefinitionOutsideFile);
             var definer = new Parser(text, first, lineNumber, limits, definitions);
             var definition = definer.ParseDefinition();
-            if (definition is null) return ParseResult<IdentityEntry?>.Fail(definer.Error!);
+            if (definition is null) return Result<IdentityEntry?>.Fail(definer.Error!);
             definitions.Add(definition);
-            return ParseResult<IdentityEntry?>.Ok(null);
+            return Result<IdentityEntry?>.Ok(null);
         }
 
         var parser = new Parser(text, start, lineNumber, limits, definitions);
         var entry = parser.ParseIdentity(label);
-        return entry is null ? ParseResult<IdentityEntry?>.Fail(parser.Error!) : ParseResult<IdentityEntry?>.Ok(entry);
+        return entry is null ? Result<IdentityEntry?>.Fail(parser.Error!) : Result<IdentityEntry?>.Ok(entry);
     }
 
     /// <summary>One identity, as for <c>idq check "LHS = RHS"</c>: like <see cref="ParseLine"/> at line 1, but a blank text is an error.</summary>
     /// <remarks>With <paramref name="definitions"/> the identity may use them (a <c>let</c> text itself is then an error: no identity).</remarks>
-    public static ParseResult<IdentityEntry> ParseIdentity(string text, Limits? limits = null, DefinitionScope? definitions = null)
+    public static Result<IdentityEntry> ParseIdentity(string text, Limits? limits = null, DefinitionScope? definitions = null)
     {
         if (definitions is not null && IsDefinition(text, SkipSpaces(text, 0)))
-            return ParseResult<IdentityEntry>.Fail(new SourcePosition(1, 1), SyntaxMessages.ExpectedIdentity);
+            return Result<IdentityEntry>.Fail(new SourcePosition(1, 1), SyntaxMessages.ExpectedIdentity);
         var result = ParseLine(text, 1, limits, definitions);
-        if (!result.Success) return ParseResult<IdentityEntry>.Fail(result.Error!);
-        if (result.Value is { } entry) return ParseResult<IdentityEntry>.Ok(entry);
-        return ParseResult<IdentityEntry>.Fail(new SourcePosition(1, 1), SyntaxMessages.ExpectedIdentity);
+        if (!result.Success) return Result<IdentityEntry>.Fail(result.Error!);
+        if (result.Value is { } entry) return Result<IdentityEntry>.Ok(entry);
+        return Result<IdentityEntry>.Fail(new SourcePosition(1, 1), SyntaxMessages.ExpectedIdentity);
     }
 
     /// <summary>A text that is exactly one expression (e.g. the <c>lhs</c> of a <c>.jsonl</c> entry); positions are on line 1.</summary>
-    public static ParseResult<Expr> ParseExpression(string text, Limits? limits = null)
+    public static Result<Expr> ParseExpression(string text, Limits? limits = null)
     {
         ArgumentNullException.ThrowIfNull(text);
         limits ??= Limits.Default;
         if (text.Length > limits.MaxLineLength)
-            return ParseResult<Expr>.Fail(new SourcePosition(1, 1), SyntaxMessages.LineTooLong(text.Length, limits.MaxLineLength));
+            return Result<Expr>.Fail(new SourcePosition(1, 1), SyntaxMessages.LineTooLong(text.Length, limits.MaxLineLength));
         var parser = new Parser(text, 0, 1, limits);
         var expr = parser.ParseStandaloneExpression();
-        return expr is null ? ParseResult<Expr>.Fail(parser.Error!) : ParseResult<Expr>.Ok(expr);
+        return expr is null ? Result<Expr>.Fail(parser.Error!) : Result<Expr>.Ok(expr);
     }
 
     /// <summary>A text that is exactly one field, <c>Q</c>, <c>GF(p)</c> or <c>GF(p^k)</c> (e.g. a <c>--over</c> option); positions are on line 1.</summary>
-    public static ParseResult<FieldSpec> ParseField(string text, Limits? limits = null)
+    public static Result<FieldSpec> ParseField(string text, Limits? limits = null)
     {
         ArgumentNullException.ThrowIfNull(text);
         limits ??= Limits.Default;
         if (text.Length > limits.MaxLineLength)
-            return ParseResult<FieldSpec>.Fail(new SourcePosition(1, 1), SyntaxMessages.LineTooLong(text.Length, limits.MaxLineLength));
+            return Result<FieldSpec>.Fail(new SourcePosition(1, 1), SyntaxMessages.LineTooLong(text.Length, limits.MaxLineLength));
         var parser = new Parser(text, 0, 1, limits);
         var field = parser.ParseStandaloneField();
-        return field is null ? ParseResult<FieldSpec>.Fail(parser.Error!) : ParseResult<FieldSpec>.Ok(field);
+        return field is null ? Result<FieldSpec>.Fail(parser.Error!) : Result<FieldSpec>.Ok(field);
     }
 
     /// <summary>
