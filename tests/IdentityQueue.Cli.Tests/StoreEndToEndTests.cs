@@ -218,19 +218,37 @@ public sealed class StoreEndToEndTests : IDisposable
         Assert.Equal(0, Idq("recheck", "--all", "--db", Db).Code);
     }
 
-    // A screening-time invalid names the catalogue line, the column in the stored side (as idq show prints it), the side
-    // and the values of the parameters and bound variables.
+    // A screening-time invalid names the catalogue line and the column in that line (the stored side is the text as
+    // written, and the column where it starts is stored), the side and the values of the parameters and bound variables.
+    // Columns counted by hand on the lines below.
     [Fact]
-    public void InvalidAtScreening_NamesTheLineTheSideAndTheValues()
+    public void InvalidAtScreening_NamesTheLineTheColumnTheSideAndTheValues()
     {
         var file = Path.Combine(_dir, "i.idq");
-        File.WriteAllText(file, "# first line\nok: x = x\nbad: x + sum(j in 0..n: x^j/(j-1)) = 0 for n in 2..3\n");
+        File.WriteAllText(file, "# first line\nok: x = x\nbad: x + sum(j in 0..n: x^j/(j-1)) = 0 for n in 2..3\nbad-rhs:   x   =   x + fact(n - 3)*0   for n in 2..2\n");
         Idq("init", "--db", Db);
         Idq("import", file, "--db", Db);
         Idq("run", "--db", Db);
         var rows = Query(Db, "SELECT label, message FROM verdicts WHERE state = 'invalid' ORDER BY label");
-        Assert.Equal("line 3, column 23 of the stored lhs, at n=2, j=1: division by zero", rows[0][1]);
-        Assert.Equal("line 3, column 23 of the stored lhs, at n=3, j=1: division by zero", rows[1][1]);
+        // "bad-rhs:   x   =   x + fact(n - 3)*0": fact's argument starts at column 29.
+        Assert.Equal("bad-rhs[n=2]", rows[0][0]);
+        Assert.StartsWith("line 4, column 29, rhs, at n=2: ", (string)rows[0][1]!);
+        // "bad: x + sum(j in 0..n: x^j/(j-1)) = 0": the '/' is column 28 of the line.
+        Assert.Equal("line 3, column 28, lhs, at n=2, j=1: division by zero", rows[1][1]);
+        Assert.Equal("line 3, column 28, lhs, at n=3, j=1: division by zero", rows[2][1]);
+    }
+
+    // A .jsonl object's sides are its fields: the column is counted inside the stored side, which is the field as written.
+    [Fact]
+    public void InvalidAtScreening_OfAJsonlLine_CountsInTheStoredSide()
+    {
+        var file = Path.Combine(_dir, "i.jsonl");
+        File.WriteAllText(file, "{\"label\": \"bad\", \"lhs\": \"x + sum(j in 0..n: x^j/(j-1))\", \"rhs\": \"x\", \"for\": {\"n\": [2, 2]}}\n");
+        Idq("init", "--db", Db);
+        Idq("import", file, "--db", Db);
+        Idq("run", "--db", Db);
+        var rows = Query(Db, "SELECT label, message FROM verdicts WHERE state = 'invalid'");
+        Assert.Equal("line 1, column 23 of the stored lhs, at n=2, j=1: division by zero", rows[0][1]);
     }
 
     [Fact]

@@ -62,6 +62,10 @@ namespace IdentityQueue.Migrations.PostgreSql.Migrations
                         .HasColumnType("text")
                         .HasColumnName("lhs");
 
+                    b.Property<int?>("LhsColumn")
+                        .HasColumnType("integer")
+                        .HasColumnName("lhs_column");
+
                     b.Property<string>("Params")
                         .HasColumnType("text")
                         .HasColumnName("params");
@@ -74,6 +78,10 @@ namespace IdentityQueue.Migrations.PostgreSql.Migrations
                         .IsRequired()
                         .HasColumnType("text")
                         .HasColumnName("rhs");
+
+                    b.Property<int?>("RhsColumn")
+                        .HasColumnType("integer")
+                        .HasColumnName("rhs_column");
 
                     b.HasKey("Id")
                         .HasName("pk_candidate");

@@ -55,6 +55,10 @@ namespace IdentityQueue.Migrations.Sqlite.Migrations
                         .HasColumnType("TEXT")
                         .HasColumnName("lhs");
 
+                    b.Property<int?>("LhsColumn")
+                        .HasColumnType("INTEGER")
+                        .HasColumnName("lhs_column");
+
                     b.Property<string>("Params")
                         .HasColumnType("TEXT")
                         .HasColumnName("params");
@@ -67,6 +71,10 @@ namespace IdentityQueue.Migrations.Sqlite.Migrations
                         .IsRequired()
                         .HasColumnType("TEXT")
                         .HasColumnName("rhs");
+
+                    b.Property<int?>("RhsColumn")
+                        .HasColumnType("INTEGER")
+                        .HasColumnName("rhs_column");
 
                     b.HasKey("Id")
                         .HasName("pk_candidate");

@@ -152,7 +152,7 @@ public sealed class CatalogueImporter(StoreConnection store)
                         entries++;
                         foreach (var c in made.Instances)
                         {
-                            rows.Candidate(c.Label, made.Family, c.Params, made.Lhs, made.Rhs, c.Field ?? made.Field, line.Number);
+                            rows.Candidate(c.Label, made.Family, c.Params, made.Sides, c.Field ?? made.Field, line.Number);
                             instances++;
                         }
                     }
@@ -195,7 +195,19 @@ public sealed class CatalogueImporter(StoreConnection store)
     /// An entry's candidates: the label given in the file (or null), the sides and field as stored, and one label, params
     /// and own field (GF(p) of a family parameter p, overriding the entry's) per instance.
     /// </summary>
-    private sealed record Made(string? Label, string? Family, string Lhs, string Rhs, string Field, IReadOnlyList<(string Label, string? Params, string? Field)> Instances);
+    /// <summary>
+    /// The stored sides: the text as written when the line uses no definition (with the columns where each starts in an
+    /// <c>.idq</c> line, so a screening-time message can point there), else the printed tree with its uses written out.
+    /// </summary>
+    private readonly record struct Sides(string Lhs, string Rhs, int? LhsColumn, int? RhsColumn)
+    {
+        public static Sides Of(IdentityEntry entry, bool idqLine) =>
+            !entry.UsesDefinitions && entry.LeftSpan is { } l && entry.RightSpan is { } r
+                ? new Sides(l.Of(entry.Text), r.Of(entry.Text), idqLine ? l.Column : null, idqLine ? r.Column : null)
+                : new Sides(ExprPrinter.Print(entry.Left), ExprPrinter.Print(entry.Right), null, null);
+    }
+
+    private sealed record Made(string? Label, string? Family, Sides Sides, string Field, IReadOnlyList<(string Label, string? Params, string? Field)> Instances);
 
     /// <summary>
     /// One line to its candidates, or the reason it is rejected; (null, null) for a line with no entry. A failure in
@@ -210,11 +222,10 @@ public sealed class CatalogueImporter(StoreConnection store)
             if (read.Entry is not { } entry) return (null, null);
             var expansion = FamilyExpander.Expand(entry, options.Limits);
             if (!expansion.Success) return (null, read.Describe(expansion.Error!));
-            var lhs = ExprPrinter.Print(entry.Left);
-            var rhs = ExprPrinter.Print(entry.Right);
+            var sides = Sides.Of(entry, read.Built is null);
             var field = entry.Field.ToString();
             var ownLabel = entry.Label ?? $"{fileName}:{line.Number}";
-            if (!entry.IsFamily) return (new Made(entry.Label, null, lhs, rhs, field, [(ownLabel, null, null)]), null);
+            if (!entry.IsFamily) return (new Made(entry.Label, null, sides, field, [(ownLabel, null, null)]), null);
             var names = entry.Parameters.Select(p => p.Name).ToList();
             var instances = new List<(string, string?, string?)>(expansion.Instances.Count);
             var label = new StringBuilder();
@@ -233,7 +244,7 @@ public sealed class CatalogueImporter(StoreConnection store)
                       ?? throw new FieldBindingException(read.Describe(new Diagnostic(entry.Field.ParameterPosition, fieldError!)));
                 instances.Add((label.Append(']').ToString(), ParamsText.Write(ordered), own));
             }
-            return (new Made(entry.Label, ownLabel, lhs, rhs, field, instances), null);
+            return (new Made(entry.Label, ownLabel, sides, field, instances), null);
         }
         catch (FieldBindingException e)
         {
@@ -250,7 +261,7 @@ public sealed class CatalogueImporter(StoreConnection store)
     {
         private readonly DbConnection _db;
         private readonly DbCommand _candidate, _rejection;
-        private readonly DbParameter _label, _family, _params, _lhs, _rhs, _field, _position, _line, _raw, _reason;
+        private readonly DbParameter _label, _family, _params, _lhs, _rhs, _field, _position, _lhsColumn, _rhsColumn, _line, _raw, _reason;
         private DbTransaction _transaction;
         private bool _finished;
 
@@ -259,8 +270,8 @@ public sealed class CatalogueImporter(StoreConnection store)
             _db = db;
             _transaction = db.BeginTransaction();
             _candidate = db.Command("""
-                INSERT INTO candidate (catalogue_id, label, family, params, lhs, rhs, field, position)
-                VALUES (@catalogue, @label, @family, @params, @lhs, @rhs, @field, @position)
+                INSERT INTO candidate (catalogue_id, label, family, params, lhs, rhs, field, position, lhs_column, rhs_column)
+                VALUES (@catalogue, @label, @family, @params, @lhs, @rhs, @field, @position, @lhs_column, @rhs_column)
                 """, _transaction);
             _candidate.Parameter("@catalogue", catalogueId);
             _label = _candidate.Parameter("@label");
@@ -270,6 +281,8 @@ public sealed class CatalogueImporter(StoreConnection store)
             _rhs = _candidate.Parameter("@rhs");
             _field = _candidate.Parameter("@field");
             _position = _candidate.Parameter("@position");
+            _lhsColumn = _candidate.Parameter("@lhs_column");
+            _rhsColumn = _candidate.Parameter("@rhs_column");
             _rejection = db.Command("""
                 INSERT INTO rejection (catalogue_id, source, line, raw, reason)
                 VALUES (@catalogue, @source, @line, @raw, @reason)
@@ -286,8 +299,9 @@ public sealed class CatalogueImporter(StoreConnection store)
         /// <summary>Rows written since the last commit.</summary>
         public int Pending { get; private set; }
 
-        public void Candidate(string label, string? family, string? parameters, string lhs, string rhs, string field, int position)
+        public void Candidate(string label, string? family, string? parameters, Sides sides, string field, int position)
         {
+            var (lhs, rhs, lhsColumn, rhsColumn) = sides;
             _label.Set(label);
             _family.Set(family);
             _params.Set(parameters);
@@ -295,6 +309,8 @@ public sealed class CatalogueImporter(StoreConnection store)
             _rhs.Set(rhs);
             _field.Set(field);
             _position.Set(position);
+            _lhsColumn.Set(lhsColumn);
+            _rhsColumn.Set(rhsColumn);
             _candidate.ExecuteNonQuery();
             Pending++;
         }

@@ -52,6 +52,8 @@ public sealed class IdentityStoreContext(DbContextOptions<IdentityStoreContext> 
             e.Property(x => x.Field).HasColumnName("field").HasDefaultValue("Q");
             e.Property(x => x.CreatedAt).HasColumnName("created_at").HasDefaultValueSql(Now);
             e.Property(x => x.Position).HasColumnName("position");
+            e.Property(x => x.LhsColumn).HasColumnName("lhs_column");
+            e.Property(x => x.RhsColumn).HasColumnName("rhs_column");
             e.HasOne<CatalogueRow>().WithMany().HasForeignKey(x => x.CatalogueId)
                 .HasConstraintName("fk_candidate_catalogue").OnDelete(DeleteBehavior.Cascade);
             // The families view groups by (catalogue_id, family) and orders instances by position.

@@ -45,6 +45,10 @@ public sealed class CandidateRow
     public DateTime CreatedAt { get; set; }
     /// <summary>The line of the catalogue file the candidate came from; null for a hand-inserted row.</summary>
     public int? Position { get; set; }
+    /// <summary>The column of the catalogue line where <see cref="Lhs"/> starts, when it is the text as written there; else null.</summary>
+    public int? LhsColumn { get; set; }
+    /// <summary>The column of the catalogue line where <see cref="Rhs"/> starts, when it is the text as written there; else null.</summary>
+    public int? RhsColumn { get; set; }
 }
 
 /// <summary>A row of <c>result</c>: the screening state of one candidate.</summary>
