@@ -14,7 +14,7 @@ public sealed class MigrationTests
         { "rejection", ["id", "catalogue_id", "source", "line", "raw", "reason"] },
         { "verdicts", ["candidate_id", "catalogue", "label", "family", "state", "degree_bound", "trials", "error_bound_log2", "witness_modulus", "witness_point", "message"] },
         { "survivors", ["label", "state"] },
-        { "families", ["catalogue", "family", "instances", "survived", "refuted", "other", "first_refuted", "survived_params"] },
+        { "families", ["catalogue", "family", "instances", "survived", "refuted", "other", "first_refuted", "survived_params", "holds_for", "fails_for"] },
     };
 
     [Theory]
