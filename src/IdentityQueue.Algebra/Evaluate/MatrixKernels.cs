@@ -41,10 +41,10 @@ public static partial class MatrixKernels
         where TField : struct, IField<T> where T : struct
     {
         CheckSquare(a.Length, n);
-        if (typeof(TField) == typeof(PrimeField62) && typeof(T) == typeof(Residue62))
+        if (TField.Layout == ElementLayout.Montgomery62)
         {
-            var field = (PrimeField62)(object)f;
-            return (T)(object)PrimeField62.FromMontgomery(Determinant62(field, MemoryMarshal.Cast<T, ulong>(a), n, avx512: true, cancellation));
+            var raw = Determinant62(Unsafe.As<TField, PrimeField62>(ref f), MemoryMarshal.Cast<T, ulong>(a), n, avx512: true, cancellation);
+            return Unsafe.As<ulong, T>(ref raw);
         }
         return DeterminantByElimination(f, a, n, DivisionFreeOrder, cancellation);
     }
@@ -232,11 +232,10 @@ public static partial class MatrixKernels
         ArgumentOutOfRangeException.ThrowIfGreaterThan(n, MaxPermanentOrder);
         if (scratch.Length < n) throw new ArgumentException($"the scratch needs {n} elements, got {scratch.Length}", nameof(scratch));
         if (n == 0) return f.One;
-        if (typeof(TField) == typeof(PrimeField62) && typeof(T) == typeof(Residue62) && n >= GlynnMinOrder && n <= 32
-            && Avx512F.IsSupported && Avx512DQ.IsSupported)
+        if (TField.Layout == ElementLayout.Montgomery62 && n >= GlynnMinOrder && n <= 32 && Avx512F.IsSupported && Avx512DQ.IsSupported)
         {
-            var raw = Glynn62Avx512((PrimeField62)(object)f, MemoryMarshal.Cast<T, ulong>(a), n, cancellation);
-            return (T)(object)PrimeField62.FromMontgomery(raw);
+            var raw = Glynn62Avx512(Unsafe.As<TField, PrimeField62>(ref f), MemoryMarshal.Cast<T, ulong>(a), n, cancellation);
+            return Unsafe.As<ulong, T>(ref raw);
         }
         return n >= GlynnMinOrder && f.Characteristic != 2 ? Glynn(f, a, n, scratch[..n], cancellation) : Ryser(f, a, n, scratch[..n], cancellation);
     }
