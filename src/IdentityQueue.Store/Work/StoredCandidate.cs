@@ -32,7 +32,7 @@ public sealed record StoredCandidate(
     /// in a catalogue made before canonical keys (<c>catalogue.key_scheme</c> 0), whose stored trials stay reproducible so.
     /// </summary>
     public ulong TrialKey(BoundCandidate bound) =>
-        KeyScheme == 0 || !bound.Success ? unchecked((ulong)Id) : CandidateKey.Of(bound.Entry!, bound.Parameters);
+        KeyScheme == 0 || !bound.Success ? unchecked((ulong)Id) : CandidateKey.Of(bound.Entry, bound.Parameters);
 
     /// <summary>The catalogue line this candidate stands for (without its family ranges; <see cref="Params"/> binds them).</summary>
     public string Text => ExprPrinter.Line(Lhs, Rhs, Field);
@@ -101,7 +101,9 @@ public sealed class StoredSides
 /// <summary>A stored candidate ready to compile: the entry and its parameters, or the message for an <c>invalid</c> result.</summary>
 public sealed record BoundCandidate(IdentityEntry? Entry, IReadOnlyDictionary<string, BigInteger> Parameters, string? Error)
 {
-    public bool Success => Error is null;
+    [System.Diagnostics.CodeAnalysis.MemberNotNullWhen(true, nameof(Entry))]
+    [System.Diagnostics.CodeAnalysis.MemberNotNullWhen(false, nameof(Error))]
+    public bool Success => Error is null && Entry is not null;
 
     internal static BoundCandidate Fail(string error) => new(null, new Dictionary<string, BigInteger>(), error);
 }
