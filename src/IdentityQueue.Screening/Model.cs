@@ -117,12 +117,6 @@ public sealed record ScreeningOptions
     /// <summary>The run's seed: every prime and point derives from it, the candidate key and the trial number.</summary>
     public ulong Seed { get; init; }
 
-    /// <summary>A trial must buy at least this many bits of evidence, or a larger field is used.</summary>
-    public int MinBitsPerTrial { get; init; } = 16;
-
-    /// <summary>Undefined points in a row after which the candidate is undecided.</summary>
-    public int MaxConsecutiveUndefined { get; init; } = 24;
-
     public Algebra.Limits Limits { get; init; } = Algebra.Limits.Default;
 
     /// <summary>The time one candidate's screening may take (<c>TimePerCandidate</c>).</summary>

@@ -58,10 +58,10 @@ public static class Screener
         {
             if (newStages == options.MaxNewStages)
                 return new ScreenResult(Verdict.Pending, bounds.Degree, bounds.HeightLog2, accumulated, trials, null, false, null);
-            var rung = FieldLadder.Choose(identity, rungs, climbed.Count, options.MinBitsPerTrial);
+            var rung = FieldLadder.Choose(identity, rungs, climbed.Count, options.Policy.MinBitsPerTrial);
             if (rung is null)
                 return Undecided(identity, trials, accumulated,
-                    $"the degree bound {bounds.Degree} is too large: a trial in the largest field allowed (MaxFieldBits = {options.Limits.MaxFieldBits}) buys only {FieldLadder.BestBits(identity, rungs):F1} bits, fewer than {options.MinBitsPerTrial}");
+                    $"the degree bound {bounds.Degree} is too large: a trial in the largest field allowed (MaxFieldBits = {options.Limits.MaxFieldBits}) buys only {FieldLadder.BestBits(identity, rungs):F1} bits, fewer than {options.Policy.MinBitsPerTrial}");
             if (trials.Count >= options.Policy.MaxTrials)
                 return Undecided(identity, trials, accumulated, $"the trial budget (MaxTrials = {options.Policy.MaxTrials}) ran out at 2^{accumulated:F1} of the target {options.Target}");
             if (cancellation.IsCancellationRequested) return Stopped(identity, trials, accumulated);
@@ -105,7 +105,7 @@ public static class Screener
                     case TrialOutcome.Nonzero:
                         return Refuted(identity, options, trials, trial, token);
                     case TrialOutcome.Undefined:
-                        if (++consecutiveUndefined >= options.MaxConsecutiveUndefined)
+                        if (++consecutiveUndefined >= options.Policy.MaxConsecutiveUndefined)
                             return Undecided(identity, trials, accumulated,
                                 $"lhs − rhs was undefined (a denominator vanished) at {consecutiveUndefined} random points in a row: a denominator may be identically zero");
                         break;
@@ -130,7 +130,7 @@ public static class Screener
     public static TrialEstimate Estimate(CompiledIdentity identity, ScreeningOptions options)
     {
         var cost = TrialCost.Of(identity.Program, OddCharacteristic(identity));
-        var rung = FieldLadder.Choose(identity, FieldLadder.Rungs(identity.Field, options.Limits.MaxFieldBits), 0, options.MinBitsPerTrial);
+        var rung = FieldLadder.Choose(identity, FieldLadder.Rungs(identity.Field, options.Limits.MaxFieldBits), 0, options.Policy.MinBitsPerTrial);
         if (rung is null) return new TrialEstimate(cost, null, TimeSpan.Zero, null);
         var perTrial = options.Costs.TrialTime(identity, rung, cost);
         var oneTrial = BlockTrialRunner.Handles(identity, rung) ? perTrial * BlockTrialRunner.PaddedLanes(rung, 1) : perTrial;

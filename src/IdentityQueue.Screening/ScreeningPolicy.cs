@@ -14,6 +14,12 @@ public sealed record ScreeningPolicy
     /// <summary>Most trials for one candidate (including resampled undefined points).</summary>
     public int MaxTrials { get; init; } = 200;
 
+    /// <summary>A trial must buy at least this many bits of evidence, or a larger field is used (the ladder's rule).</summary>
+    public int MinBitsPerTrial { get; init; } = 16;
+
+    /// <summary>Undefined points in a row after which the candidate is undecided.</summary>
+    public int MaxConsecutiveUndefined { get; init; } = 24;
+
     /// <summary>Largest estimated size, in bits, of an exact rational evaluation used to certify a refutation (or decide a constant identity).</summary>
     public long MaxCertifyBits { get; init; } = 1 << 22;
 
