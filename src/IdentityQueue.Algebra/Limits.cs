@@ -45,9 +45,6 @@ public sealed record Limits
     /// <summary>Largest field used for a trial, in bits; a degree bound that needs more leaves the candidate undecided.</summary>
     public int MaxFieldBits { get; init; } = 4096;
 
-    /// <summary>Most trials for one candidate (including resampled undefined points).</summary>
-    public int MaxTrials { get; init; } = 200;
-
     /// <summary>
     /// Most expression nodes one side of an entry may have once the definitions (<c>let</c> lines) it uses are written out
     /// (the stored side is that text, so it also keeps the stored text well below <see cref="MaxLineLength"/>).
@@ -59,9 +56,6 @@ public sealed record Limits
     /// (<c>stirling1</c>, <c>stirling2</c>, <c>bernoulli</c>, <c>harmonic</c>, …); its value must also fit <see cref="MaxParameterBits"/>.
     /// </summary>
     public int MaxNumberFunctionWork { get; init; } = 2_000_000;
-
-    /// <summary>Largest estimated size, in bits, of an exact rational evaluation used to certify a refutation.</summary>
-    public long MaxCertifyBits { get; init; } = 1 << 22;
 
     /// <summary>N in <c>up to q^N</c>: the highest power of q a truncated power series identity compares.</summary>
     public int MaxSeriesOrder { get; init; } = 10_000;

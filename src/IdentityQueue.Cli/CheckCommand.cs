@@ -20,7 +20,7 @@ public static class CheckCommand
         var target = new Option<int>("--target-bits")
         {
             Description = "Evidence wanted: a false identity survives with probability at most 2^-B.",
-            DefaultValueFactory = _ => 64,
+            DefaultValueFactory = _ => EvidenceTarget.DefaultBits,
         };
         var seed = new Option<ulong?>("--seed") { Description = "Seed for the random primes and points (default: a fresh random seed, printed)." };
         var json = new Option<bool>("--json") { Description = "Print one JSON object instead of text." };
@@ -41,28 +41,30 @@ public static class CheckCommand
         };
         command.SetAction(parse =>
         {
-            var targetBits = parse.GetValue(target);
-            if (targetBits < 1 || targetBits > 4096)
+            var evidence = EvidenceTarget.Create(parse.GetValue(target));
+            if (!evidence.Success)
             {
-                error.WriteLine($"idq check: --target-bits must be between 1 and 4096, got {targetBits}");
+                error.WriteLine($"idq check: {evidence.Error.Message}");
                 return ExitCodes.BadInput;
             }
             var runSeed = RunSeed.Random();
             if (parse.GetValue(seed) is { } given)
             {
-                if (RunSeed.FromUser(given, out var problem) is not { } valid)
+                var valid = RunSeed.FromUser(given);
+                if (!valid.Success)
                 {
-                    error.WriteLine($"idq check: --seed: {problem}");
+                    error.WriteLine($"idq check: --seed: {valid.Error.Message}");
                     return ExitCodes.BadInput;
                 }
-                runSeed = valid;
+                runSeed = valid.Value;
             }
-            if (!TimeBudget.TryCreate(parse.GetValue(time), out var budget, out var budgetProblem))
+            var budget = TimeBudget.Create(parse.GetValue(time));
+            if (!budget.Success)
             {
-                error.WriteLine($"idq check: {budgetProblem}");
+                error.WriteLine($"idq check: {budget.Error.Message}");
                 return ExitCodes.BadInput;
             }
-            var options = new ScreeningOptions { TargetBits = targetBits, Seed = runSeed.Value, Budget = budget };
+            var options = new ScreeningOptions { Target = evidence.Value, Seed = runSeed.Value, Budget = budget.Value };
             DefinitionScope? scope = null;
             if (parse.GetValue(definitions) is { } file)
             {
@@ -159,7 +161,7 @@ public static class CheckCommand
                 result = result with
                 {
                     Verdict = Verdict.Undecided,
-                    Message = $"stopped by a signal after {result.TrialCount} trials, at 2^{result.ErrorBoundLog2 ?? 0:F1} of the target 2^-{options.TargetBits}",
+                    Message = $"stopped by a signal after {result.TrialCount} trials, at 2^{result.ErrorBoundLog2 ?? 0:F1} of the target {options.Target}",
                 };
             outcomes.Add(new InstanceOutcome(parameters, result, null));
         }

@@ -42,7 +42,7 @@ internal static class JsonReport
             w.WriteString("field", entry.Field.ToString());
             if (entry.Label is not null) w.WriteString("label", entry.Label);
             w.WriteString("seed", options.Seed.ToString());
-            w.WriteNumber("targetBits", options.TargetBits);
+            w.WriteNumber("targetBits", options.Target.Bits);
             if (entry.IsFamily)
             {
                 w.WriteStartArray("instances");

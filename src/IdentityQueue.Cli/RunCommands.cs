@@ -2,6 +2,7 @@ using System.CommandLine;
 using System.Diagnostics;
 using IdentityQueue.Algebra;
 using IdentityQueue.Screening;
+using IdentityQueue.Screening.Ports;
 using IdentityQueue.Store;
 using IdentityQueue.Store.Work;
 using IdentityQueue.Worker;
@@ -92,11 +93,17 @@ internal static class RunCommands
         var problems = settings.Validate();
         if (mode != RunMode.EnqueueOnly)
         {
-            if (TimeBudget.TryCreate(parse.GetValue(a.Time), out var budget, out var budgetProblem)) settings = settings with { Budget = budget };
-            else problems = [.. problems, budgetProblem!];
+            var budget = TimeBudget.Create(parse.GetValue(a.Time));
+            if (budget.Success) settings = settings with { Budget = budget.Value };
+            else problems = [.. problems, budget.Error.Message];
         }
-        var target = parse.GetValue(a.Target);
-        if (target is < 1 or > 4096) problems = [.. problems, $"--target-bits must be between 1 and 4096, got {target}"];
+        EvidenceTarget? target = null;
+        if (parse.GetValue(a.Target) is int bits)
+        {
+            var given = EvidenceTarget.Create(bits);
+            if (given.Success) target = given.Value;
+            else problems = [.. problems, given.Error.Message];
+        }
         if (problems.Count > 0)
         {
             foreach (var p in problems) error.WriteLine($"idq: {p}");
@@ -107,10 +114,10 @@ internal static class RunCommands
             using var store = StoreConnection.Open(location);
             store.EnsureCurrent();
             var queue = new WorkQueue(store);
-            if (target is int bits)
+            if (target is { } raised)
             {
-                var reopened = queue.RaiseTarget(bits);
-                if (reopened > 0) output.WriteLine($"target 2^-{bits}: {reopened} survivors get more trials");
+                var reopened = queue.RaiseTarget(raised);
+                if (reopened > 0) output.WriteLine($"target {raised}: {reopened} survivors get more trials");
             }
         }
         catch (StoreUnavailableException e)
@@ -120,14 +127,21 @@ internal static class RunCommands
         }
 
         var interactive = mode == RunMode.ToCompletion && !Console.IsOutputRedirected && ReferenceEquals(output, Console.Out);
-        void AddStore(IServiceCollection services) => services.AddSingleton<IScreeningStore>(provider =>
-            new StoreWorkerBinding(location, settings.Limits, provider.GetRequiredService<ILoggerFactory>().CreateLogger("IdentityQueue.Store")));
-        string? problem = null;
-        using var session = location.IsPostgreSql
-            ? WorkerSession.OpenShared(QueueStorage.Shared(StoreConnection.DataSource(location.Target)), SharedLogPath,
-                settings, longRunning: mode == RunMode.UntilStopped, quiet: mode != RunMode.UntilStopped, AddStore)
-            : WorkerSession.Open(location.Target, settings, longRunning: mode == RunMode.UntilStopped, quiet: mode != RunMode.UntilStopped, AddStore, out problem);
-        if (session is null)
+        // The store's implementation of the worker's ports (retrying while a PostgreSQL server is away), one instance for all four.
+        void AddStore(IServiceCollection services)
+        {
+            services.AddSingleton(provider => StoreWorkPorts.ForWorker(location, settings.Limits,
+                provider.GetRequiredService<ILoggerFactory>().CreateLogger("IdentityQueue.Store"), provider.GetRequiredService<TimeProvider>()));
+            services.AddSingleton<IWorkSource>(provider => provider.GetRequiredService<RetryingWorkPorts>());
+            services.AddSingleton<IOutcomeSink>(provider => provider.GetRequiredService<RetryingWorkPorts>());
+            services.AddSingleton<IWorkerRegistry>(provider => provider.GetRequiredService<RetryingWorkPorts>());
+            services.AddSingleton<IRecovery>(provider => provider.GetRequiredService<RetryingWorkPorts>());
+        }
+        var opened = location.IsPostgreSql
+            ? Result<WorkerSession>.Ok(WorkerSession.OpenShared(QueueStorage.Shared(StoreConnection.DataSource(location.Target)), SharedLogPath,
+                settings, longRunning: mode == RunMode.UntilStopped, quiet: mode != RunMode.UntilStopped, AddStore))
+            : WorkerSession.Open(location.Target, settings, longRunning: mode == RunMode.UntilStopped, quiet: mode != RunMode.UntilStopped, AddStore);
+        if (!opened.Success)
         {
             if (mode == RunMode.EnqueueOnly)
             {
@@ -137,9 +151,10 @@ internal static class RunCommands
                 output.WriteLine($"a worker is running on {path}; it will screen the pending candidates ({added} new rows made pending)");
                 return ExitCodes.Success;
             }
-            error.WriteLine($"idq: {problem}");
+            error.WriteLine($"idq: {opened.Error.Message}");
             return ExitCodes.BadInput;
         }
+        using var session = opened.Value;
         switch (mode)
         {
             case RunMode.EnqueueOnly:

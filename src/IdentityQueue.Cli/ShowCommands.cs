@@ -178,7 +178,7 @@ internal static class ShowCommands
         if (!compiled.Success) return $"it does not compile: {compiled.Error}";
         if (witness is null)
             // An identity without variables is refuted by exact evaluation, with no trial: evaluate it again.
-            return ExactDecision.TryDecide(compiled.Value!, Algebra.Limits.Default) is { Verdict: Verdict.Refuted } ? null
+            return ExactDecision.TryDecide(compiled.Value!, ScreeningPolicy.Default) is { Verdict: Verdict.Refuted } ? null
                 : "no refutation witness is stored";
         var again = WitnessChecker.Recheck(compiled.Value!, witness.Field, witness.Point);
         if (!again.Refutes) return "the witness no longer refutes it: lhs - rhs is zero or undefined there";

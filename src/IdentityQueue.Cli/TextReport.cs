@@ -26,7 +26,7 @@ internal static class TextReport
             }
         }
         o.WriteLine();
-        o.WriteLine($"seed {options.Seed}, target 2^-{options.TargetBits} (rerun with --seed {options.Seed} to reproduce)");
+        o.WriteLine($"seed {options.Seed}, target {options.Target} (rerun with --seed {options.Seed} to reproduce)");
     }
 
     private static void WriteOne(TextWriter o, IdentityEntry entry, InstanceOutcome x)

@@ -25,17 +25,17 @@ public static class ExactDecision
 
     /// <summary>
     /// The verdict of a constant identity, or null when the identity has variables or its exact evaluation would exceed
-    /// <see cref="Limits.MaxCertifyBits"/> (then it is screened like any other). Survived and refuted verdicts carry no
+    /// <see cref="ScreeningPolicy.MaxCertifyBits"/> (then it is screened like any other). Survived and refuted verdicts carry no
     /// trials and no error bound; <see cref="ScreenResult.Certified"/> is true and the message gives the values.
     /// </summary>
-    public static ScreenResult? TryDecide(CompiledIdentity identity, Limits limits)
+    public static ScreenResult? TryDecide(CompiledIdentity identity, ScreeningPolicy policy)
     {
         var program = identity.Program;
-        if (identity.Field.IsSeries && program.Variables.All(v => v == identity.Field.SeriesVariable)) return DecideSeries(identity, limits);
+        if (identity.Field.IsSeries && program.Variables.All(v => v == identity.Field.SeriesVariable)) return DecideSeries(identity, policy);
         if (program.Variables.Length != 0) return null;
         if (identity.Field.IsRationals)
         {
-            if (BoundAnalysis.ExactEvaluationBits(program, 1, limits.MaxCertifyBits) > limits.MaxCertifyBits) return null;
+            if (BoundAnalysis.ExactEvaluationBits(program, 1, policy.MaxCertifyBits) > policy.MaxCertifyBits) return null;
             return Decide<RationalField, Rational>(identity, default, v => v.ToString());
         }
         var field = BigPrimeField.Create(identity.Field.Characteristic);
@@ -76,7 +76,7 @@ public static class ExactDecision
     public const string SeriesPrefix = "decided exactly (no variable but the series variable)";
 
     /// <summary>A power series identity whose only variable is q: its coefficients up to q^N computed exactly (over Q, or in GF(p)).</summary>
-    private static ScreenResult? DecideSeries(CompiledIdentity identity, Limits limits)
+    private static ScreenResult? DecideSeries(CompiledIdentity identity, ScreeningPolicy policy)
     {
         var program = identity.Program;
         if (identity.Field.IsRationals)
@@ -85,7 +85,7 @@ public static class ExactDecision
             // those of an exact evaluation at q = 1 at most (coefficients of a truncation of a series with integer-bounded terms).
             var n = (double)identity.Field.SeriesOrder + 1;
             if (program.Length * n * n > MaxSeriesOperations
-                || BoundAnalysis.ExactEvaluationBits(program, 0, limits.MaxCertifyBits) > limits.MaxCertifyBits) return null;
+                || BoundAnalysis.ExactEvaluationBits(program, 0, policy.MaxCertifyBits) > policy.MaxCertifyBits) return null;
             return SeriesVerdict(identity, SeriesTrial.Evaluate<RationalField, Rational>(default, identity, new Rational[program.Variables.Length]));
         }
         var field = BigPrimeField.Create(identity.Field.Characteristic);

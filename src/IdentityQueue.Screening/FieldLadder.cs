@@ -19,7 +19,7 @@ public sealed record Rung(int PrimeBits, int ExtensionDegree, double SizeLog2)
 /// <summary>
 /// The ladder of field sizes: about 31, 62 and 127 bits (the fast rungs), then 256, 512, … up to
 /// <see cref="Algebra.Limits.MaxFieldBits"/>. A candidate starts at the cheapest rung where one trial buys at least
-/// <see cref="ScreeningOptions.MinBitsPerTrial"/> bits and moves up one rung once a rung has given a zero trial, staying at
+/// <see cref="ScreeningPolicy.MinBitsPerTrial"/> bits and moves up one rung once a rung has given a zero trial, staying at
 /// the 127-bit rung (or its start, if higher) from then on. Over Q, the 31- and 62-bit rungs run their trials as one block
 /// (<see cref="BlockTrialRunner"/>): as many independent trials as reach the target if all vanish. Stateless.
 /// </summary>

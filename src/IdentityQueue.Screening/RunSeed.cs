@@ -1,5 +1,6 @@
 using System.Globalization;
 using System.Security.Cryptography;
+using IdentityQueue.Algebra;
 
 namespace IdentityQueue.Screening;
 
@@ -21,20 +22,15 @@ public readonly record struct RunSeed
     public static RunSeed FromStored(long value) =>
         value >= 0 ? new RunSeed((ulong)value) : throw new ArgumentOutOfRangeException(nameof(value), value, "a run seed is not negative");
 
-    /// <summary>A seed given by a user: null and a message when it is out of range.</summary>
-    public static RunSeed? FromUser(ulong value, out string? error)
-    {
-        error = value <= Max ? null : $"the seed must be between 0 and 2^63 - 1 ({Max}), got {value}";
-        return error is null ? new RunSeed(value) : null;
-    }
+    /// <summary>A seed given by a user, or why it is out of range.</summary>
+    public static Result<RunSeed> FromUser(ulong value) =>
+        value <= Max ? Result<RunSeed>.Ok(new RunSeed(value))
+            : Result<RunSeed>.Fail($"the seed must be between 0 and 2^63 - 1 ({Max}), got {value}");
 
-    /// <summary>Reads a seed written in decimal; null and a message when the text is not a seed.</summary>
-    public static RunSeed? Parse(string text, out string? error)
-    {
-        if (ulong.TryParse(text, NumberStyles.None, CultureInfo.InvariantCulture, out var value)) return FromUser(value, out error);
-        error = $"the seed must be a whole number between 0 and 2^63 - 1, got '{text}'";
-        return null;
-    }
+    /// <summary>Reads a seed written in decimal, or says why the text is not a seed.</summary>
+    public static Result<RunSeed> Parse(string text) =>
+        ulong.TryParse(text, NumberStyles.None, CultureInfo.InvariantCulture, out var value) ? FromUser(value)
+            : Result<RunSeed>.Fail($"the seed must be a whole number between 0 and 2^63 - 1, got '{text}'");
 
     /// <summary>A fresh seed, uniform on [0, 2^63), from the operating system's generator.</summary>
     public static RunSeed Random() => new(BitConverter.ToUInt64(RandomNumberGenerator.GetBytes(8)) >> 1);

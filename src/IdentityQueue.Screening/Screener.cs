@@ -6,7 +6,7 @@ namespace IdentityQueue.Screening;
 
 /// <summary>
 /// The screening policy (SPEC §5): trials on the escalation ladder until the accumulated error bound reaches
-/// 2^-TargetBits (survived), a trial is nonzero (refuted), or a budget runs out (undecided, with the reason).
+/// the evidence target (survived), a trial is nonzero (refuted), or a budget runs out (undecided, with the reason).
 /// Earlier trials of the same candidate count as evidence and are not redone, so a run with a higher target only adds
 /// trials. Stateless; thread-safe.
 /// </summary>
@@ -32,7 +32,7 @@ public static class Screener
         if (UndefinedConstant(identity) is { } constant)
             return new ScreenResult(Verdict.Invalid, bounds.Degree, bounds.HeightLog2, null, trials, null, false,
                 $"the constant {constant} is not defined in {identity.Field}: its denominator is divisible by {identity.Field.Characteristic}");
-        if (ExactDecision.TryDecide(identity, options.Limits) is { } exact) return exact;
+        if (ExactDecision.TryDecide(identity, options.Policy) is { } exact) return exact;
         var accumulated = 0.0;
         var consecutiveUndefined = 0;
         var climbed = new HashSet<int>(); // the rungs with a zero trial: the ladder's position
@@ -54,20 +54,20 @@ public static class Screener
         var seq = trials.Count == 0 ? 1 : trials[^1].Seq + 1;
         var newStages = 0; // blocks of trials on one rung that gave at least one zero trial
         BlockProgram? block = null; // prepared once, shared by every block of trials of this candidate
-        while (accumulated > -options.TargetBits)
+        while (!options.Target.IsMetBy(accumulated))
         {
             if (newStages == options.MaxNewStages)
                 return new ScreenResult(Verdict.Pending, bounds.Degree, bounds.HeightLog2, accumulated, trials, null, false, null);
-            var rung = FieldLadder.Choose(identity, rungs, climbed.Count, options.MinBitsPerTrial);
+            var rung = FieldLadder.Choose(identity, rungs, climbed.Count, options.Policy.MinBitsPerTrial);
             if (rung is null)
                 return Undecided(identity, trials, accumulated,
-                    $"the degree bound {bounds.Degree} is too large: a trial in the largest field allowed (MaxFieldBits = {options.Limits.MaxFieldBits}) buys only {FieldLadder.BestBits(identity, rungs):F1} bits, fewer than {options.MinBitsPerTrial}");
-            if (trials.Count >= options.Limits.MaxTrials)
-                return Undecided(identity, trials, accumulated, $"the trial budget (MaxTrials = {options.Limits.MaxTrials}) ran out at 2^{accumulated:F1} of the target 2^-{options.TargetBits}");
+                    $"the degree bound {bounds.Degree} is too large: a trial in the largest field allowed (MaxFieldBits = {options.Limits.MaxFieldBits}) buys only {FieldLadder.BestBits(identity, rungs):F1} bits, fewer than {options.Policy.MinBitsPerTrial}");
+            if (trials.Count >= options.Policy.MaxTrials)
+                return Undecided(identity, trials, accumulated, $"the trial budget (MaxTrials = {options.Policy.MaxTrials}) ran out at 2^{accumulated:F1} of the target {options.Target}");
             if (cancellation.IsCancellationRequested) return Stopped(identity, trials, accumulated);
             var left = budget - options.Clock.GetElapsedTime(started);
             if (left <= TimeSpan.Zero)
-                return Undecided(identity, trials, accumulated, $"the time budget (TimePerCandidate = {options.Budget}) ran out at 2^{accumulated:F1} of the target 2^-{options.TargetBits}");
+                return Undecided(identity, trials, accumulated, $"the time budget (TimePerCandidate = {options.Budget}) ran out at 2^{accumulated:F1} of the target {options.Target}");
             var blocked = BlockTrialRunner.Handles(identity, rung);
             var perTrial = options.Costs.TrialTime(identity, rung, cost);
             var oneTrial = blocked ? perTrial * BlockTrialRunner.PaddedLanes(rung, 1) : perTrial;
@@ -93,7 +93,7 @@ public static class Screener
                 if (cancellation.IsCancellationRequested) return Stopped(identity, trials, accumulated);
                 return Undecided(identity, trials, accumulated,
                     $"the time budget (TimePerCandidate = {options.Budget}) ran out during a trial on the {rung} rung (estimated at {Seconds(oneTrial)}) " +
-                    $"at 2^{accumulated:F1} of the target 2^-{options.TargetBits}; the {trials.Count} trials done are kept");
+                    $"at 2^{accumulated:F1} of the target {options.Target}; the {trials.Count} trials done are kept");
             }
             var stageZero = false;
             foreach (var trial in stage)
@@ -105,7 +105,7 @@ public static class Screener
                     case TrialOutcome.Nonzero:
                         return Refuted(identity, options, trials, trial, token);
                     case TrialOutcome.Undefined:
-                        if (++consecutiveUndefined >= options.MaxConsecutiveUndefined)
+                        if (++consecutiveUndefined >= options.Policy.MaxConsecutiveUndefined)
                             return Undecided(identity, trials, accumulated,
                                 $"lhs − rhs was undefined (a denominator vanished) at {consecutiveUndefined} random points in a row: a denominator may be identically zero");
                         break;
@@ -116,7 +116,7 @@ public static class Screener
                         climbed.Add(rung.Key);
                         break;
                 }
-                if (accumulated <= -options.TargetBits) break;
+                if (options.Target.IsMetBy(accumulated)) break;
             }
             if (stageZero) newStages++;
         }
@@ -130,7 +130,7 @@ public static class Screener
     public static TrialEstimate Estimate(CompiledIdentity identity, ScreeningOptions options)
     {
         var cost = TrialCost.Of(identity.Program, OddCharacteristic(identity));
-        var rung = FieldLadder.Choose(identity, FieldLadder.Rungs(identity.Field, options.Limits.MaxFieldBits), 0, options.MinBitsPerTrial);
+        var rung = FieldLadder.Choose(identity, FieldLadder.Rungs(identity.Field, options.Limits.MaxFieldBits), 0, options.Policy.MinBitsPerTrial);
         if (rung is null) return new TrialEstimate(cost, null, TimeSpan.Zero, null);
         var perTrial = options.Costs.TrialTime(identity, rung, cost);
         var oneTrial = BlockTrialRunner.Handles(identity, rung) ? perTrial * BlockTrialRunner.PaddedLanes(rung, 1) : perTrial;
@@ -166,9 +166,9 @@ public static class Screener
     private static int StageLanes(CompiledIdentity identity, Rung rung, ScreeningOptions options, double accumulated, int trialCount)
     {
         var bits = -(Evidence.TrialBoundLog2(identity.Bounds, rung.SizeLog2, rung.PrimeBits) ?? -1);
-        var needed = Math.Ceiling((options.TargetBits + accumulated) / bits - 1e-9);
+        var needed = Math.Ceiling((accumulated - options.Target.BoundLog2) / bits - 1e-9);
         var lanes = (int)Math.Clamp(needed, 1, BlockTrialRunner.MaxLanes(rung));
-        return Math.Max(1, Math.Min(lanes, options.Limits.MaxTrials - trialCount));
+        return Math.Max(1, Math.Min(lanes, options.Policy.MaxTrials - trialCount));
     }
 
     /// <summary>In characteristic p, a rational constant whose denominator p divides (1/7 over GF(7), or binom(x, 7)'s 1/7!).</summary>
@@ -202,7 +202,7 @@ public static class Screener
         if (identity.Program.IsCondition(witness.Entry))
             return new ScreenResult(Verdict.Invalid, identity.Bounds.Degree, identity.Bounds.HeightLog2, null, trials, witness, false,
                 ConditionMessage(witness));
-        var certified = options.Certify && WitnessChecker.Certify(identity, witness, options.Limits, cancellation);
+        var certified = options.Certify && WitnessChecker.Certify(identity, witness, options.Policy, cancellation);
         return new ScreenResult(Verdict.Refuted, identity.Bounds.Degree, identity.Bounds.HeightLog2, null, trials, witness, certified, null);
     }
 }

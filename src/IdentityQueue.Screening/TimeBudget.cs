@@ -1,8 +1,10 @@
+using IdentityQueue.Algebra;
+
 namespace IdentityQueue.Screening;
 
 /// <summary>
 /// The time one candidate's screening may take (<c>TimePerCandidate</c>; default 60 s; <c>--time-per-candidate SECONDS</c>
-/// on <c>check</c>, <c>run</c> and <c>worker</c>). Validated once, where it enters (<see cref="TryCreate"/>); a trial that
+/// on <c>check</c>, <c>run</c> and <c>worker</c>). Validated once, where it enters (<see cref="Create"/>); a trial that
 /// would not fit is not started, and a trial running when it runs out is cancelled inside its kernels. Immutable.
 /// </summary>
 public readonly record struct TimeBudget
@@ -24,18 +26,10 @@ public readonly record struct TimeBudget
     public TimeSpan PerCandidate => _perCandidate == TimeSpan.Zero ? Default._perCandidate : _perCandidate;
 
     /// <summary>A budget of <paramref name="seconds"/> per candidate, or the problem with it (for the option's error message).</summary>
-    public static bool TryCreate(double seconds, out TimeBudget budget, out string? problem)
-    {
-        budget = Default;
-        if (double.IsNaN(seconds) || seconds < Min.TotalSeconds || seconds > Max.TotalSeconds)
-        {
-            problem = $"--time-per-candidate must be between {Min.TotalSeconds} and {Max.TotalSeconds:F0} seconds, got {seconds}";
-            return false;
-        }
-        budget = new TimeBudget(TimeSpan.FromSeconds(seconds));
-        problem = null;
-        return true;
-    }
+    public static Result<TimeBudget> Create(double seconds) =>
+        double.IsNaN(seconds) || seconds < Min.TotalSeconds || seconds > Max.TotalSeconds
+            ? Result<TimeBudget>.Fail($"--time-per-candidate must be between {Min.TotalSeconds} and {Max.TotalSeconds:F0} seconds, got {seconds}")
+            : Result<TimeBudget>.Ok(new TimeBudget(TimeSpan.FromSeconds(seconds)));
 
     /// <summary>The budget as the messages name it: "60 s".</summary>
     public override string ToString() => $"{PerCandidate.TotalSeconds:0.###} s";

@@ -48,11 +48,11 @@ public static class WitnessChecker
 
     /// <summary>
     /// Confirms a refutation exactly. Over Q: lhs − rhs evaluated with exact rationals at the witness point (its residues
-    /// read as integers) is nonzero, when the estimated size of that evaluation fits <see cref="Limits.MaxCertifyBits"/>.
+    /// read as integers) is nonzero, when the estimated size of that evaluation fits <see cref="ScreeningPolicy.MaxCertifyBits"/>.
     /// In characteristic p the field arithmetic is already exact; the witness is confirmed by the independent re-check.
     /// </summary>
     /// <param name="cancellation">Observed inside the exact evaluation; a cancelled certification leaves the refutation uncertified (false).</param>
-    public static bool Certify(CompiledIdentity identity, TrialRecord witness, Limits limits, CancellationToken cancellation = default)
+    public static bool Certify(CompiledIdentity identity, TrialRecord witness, ScreeningPolicy policy, CancellationToken cancellation = default)
     {
         if (!identity.Field.IsRationals)
             return Recheck(identity, witness.Field, witness.Point).Refutes;
@@ -63,12 +63,12 @@ public static class WitnessChecker
             var given = witness.Point.ToDictionary(v => v.Name, v => v.Coordinates[0], StringComparer.Ordinal);
             for (var i = 0; i < exact.Length; i++)
                 exact[i] = identity.Program.Variables[i] == identity.Field.SeriesVariable ? Rational.Zero : given[identity.Program.Variables[i]];
-            if (BoundAnalysis.ExactEvaluationBits(identity.Program, given.Count == 0 ? 1 : given.Values.Max(v => (double)v.GetBitLength()), limits.MaxCertifyBits) * (identity.Field.SeriesOrder + 1) > limits.MaxCertifyBits) return false;
+            if (BoundAnalysis.ExactEvaluationBits(identity.Program, given.Count == 0 ? 1 : given.Values.Max(v => (double)v.GetBitLength()), policy.MaxCertifyBits) * (identity.Field.SeriesOrder + 1) > policy.MaxCertifyBits) return false;
             return SeriesTrial.Evaluate<RationalField, Rational>(default, identity, exact).Refutes;
         }
         var program = identity.Program;
         var coordinateBits = witness.Point.Count == 0 ? 1 : witness.Point.Max(v => (double)v.Coordinates[0].GetBitLength());
-        if (BoundAnalysis.ExactEvaluationBits(program, coordinateBits, limits.MaxCertifyBits) > limits.MaxCertifyBits) return false;
+        if (BoundAnalysis.ExactEvaluationBits(program, coordinateBits, policy.MaxCertifyBits) > policy.MaxCertifyBits) return false;
         var field = default(RationalField);
         var values = new Rational[program.Variables.Length];
         var byName = witness.Point.ToDictionary(v => v.Name, v => v.Coordinates[0], StringComparer.Ordinal);

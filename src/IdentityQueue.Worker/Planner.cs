@@ -1,13 +1,16 @@
 using Hangfire;
+using IdentityQueue.Screening;
+using IdentityQueue.Screening.Ports;
 using Microsoft.Extensions.Logging;
 
 namespace IdentityQueue.Worker;
 
 /// <summary>
-/// Keeps the queue fed: takes pending candidates of the earliest stage from the store and enqueues them in chunks, so
-/// that every candidate's cheap first trial runs before survivors move on to larger fields. Thread-safe through the store.
+/// Keeps the queue fed: takes pending candidates of the earliest stage (<see cref="ScreeningPolicy.Stages"/>) from the work
+/// source and enqueues them in chunks, so that every candidate's cheap first trial runs before survivors move on to larger
+/// fields. Thread-safe through the work source.
 /// </summary>
-public sealed class Planner(IScreeningStore store, IBackgroundJobClient jobs, WorkerSettings settings, HostPlan plan, ILogger<Planner> log)
+public sealed class Planner(IWorkSource store, IWorkerRegistry registry, IBackgroundJobClient jobs, WorkerSettings settings, HostPlan plan, ILogger<Planner> log)
 {
     private readonly bool _shared = plan.Queue.IsShared;
 
@@ -21,7 +24,7 @@ public sealed class Planner(IScreeningStore store, IBackgroundJobClient jobs, Wo
         var counts = store.Counts();
         if (counts.Pending == 0 && counts.InFlight == 0 && store.EnsureResultRows() > 0) counts = store.Counts();
         // On a shared store every live worker process counts: the queue is theirs together.
-        var threads = _shared ? Math.Max(settings.Workers, store.LiveThreads(settings.DeadAfter)) : settings.Workers;
+        var threads = _shared ? Math.Max(settings.Workers, registry.LiveThreads(settings.DeadAfter)) : settings.Workers;
         var room = all ? long.MaxValue : (long)threads * 3 * settings.ChunkSize - counts.InFlight;
         if (room < settings.ChunkSize || counts.Pending == 0) return 0;
         // Checkpoint, shared store: the jobs are enqueued inside TakePending, before the candidates are committed as queued;
@@ -29,22 +32,23 @@ public sealed class Planner(IScreeningStore store, IBackgroundJobClient jobs, Wo
         // queued with no job. A store of one process (SQLite) enqueues after the commit instead, so that its single writer
         // is not held while the jobs are written; dying in between leaves them queued, and start-up recovery returns them.
         var enqueued = 0;
-        PlannedWork work = new(1, []);
-        void Enqueue(int stage, IReadOnlyList<long> ids)
+        var work = PlannedWork.None;
+        void Enqueue(WorkStage stage, IReadOnlyList<long> ids)
         {
+            var number = stage.Number;
             foreach (var chunk in ids.Chunk(settings.ChunkSize))
             {
-                jobs.Enqueue<ScreeningJob>(j => j.Run(stage, chunk, CancellationToken.None));
+                jobs.Enqueue<ScreeningJob>(j => j.Run(number, chunk, CancellationToken.None));
                 enqueued += chunk.Length;
             }
         }
         try
         {
             var max = (int)Math.Min(room, int.MaxValue);
-            if (_shared) work = store.TakePending(max, Enqueue);
+            if (_shared) work = store.TakePending(settings.Policy.Stages, max, Enqueue);
             else
             {
-                work = store.TakePending(max);
+                work = store.TakePending(settings.Policy.Stages, max);
                 Enqueue(work.Stage, work.Ids);
             }
         }
@@ -53,10 +57,10 @@ public sealed class Planner(IScreeningStore store, IBackgroundJobClient jobs, Wo
             // The queue or the store is away (a database restart): what has no job yet goes back to pending (on a shared
             // store the rollback did that already), so that nothing is left queued with no job to screen it.
             log.LogWarning("enqueuing failed ({Problem}); the candidates without a job stay pending ({Count} had their job made)", e.Message, enqueued);
-            if (!_shared && work.Ids.Count > enqueued) store.Release(work.Ids.Skip(enqueued).ToList());
+            if (!_shared && work.Ids.Length > enqueued) store.Release(work.Ids.Skip(enqueued).ToList());
             throw;
         }
-        if (work.Ids.Count > 0) log.LogInformation("enqueued {Count} candidates for stage {Stage}", work.Ids.Count, work.Stage);
-        return work.Ids.Count;
+        if (work.Ids.Length > 0) log.LogInformation("enqueued {Count} candidates for stage {Stage}", work.Ids.Length, work.Stage.Number);
+        return work.Ids.Length;
     }
 }

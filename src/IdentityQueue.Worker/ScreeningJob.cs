@@ -1,7 +1,7 @@
 using System.ComponentModel;
-using System.Diagnostics;
 using Hangfire;
 using IdentityQueue.Screening;
+using IdentityQueue.Screening.Ports;
 using Microsoft.Extensions.Logging;
 
 namespace IdentityQueue.Worker;
@@ -13,7 +13,8 @@ namespace IdentityQueue.Worker;
 /// are saved as they are reached (at least every <see cref="WorkerSettings.SaveEvery"/>), candidates estimated slow are
 /// screened after the rest of the chunk, and a stop (the job's token) cancels the running trial, saves and releases.
 /// </summary>
-public sealed class ScreeningJob(IScreeningStore store, WorkerSettings settings, WorkerStats stats, CandidateCompiler compiler, ILogger<ScreeningJob> log)
+public sealed class ScreeningJob(IWorkSource source, IOutcomeSink sink, WorkerSettings settings, WorkerStats stats, CandidateCompiler compiler,
+    TimeProvider clock, ILogger<ScreeningJob> log)
 {
     /// <summary>Outcomes written per transaction.</summary>
     public const int SaveBatch = 250;
@@ -22,15 +23,17 @@ public sealed class ScreeningJob(IScreeningStore store, WorkerSettings settings,
     [DisplayName("screen {1} (stage {0})")]
     public void Run(int stage, long[] candidateIds, CancellationToken cancellation)
     {
+        // The job carries the stage's number (queued jobs are stored); the policy says what the stage is.
+        var workStage = settings.Policy.Stage(stage);
         // Checkpoint: dying before the claim leaves the candidates queued; start-up recovery returns them to pending.
-        var claimed = store.Claim(candidateIds, settings.WorkerName);
+        var claimed = source.Claim(candidateIds, settings.WorkerName);
         var outcomes = new List<CandidateOutcome>(SaveBatch);
-        var lastSave = Stopwatch.GetTimestamp();
+        var lastSave = clock.GetTimestamp();
         void Flush()
         {
-            if (outcomes.Count > 0) store.Save(outcomes, settings.WorkerName);
+            if (outcomes.Count > 0) sink.Save(outcomes, settings.WorkerName);
             outcomes.Clear();
-            lastSave = Stopwatch.GetTimestamp();
+            lastSave = clock.GetTimestamp();
         }
         // Candidates whose first trial alone is estimated longer than SlowCandidate wait until the rest of the chunk is
         // screened and saved, so that one slow candidate never holds up the others.
@@ -42,7 +45,7 @@ public sealed class ScreeningJob(IScreeningStore store, WorkerSettings settings,
                 Stop(outcomes, claimed.Skip(i).Select(c => c.Id).Concat(slow.Select(p => p.Work.Id)).ToList(), stage);
                 return;
             }
-            var prepared = Prepare(claimed[i], stage);
+            var prepared = Prepare(claimed[i], workStage);
             if (prepared.Outcome is { } settled) outcomes.Add(settled);
             else if (prepared.Estimate > settings.SlowCandidate)
             {
@@ -52,7 +55,7 @@ public sealed class ScreeningJob(IScreeningStore store, WorkerSettings settings,
             else outcomes.Add(Screen(prepared, cancellation));
             // Checkpoint: dying here loses only the unsaved outcomes (at most SaveEvery's worth); their candidates stay claimed,
             // are returned to pending at the next start, and are screened again with the same seeds, giving the same trials.
-            if (outcomes.Count >= SaveBatch || Stopwatch.GetElapsedTime(lastSave) >= settings.SaveEvery) Flush();
+            if (outcomes.Count >= SaveBatch || clock.GetElapsedTime(lastSave) >= settings.SaveEvery) Flush();
         }
         Flush();
         for (var k = 0; k < slow.Count; k++)
@@ -88,9 +91,9 @@ public sealed class ScreeningJob(IScreeningStore store, WorkerSettings settings,
     /// <summary>A graceful stop: what is screened is saved (a candidate stopped mid-screen with its finished trials, as pending), the rest goes back to pending.</summary>
     private void Stop(List<CandidateOutcome> outcomes, List<long> unscreened, int stage)
     {
-        store.Save(outcomes, settings.WorkerName);
+        sink.Save(outcomes, settings.WorkerName);
         outcomes.Clear();
-        store.Release(unscreened);
+        source.Release(unscreened);
         log.LogInformation("stopping: released {Count} candidates of a stage-{Stage} chunk", unscreened.Count, stage);
     }
 
@@ -98,28 +101,31 @@ public sealed class ScreeningJob(IScreeningStore store, WorkerSettings settings,
     internal sealed record Prepared(CandidateWork Work, CandidateOutcome? Outcome, Algebra.Compile.CompiledIdentity? Identity, ScreeningOptions? Options, TimeSpan Estimate);
 
     /// <summary>Compiles one candidate and estimates its first trial; a deterministic failure of this candidate is its outcome, never the chunk's.</summary>
-    internal Prepared Prepare(CandidateWork work, int stage)
+    internal Prepared Prepare(CandidateWork work, WorkStage stage)
     {
-        if (work.Problem is not null) return new Prepared(work, new CandidateOutcome(work.Id, null, work.Problem, null), null, null, TimeSpan.Zero);
+        if (work.Problem is not null) return new Prepared(work, CandidateOutcome.Invalid(work.Id, work.Problem), null, null, TimeSpan.Zero);
         try
         {
             var compiled = compiler.Compile(work.Entry!, work.Parameters);
-            if (!compiled.Success) return new Prepared(work, new CandidateOutcome(work.Id, null, StoredMessage(work.Entry!, compiled.Error!), null), null, null, TimeSpan.Zero);
+            if (!compiled.Success) return new Prepared(work, CandidateOutcome.Invalid(work.Id, StoredMessage(work.Entry!, compiled.Error)), null, null, TimeSpan.Zero);
             var options = new ScreeningOptions
             {
                 Seed = work.Seed,
-                TargetBits = work.TargetBits,
+                Target = work.Target,
                 Limits = settings.Limits,
+                Policy = settings.Policy,
                 Budget = settings.Budget,
-                MaxNewStages = settings.TwoPass && stage == 1 ? 1 : null,
+                Clock = clock,
+                Costs = settings.Costs,
+                MaxNewStages = settings.Policy.NewStagesFor(stage, settings.TwoPass),
             };
-            var estimate = work.Trials.Count == 0 ? Screener.Estimate(compiled.Value!, options).OneTrial : TimeSpan.Zero;
-            return new Prepared(work, null, compiled.Value!, options, estimate);
+            var estimate = work.Trials.Count == 0 ? Screener.Estimate(compiled.Value, options).OneTrial : TimeSpan.Zero;
+            return new Prepared(work, null, compiled.Value, options, estimate);
         }
         catch (Exception e) when (e is not OutOfMemoryException and not OperationCanceledException)
         {
             log.LogWarning(e, "candidate {Id} failed", work.Id);
-            return new Prepared(work, new CandidateOutcome(work.Id, null, null, $"{e.GetType().Name}: {e.Message}"), null, null, TimeSpan.Zero);
+            return new Prepared(work, CandidateOutcome.Failed(work.Id, $"{e.GetType().Name}: {e.Message}"), null, null, TimeSpan.Zero);
         }
     }
 
@@ -130,12 +136,12 @@ public sealed class ScreeningJob(IScreeningStore store, WorkerSettings settings,
         stats.Begin(work.Id, work.Label);
         try
         {
-            return new CandidateOutcome(work.Id, Screener.Screen(prepared.Identity!, prepared.Options!, work.Key, work.Trials, cancellation), null, null);
+            return CandidateOutcome.Screened(work.Id, Screener.Screen(prepared.Identity!, prepared.Options!, work.Key, work.Trials, cancellation));
         }
         catch (Exception e) when (e is not OutOfMemoryException and not OperationCanceledException)
         {
             log.LogWarning(e, "candidate {Id} failed", work.Id);
-            return new CandidateOutcome(work.Id, null, null, $"{e.GetType().Name}: {e.Message}");
+            return CandidateOutcome.Failed(work.Id, $"{e.GetType().Name}: {e.Message}");
         }
         finally
         {

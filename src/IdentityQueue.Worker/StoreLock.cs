@@ -1,3 +1,5 @@
+using IdentityQueue.Algebra;
+
 namespace IdentityQueue.Worker;
 
 /// <summary>
@@ -13,8 +15,8 @@ public sealed class StoreLock : IDisposable
 
     public static string PathFor(string storePath) => storePath + ".worker-lock";
 
-    /// <summary>The lock, or null with the reason when another process holds it.</summary>
-    public static StoreLock? TryAcquire(string storePath, out string? problem)
+    /// <summary>The lock, or the reason when another process holds it.</summary>
+    public static Result<StoreLock> TryAcquire(string storePath)
     {
         var path = PathFor(storePath);
         try
@@ -23,16 +25,14 @@ public sealed class StoreLock : IDisposable
             stream.SetLength(0);
             using (var w = new StreamWriter(stream, leaveOpen: true)) w.Write($"{Environment.MachineName}:{Environment.ProcessId}");
             stream.Flush();
-            problem = null;
-            return new StoreLock(stream);
+            return Result<StoreLock>.Ok(new StoreLock(stream));
         }
         catch (IOException)
         {
             var holder = "";
             try { holder = File.ReadAllText(path); } catch (IOException) { }
-            problem = $"another worker ({(holder.Length > 0 ? holder : "unknown process")}) is already screening the store {storePath}; " +
-                "a SQLite store takes one worker process (use --workers N for more threads, or PostgreSQL for several processes)";
-            return null;
+            return Result<StoreLock>.Fail($"another worker ({(holder.Length > 0 ? holder : "unknown process")}) is already screening the store {storePath}; " +
+                "a SQLite store takes one worker process (use --workers N for more threads, or PostgreSQL for several processes)");
         }
     }
 

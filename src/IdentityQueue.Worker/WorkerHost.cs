@@ -1,6 +1,7 @@
 using Hangfire;
 using Hangfire.PostgreSql;
 using Hangfire.Storage.SQLite;
+using IdentityQueue.Screening.Ports;
 using Microsoft.Extensions.Configuration;
 using Microsoft.Extensions.DependencyInjection;
 using Microsoft.Extensions.Hosting;
@@ -35,6 +36,10 @@ public sealed record HostPlan(QueueStorage Queue, string LogPath, LogEventLevel 
 /// </summary>
 public static class WorkerHost
 {
+    /// <param name="addStore">
+    /// Registers the store's implementations of the ports (<see cref="IWorkSource"/>, <see cref="IOutcomeSink"/>,
+    /// <see cref="IWorkerRegistry"/>, <see cref="IRecovery"/>); the command line wires them.
+    /// </param>
     public static IHost Build(WorkerSettings settings, HostPlan plan, Action<IServiceCollection> addStore)
     {
         var builder = Host.CreateApplicationBuilder(new HostApplicationBuilderSettings
@@ -72,7 +77,8 @@ public static class WorkerHost
         });
         builder.Services.AddSingleton(settings);
         builder.Services.AddSingleton(plan);
-        builder.Services.AddSingleton<WorkerStats>();
+        builder.Services.AddSingleton(TimeProvider.System);
+        builder.Services.AddSingleton(provider => new WorkerStats(provider.GetRequiredService<TimeProvider>()));
         builder.Services.AddSingleton(new IdentityQueue.Screening.CandidateCompiler(settings.Limits));
         builder.Services.AddTransient<ScreeningJob>();
         builder.Services.AddSingleton<Planner>();
@@ -129,7 +135,7 @@ public static class WorkerHost
 }
 
 /// <summary>The planner loop of a long-running worker, plus a progress line in the log now and then.</summary>
-internal sealed class PlannerService(Planner planner, IScreeningStore store, WorkerSettings settings, Microsoft.Extensions.Logging.ILogger<PlannerService> log)
+internal sealed class PlannerService(Planner planner, IWorkSource store, WorkerSettings settings, Microsoft.Extensions.Logging.ILogger<PlannerService> log)
     : BackgroundService
 {
     protected override async Task ExecuteAsync(CancellationToken stoppingToken)
@@ -164,12 +170,12 @@ internal sealed class PlannerService(Planner planner, IScreeningStore store, Wor
 /// workers' claims to pending now and then; signs the worker off when the host stops. A store that is away for a while
 /// is logged and retried at the next beat.
 /// </summary>
-internal sealed class HeartbeatService(IScreeningStore store, WorkerSettings settings, WorkerStats stats, HostPlan plan,
+internal sealed class HeartbeatService(IWorkerRegistry registry, IRecovery recovery, WorkerSettings settings, WorkerStats stats, HostPlan plan,
     Microsoft.Extensions.Logging.ILogger<HeartbeatService> log) : BackgroundService
 {
     public override Task StartAsync(CancellationToken cancellationToken)
     {
-        store.RegisterWorker(settings.WorkerName, settings.Workers);
+        registry.RegisterWorker(settings.WorkerName, settings.Workers);
         return base.StartAsync(cancellationToken);
     }
 
@@ -181,10 +187,10 @@ internal sealed class HeartbeatService(IScreeningStore store, WorkerSettings set
             try { await Task.Delay(settings.HeartbeatInterval, stoppingToken); } catch (OperationCanceledException) { break; }
             try
             {
-                store.Heartbeat(settings.WorkerName, stats.ChunksDone, stats.CandidatesDone, longest: stats.Longest());
+                registry.Heartbeat(settings.WorkerName, stats.ChunksDone, stats.CandidatesDone, longest: stats.Longest());
                 if (plan.Queue.IsShared)
                 {
-                    var returned = store.RecoverShared(settings.DeadAfter, settings.QueuedStaleAfter);
+                    var returned = recovery.RecoverShared(settings.DeadAfter, settings.QueuedStaleAfter);
                     if (returned > 0)
                         Microsoft.Extensions.Logging.LoggerExtensions.LogWarning(log,
                             "returned {Count} candidates of dead workers (or orphaned in the queue) to pending", returned);
@@ -206,7 +212,7 @@ internal sealed class HeartbeatService(IScreeningStore store, WorkerSettings set
         await base.StopAsync(cancellationToken);
         try
         {
-            store.Heartbeat(settings.WorkerName, stats.ChunksDone, stats.CandidatesDone, stopped: true);
+            registry.Heartbeat(settings.WorkerName, stats.ChunksDone, stats.CandidatesDone, stopped: true);
         }
         catch (Exception e) when (e is not OutOfMemoryException)
         {

@@ -1,3 +1,5 @@
+using IdentityQueue.Algebra;
+using IdentityQueue.Screening.Ports;
 using Microsoft.Extensions.DependencyInjection;
 using Microsoft.Extensions.Hosting;
 using Microsoft.Extensions.Logging;
@@ -24,7 +26,9 @@ public sealed class WorkerSession : IDisposable
         _shared = shared;
     }
 
-    public IScreeningStore Store => _host.Services.GetRequiredService<IScreeningStore>();
+    private IWorkSource Work => _host.Services.GetRequiredService<IWorkSource>();
+
+    private IRecovery Recovery => _host.Services.GetRequiredService<IRecovery>();
 
     /// <summary>The candidate this process has been screening the longest now, or null when none is (for the progress line).</summary>
     public InFlightCandidate? LongestInFlight => _host.Services.GetRequiredService<WorkerStats>().Longest();
@@ -33,18 +37,19 @@ public sealed class WorkerSession : IDisposable
     /// Opens a session on a SQLite store at <paramref name="storePath"/> (queue and log files beside it), or gives the
     /// reason it cannot (another worker holds the store).
     /// </summary>
-    public static WorkerSession? Open(string storePath, WorkerSettings settings, bool longRunning, bool quiet,
-        Action<IServiceCollection> addStore, out string? problem)
+    public static Result<WorkerSession> Open(string storePath, WorkerSettings settings, bool longRunning, bool quiet,
+        Action<IServiceCollection> addStore)
     {
-        var storeLock = StoreLock.TryAcquire(storePath, out problem);
-        if (storeLock is null) return null;
+        var acquired = StoreLock.TryAcquire(storePath);
+        if (!acquired.Success) return acquired.Cast<WorkerSession>();
+        var storeLock = acquired.Value;
         var queuePath = storePath + ".queue";
         // We hold the store alone: whatever the queue file holds belongs to a dead process. The store is the truth;
         // the queue is rebuilt from it, and claims of the dead process go back to pending.
         WorkerHost.ResetQueue(queuePath);
         var host = WorkerHost.Build(settings, Plan(QueueStorage.Sqlite(queuePath), storePath + ".log.jsonl", longRunning, quiet), addStore);
-        host.Services.GetRequiredService<IScreeningStore>().Recover();
-        return new WorkerSession(storeLock, host, shared: false);
+        host.Services.GetRequiredService<IRecovery>().Recover();
+        return Result<WorkerSession>.Ok(new WorkerSession(storeLock, host, shared: false));
     }
 
     /// <summary>
@@ -60,7 +65,7 @@ public sealed class WorkerSession : IDisposable
         // chunks per thread, many seconds of work).
         if (settings.PlanInterval < SharedPlanInterval) settings = settings with { PlanInterval = SharedPlanInterval };
         var host = WorkerHost.Build(settings, Plan(queue, logPath, longRunning, quiet), addStore);
-        host.Services.GetRequiredService<IScreeningStore>().RecoverShared(settings.DeadAfter, settings.QueuedStaleAfter);
+        host.Services.GetRequiredService<IRecovery>().RecoverShared(settings.DeadAfter, settings.QueuedStaleAfter);
         return new WorkerSession(null, host, shared: true);
     }
 
@@ -75,7 +80,7 @@ public sealed class WorkerSession : IDisposable
     {
         _host.Start();
         var planner = _host.Services.GetRequiredService<Planner>();
-        var store = Store;
+        var store = Work;
         var settings = _host.Services.GetRequiredService<WorkerSettings>();
         var lastReport = DateTime.MinValue;
         StateCounts counts;
@@ -120,8 +125,8 @@ public sealed class WorkerSession : IDisposable
     /// </summary>
     private void AfterStop(WorkerSettings settings)
     {
-        if (_shared) Store.ReleaseClaimsOf(settings.WorkerName);
-        else Store.Recover();
+        if (_shared) Recovery.ReleaseClaimsOf(settings.WorkerName);
+        else Recovery.Recover();
     }
 
     /// <summary>Enqueues the pending work without running it (<c>idq enqueue</c>); returns the candidates enqueued.</summary>

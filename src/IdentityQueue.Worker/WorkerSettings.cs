@@ -11,13 +11,16 @@ public sealed record WorkerSettings
     /// <summary>Candidates per job: a job must carry enough work to pay for the queue's own cost (about 15–20 ms a job).</summary>
     public int ChunkSize { get; init; } = 1000;
 
-    /// <summary>Error bound wanted, as −log2; a store's candidates may override it (catalogue.target_bits).</summary>
-    public int TargetBits { get; init; } = 64;
-
     /// <summary>This process's name in claims and trial rows: host:pid.</summary>
     public string WorkerName { get; init; } = $"{Environment.MachineName}:{Environment.ProcessId}";
 
     public Limits Limits { get; init; } = Limits.Default;
+
+    /// <summary>The screening policy: trial limits and the stages the planner takes work by.</summary>
+    public IdentityQueue.Screening.ScreeningPolicy Policy { get; init; } = IdentityQueue.Screening.ScreeningPolicy.Default;
+
+    /// <summary>How long a trial takes on each rung (measured once per process; tests give fixed speeds).</summary>
+    public IdentityQueue.Screening.CostModel Costs { get; init; } = IdentityQueue.Screening.CostModel.Calibrated;
 
     /// <summary>The time one candidate's screening may take (<c>TimePerCandidate</c>, <c>--time-per-candidate</c>).</summary>
     public IdentityQueue.Screening.TimeBudget Budget { get; init; } = IdentityQueue.Screening.TimeBudget.Default;
@@ -69,7 +72,6 @@ public sealed record WorkerSettings
         var problems = new List<string>();
         if (Workers < 1 || Workers > 256) problems.Add($"--workers must be between 1 and 256, got {Workers}");
         if (ChunkSize < 1 || ChunkSize > 100_000) problems.Add($"--chunk-size must be between 1 and 100000, got {ChunkSize}");
-        if (TargetBits < 1 || TargetBits > 4096) problems.Add($"--target-bits must be between 1 and 4096, got {TargetBits}");
         if (InvisibilityTimeout < TimeSpan.FromSeconds(5)) problems.Add($"the invisibility timeout must be at least 5 s, got {InvisibilityTimeout.TotalSeconds} s");
         if (DeadAfter < 3 * HeartbeatInterval) problems.Add($"dead-after ({DeadAfter.TotalSeconds} s) must be at least three heartbeats ({HeartbeatInterval.TotalSeconds} s each)");
         return problems;

@@ -76,7 +76,7 @@ internal static class BigPolynomialScaling
         if (!compiled.Success) throw new InvalidOperationException(compiled.Error!.ToString());
         var identity = compiled.Value!;
         var options = new ScreeningOptions { Seed = 1, Limits = limits };
-        var rung = FieldLadder.Choose(identity, FieldLadder.Rungs(identity.Field, options.Limits.MaxFieldBits), 0, options.MinBitsPerTrial)!;
+        var rung = FieldLadder.Choose(identity, FieldLadder.Rungs(identity.Field, options.Limits.MaxFieldBits), 0, options.Policy.MinBitsPerTrial)!;
         t0 = Cpu();
         var trial = TrialRunner.Run(identity, rung, 1, 12345);
         var trialTime = Cpu() - t0;

@@ -301,7 +301,7 @@ public sealed class StoreEndToEndTests : IDisposable
     public void SecondWorkerOnTheSameStore_IsRefused()
     {
         Idq("init", "--db", Db);
-        using var held = Worker.StoreLock.TryAcquire(Db, out _);
+        using var held = Worker.StoreLock.TryAcquire(Db).Value;
         Assert.NotNull(held);
         var run = Idq("run", "--db", Db);
         Assert.Equal(2, run.Code);

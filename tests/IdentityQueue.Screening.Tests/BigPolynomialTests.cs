@@ -49,7 +49,7 @@ public sealed class BigPolynomialTests
     }
 
     private static ScreenResult Screen(CompiledIdentity identity) =>
-        Screener.Screen(identity, new ScreeningOptions { TargetBits = 64, Seed = Some.Seed }, candidateKey: 1);
+        Screener.Screen(identity, new ScreeningOptions { Target = EvidenceTarget.Create(64).Value, Seed = Some.Seed }, candidateKey: 1);
 
     private static void SurvivesAndPerturbedIsRefuted(Case c)
     {

@@ -48,12 +48,14 @@ public sealed class CandidateKeyTests
     [Fact]
     public void RunSeedsAreValidatedWhereTheyEnter()
     {
-        Assert.Equal(42UL, RunSeed.Parse("42", out _)!.Value.Value);
-        Assert.Equal(RunSeed.Max, RunSeed.FromUser(RunSeed.Max, out _)!.Value.Value);
-        Assert.Null(RunSeed.FromUser(RunSeed.Max + 1, out var tooBig));
-        Assert.Contains("2^63 - 1", tooBig);
-        Assert.Null(RunSeed.Parse("-1", out var negative));
-        Assert.Contains("whole number", negative);
+        Assert.Equal(42UL, RunSeed.Parse("42").Value.Value);
+        Assert.Equal(RunSeed.Max, RunSeed.FromUser(RunSeed.Max).Value.Value);
+        var tooBig = RunSeed.FromUser(RunSeed.Max + 1);
+        Assert.False(tooBig.Success);
+        Assert.Contains("2^63 - 1", tooBig.Error.Message);
+        var negative = RunSeed.Parse("-1");
+        Assert.False(negative.Success);
+        Assert.Contains("whole number", negative.Error.Message);
         Assert.Throws<ArgumentOutOfRangeException>(() => RunSeed.FromStored(-5));
         for (var i = 0; i < 100; i++) Assert.True(RunSeed.Random().Value <= RunSeed.Max);
     }

@@ -101,7 +101,9 @@ public sealed class CostControlTests(ITestOutputHelper log)
         // budget of half a second must end it from inside the kernel. The trial given as prior evidence is kept.
         var identity = Some.Compiled(PermanentIdentity(26));
         var first = PriorZeroTrial();
-        Assert.True(TimeBudget.TryCreate(0.5, out var budget, out _));
+        var created = TimeBudget.Create(0.5);
+        Assert.True(created.Success);
+        var budget = created.Value;
         var options = new ScreeningOptions { Seed = Some.Seed, Budget = budget, Costs = CostModel.Fixed(RungSpeed.Uniform(1e-6)) };
         var clock = Stopwatch.StartNew();
         var result = Screener.Screen(identity, options, 1, [first]);
@@ -143,12 +145,14 @@ public sealed class CostControlTests(ITestOutputHelper log)
     [Fact]
     public void TimeBudget_IsValidatedWhereItEnters()
     {
-        Assert.False(TimeBudget.TryCreate(0, out _, out var problem));
-        Assert.Contains("--time-per-candidate must be between 0.1 and 604800 seconds, got 0", problem);
-        Assert.False(TimeBudget.TryCreate(double.NaN, out _, out _));
-        Assert.False(TimeBudget.TryCreate(1e9, out _, out _));
-        Assert.True(TimeBudget.TryCreate(90, out var budget, out _));
-        Assert.Equal(TimeSpan.FromSeconds(90), budget.PerCandidate);
+        var zero = TimeBudget.Create(0);
+        Assert.False(zero.Success);
+        Assert.Contains("--time-per-candidate must be between 0.1 and 604800 seconds, got 0", zero.Error.Message);
+        Assert.False(TimeBudget.Create(double.NaN).Success);
+        Assert.False(TimeBudget.Create(1e9).Success);
+        var budget = TimeBudget.Create(90);
+        Assert.True(budget.Success);
+        Assert.Equal(TimeSpan.FromSeconds(90), budget.Value.PerCandidate);
         Assert.Equal(TimeSpan.FromSeconds(60), default(TimeBudget).PerCandidate);
         Assert.Equal("60 s", TimeBudget.Default.ToString());
     }

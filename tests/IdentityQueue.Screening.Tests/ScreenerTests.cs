@@ -59,7 +59,7 @@ public class ScreenerTests
     public void BlockTrials_EqualTrialsRunOneByOne(string line, int targetBits)
     {
         var c = Some.Compiled(line);
-        var r = Screener.Screen(c, new ScreeningOptions { TargetBits = targetBits, Seed = 42 }, 17);
+        var r = Screener.Screen(c, new ScreeningOptions { Target = EvidenceTarget.Create(targetBits).Value, Seed = 42 }, 17);
         var rungs = FieldLadder.Rungs(c.Field, Algebra.Limits.Default.MaxFieldBits);
         foreach (var t in r.Trials)
         {
@@ -90,8 +90,8 @@ public class ScreenerTests
     public void HigherTarget_AddsTrialsOnly()
     {
         var c = Some.Compiled("(x+y)^2 = x^2 + 2*x*y + y^2");
-        var first = Screener.Screen(c, new ScreeningOptions { TargetBits = 64, Seed = 3 }, 9);
-        var more = Screener.Screen(c, new ScreeningOptions { TargetBits = 300, Seed = 3 }, 9, first.Trials);
+        var first = Screener.Screen(c, new ScreeningOptions { Target = EvidenceTarget.Create(64).Value, Seed = 3 }, 9);
+        var more = Screener.Screen(c, new ScreeningOptions { Target = EvidenceTarget.Create(300).Value, Seed = 3 }, 9, first.Trials);
         Assert.Equal(first.Trials, more.Trials.Take(first.Trials.Count));
         Assert.True(more.Trials.Count > first.Trials.Count);
         Assert.True(more.ErrorBoundLog2 <= -300);
@@ -140,7 +140,7 @@ public class StagedScreeningTests
     public void StagedScreening_EqualsOneRun(int targetBits)
     {
         var c = Some.Compiled("(a+b)^3 = a^3 + 3*a^2*b + 3*a*b^2 + b^3");
-        var options = new ScreeningOptions { Seed = 11, TargetBits = targetBits };
+        var options = new ScreeningOptions { Seed = 11, Target = EvidenceTarget.Create(targetBits).Value };
         var stage1 = Screener.Screen(c, options with { MaxNewStages = 1 }, 5);
         var stage2 = Screener.Screen(c, options, 5, stage1.Trials);
         var once = Screener.Screen(c, options, 5);

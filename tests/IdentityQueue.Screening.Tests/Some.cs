@@ -34,10 +34,10 @@ internal static class Some
     public static CompiledIdentity Compiled(string line) => Assert.Single(Instances(line));
 
     public static ScreenResult Screen(string line, int targetBits = 64, ulong seed = Seed) =>
-        Screener.Screen(Compiled(line), new ScreeningOptions { TargetBits = targetBits, Seed = seed }, candidateKey: 1);
+        Screener.Screen(Compiled(line), new ScreeningOptions { Target = EvidenceTarget.Create(targetBits).Value, Seed = seed }, candidateKey: 1);
 
     public static IReadOnlyList<ScreenResult> ScreenFamily(string line, int targetBits = 64, ulong seed = Seed) =>
-        Instances(line).Select((c, i) => Screener.Screen(c, new ScreeningOptions { TargetBits = targetBits, Seed = seed }, (ulong)i)).ToList();
+        Instances(line).Select((c, i) => Screener.Screen(c, new ScreeningOptions { Target = EvidenceTarget.Create(targetBits).Value, Seed = seed }, (ulong)i)).ToList();
 
     public static BigInteger Param(CompiledIdentity c, string name) => c.Parameters[name];
 }

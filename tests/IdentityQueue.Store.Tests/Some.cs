@@ -19,7 +19,7 @@ internal static class Some
         Assert.True(bound.Success, bound.Error);
         var compiled = IdentityCompiler.Compile(bound.Entry!, bound.Parameters);
         Assert.True(compiled.Success, compiled.Error?.ToString());
-        var options = new ScreeningOptions { TargetBits = targetBits, Seed = candidate.Seed.Value };
+        var options = new ScreeningOptions { Target = EvidenceTarget.Create(targetBits).Value, Seed = candidate.Seed.Value };
         return Screener.Screen(compiled.Value!, options, candidate.TrialKey(bound), candidates.LoadTrials(candidateId));
     }
 

@@ -1,6 +1,7 @@
 using System.Data.Common;
 using System.Numerics;
 using IdentityQueue.Screening;
+using IdentityQueue.Screening.Ports;
 using IdentityQueue.Store.Schema;
 
 namespace IdentityQueue.Store.Work;
@@ -223,14 +224,14 @@ public sealed class CandidateStore(StoreConnection store)
             if (outcome.Screen is not { } result)
             {
                 u.Candidate.Set(outcome.CandidateId);
-                u.State.Set(outcome.State);
+                u.State.Set(StateOf(outcome));
                 u.Message.Set(outcome.Message);
                 written += Run(unscreened, isResult: true);
                 continue;
             }
             foreach (var trial in result.Trials) Run(trials.Bind(outcome.CandidateId, trial, worker), isResult: false);
             p.Candidate.Set(outcome.CandidateId);
-            p.State.Set(outcome.State);
+            p.State.Set(StateOf(outcome));
             p.Degree.Set(TrialText.Decimal(result.DegreeBound));
             p.Height.Set(Sql.Real(result.HeightBoundLog2));
             p.Zero.Set(result.Trials.Count(t => t.Outcome == TrialOutcome.Zero));
@@ -249,6 +250,21 @@ public sealed class CandidateStore(StoreConnection store)
         transaction.Commit();
         return written;
     }
+
+    /// <summary>The <c>result.state</c> an outcome writes.</summary>
+    public static string StateOf(CandidateOutcome outcome) => outcome.Kind switch
+    {
+        OutcomeKind.Screened => outcome.Screen!.Verdict switch
+        {
+            Verdict.Survived => ResultStates.Survived,
+            Verdict.Refuted => ResultStates.Refuted,
+            Verdict.Undecided => ResultStates.Undecided,
+            Verdict.Pending => ResultStates.Pending,
+            _ => ResultStates.Invalid,
+        },
+        OutcomeKind.Invalid => ResultStates.Invalid,
+        _ => ResultStates.Failed,
+    };
 
     /// <summary>The prepared insert of one trial row, ignoring a (candidate_id, seq) already stored.</summary>
     private sealed class TrialInsert : IDisposable

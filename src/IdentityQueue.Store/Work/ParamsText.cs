@@ -2,6 +2,7 @@ using System.Globalization;
 using System.Numerics;
 using System.Text;
 using System.Text.Json;
+using IdentityQueue.Algebra;
 
 namespace IdentityQueue.Store.Work;
 
@@ -23,21 +24,17 @@ public static class ParamsText
     }
 
     /// <summary>
-    /// Reads a params object; each value an integer (a JSON number, or a string of decimal digits for hand-written rows).
-    /// Returns null with <paramref name="error"/> set when the text is not such an object.
+    /// Reads a params object; each value an integer (a JSON number, or a string of decimal digits for hand-written rows),
+    /// or says why the text is not such an object.
     /// </summary>
-    public static IReadOnlyDictionary<string, BigInteger>? Read(string json, out string? error)
+    public static Result<IReadOnlyDictionary<string, BigInteger>> Read(string json)
     {
-        error = null;
+        static Result<IReadOnlyDictionary<string, BigInteger>> Fail(string message) => Result<IReadOnlyDictionary<string, BigInteger>>.Fail(message);
         var result = new Dictionary<string, BigInteger>(StringComparer.Ordinal);
         try
         {
             using var document = JsonDocument.Parse(json);
-            if (document.RootElement.ValueKind != JsonValueKind.Object)
-            {
-                error = "params must be a JSON object such as {\"n\": 3}";
-                return null;
-            }
+            if (document.RootElement.ValueKind != JsonValueKind.Object) return Fail("params must be a JSON object such as {\"n\": 3}");
             foreach (var property in document.RootElement.EnumerateObject())
             {
                 var value = property.Value;
@@ -48,22 +45,14 @@ public static class ParamsText
                     _ => null,
                 };
                 if (digits is null || !BigInteger.TryParse(digits, NumberStyles.AllowLeadingSign, CultureInfo.InvariantCulture, out var integer))
-                {
-                    error = $"the parameter '{property.Name}' in params must be an integer, not {value.GetRawText()}";
-                    return null;
-                }
-                if (!result.TryAdd(property.Name, integer))
-                {
-                    error = $"the parameter '{property.Name}' is given twice in params";
-                    return null;
-                }
+                    return Fail($"the parameter '{property.Name}' in params must be an integer, not {value.GetRawText()}");
+                if (!result.TryAdd(property.Name, integer)) return Fail($"the parameter '{property.Name}' is given twice in params");
             }
         }
         catch (JsonException e)
         {
-            error = $"params is not valid JSON: {e.Message}";
-            return null;
+            return Fail($"params is not valid JSON: {e.Message}");
         }
-        return result;
+        return Result<IReadOnlyDictionary<string, BigInteger>>.Ok(result);
     }
 }

@@ -1,4 +1,5 @@
 using System.Data.Common;
+using IdentityQueue.Screening;
 using IdentityQueue.Store.Schema;
 
 namespace IdentityQueue.Store.Work;
@@ -7,8 +8,7 @@ namespace IdentityQueue.Store.Work;
 public sealed record ClaimedCandidate(StoredCandidate Candidate, IReadOnlyList<Screening.TrialRecord> Trials);
 
 /// <summary>
-/// The queue side of the worker's store: stages, claims and recovery. Stage 1 is a candidate's first zero trial (the cheap
-/// field); stage 2 the rest, to the target. Like <see cref="CandidateStore"/> it uses the connection it is given and is
+/// The queue side of the worker's store: taking pending work by stage (stages are Screening's), claims and recovery. Like <see cref="CandidateStore"/> it uses the connection it is given and is
 /// not thread-safe.
 /// </summary>
 public sealed class WorkQueue(StoreConnection store)
@@ -77,50 +77,61 @@ public sealed class WorkQueue(StoreConnection store)
     }
 
     /// <summary>
-    /// Reopens survivors whose evidence is short of <paramref name="targetBits"/> (a run with a higher target) and records
+    /// Reopens survivors whose evidence is short of <paramref name="target"/> (a run with a higher target) and records
     /// the target on every catalogue; nothing already settled is redone. Returns the candidates reopened.
     /// </summary>
-    public int RaiseTarget(int targetBits)
+    public int RaiseTarget(EvidenceTarget target)
     {
         using var transaction = _db.BeginTransaction();
         using (var catalogues = _db.Command("UPDATE catalogue SET target_bits = @bits WHERE target_bits < @bits", transaction))
         {
-            catalogues.Parameter("@bits", targetBits);
+            catalogues.Parameter("@bits", target.Bits);
             catalogues.ExecuteNonQuery();
         }
         using var reopen = _db.Command($"""
             UPDATE result SET state = '{ResultStates.Pending}', updated_at = CURRENT_TIMESTAMP
-            WHERE state = '{ResultStates.Survived}' AND (error_bound_log2 IS NULL OR error_bound_log2 > -@bits)
+            WHERE state = '{ResultStates.Survived}' AND (error_bound_log2 IS NULL OR error_bound_log2 > @bound)
             """, transaction);
-        reopen.Parameter("@bits", targetBits);
+        reopen.Parameter("@bound", target.BoundLog2);
         var reopened = reopen.ExecuteNonQuery();
         transaction.Commit();
         return reopened;
     }
 
     /// <summary>
-    /// Takes up to <paramref name="max"/> pending candidates of the earliest stage that has any and marks them queued, in one
-    /// transaction. Returns the stage (1 or 2) and the ids, lowest first; no ids when nothing is pending.
-    /// <paramref name="beforeCommit"/> runs with the rows taken but not yet committed (the planner enqueues their jobs there):
-    /// if it throws, or the process dies before the commit, the rows stay pending, so no candidate is ever left queued
-    /// without a job (a job enqueued before a failed commit finds its candidates pending and screens them, harmlessly).
+    /// Takes up to <paramref name="max"/> pending candidates of the earliest of <paramref name="stages"/> that has any and
+    /// marks them queued, in one transaction. A stage is Screening's (<see cref="WorkStage"/>): a range of the stored count
+    /// of zero trials (<c>result.trials_zero</c>), which this method only selects by. Returns the stage and the ids, lowest
+    /// first; no ids when nothing is pending. <paramref name="beforeCommit"/> runs with the rows taken but not yet committed
+    /// (the planner enqueues their jobs there): if it throws, or the process dies before the commit, the rows stay pending,
+    /// so no candidate is ever left queued without a job (a job enqueued before a failed commit finds its candidates pending
+    /// and screens them, harmlessly).
     /// </summary>
-    public (int Stage, IReadOnlyList<long> Ids) TakePending(int max, Action<int, IReadOnlyList<long>>? beforeCommit = null)
+    public (WorkStage Stage, IReadOnlyList<long> Ids) TakePending(int max, Action<WorkStage, IReadOnlyList<long>>? beforeCommit = null) =>
+        TakePending(ScreeningPolicy.Default.Stages, max, beforeCommit);
+
+    /// <summary>As <see cref="TakePending(int, Action{WorkStage, IReadOnlyList{long}}?)"/>, over the given stages in order.</summary>
+    public (WorkStage Stage, IReadOnlyList<long> Ids) TakePending(IReadOnlyList<WorkStage> stages, int max,
+        Action<WorkStage, IReadOnlyList<long>>? beforeCommit = null)
     {
         using var transaction = _db.BeginTransaction();
-        foreach (var (stage, condition) in new[] { (1, "trials_zero = 0"), (2, "trials_zero > 0") })
+        foreach (var stage in stages)
         {
             // One statement takes the rows, so that two planners (worker processes sharing a PostgreSQL store) never take
             // the same candidate: there the inner select locks what it takes and skips rows another planner is taking.
             // SQLite has one writer at a time and no row locks.
             var lockRows = _store.IsPostgreSql ? " FOR UPDATE SKIP LOCKED" : "";
+            var upper = stage.MaxZeroTrials is null ? "" : " AND trials_zero <= @most";
             using var take = _db.Command($"""
                 UPDATE result SET state = '{ResultStates.Queued}', updated_at = CURRENT_TIMESTAMP
-                WHERE candidate_id IN (SELECT candidate_id FROM result WHERE state = '{ResultStates.Pending}' AND {condition}
+                WHERE candidate_id IN (SELECT candidate_id FROM result WHERE state = '{ResultStates.Pending}'
+                                       AND trials_zero >= @least{upper}
                                        ORDER BY candidate_id LIMIT @max{lockRows})
                 RETURNING candidate_id
                 """, transaction);
             take.Parameter("@max", max);
+            take.Parameter("@least", stage.MinZeroTrials);
+            if (stage.MaxZeroTrials is int most) take.Parameter("@most", most);
             var ids = new List<long>();
             using (var r = take.ExecuteReader())
                 while (r.Read()) ids.Add(r.GetInt64(0));
@@ -131,7 +142,7 @@ public sealed class WorkQueue(StoreConnection store)
             return (stage, ids);
         }
         transaction.Commit();
-        return (1, []);
+        return (stages.Count > 0 ? stages[0] : WorkStage.FirstTrial, []);
     }
 
     /// <summary>Claims the candidates for <paramref name="worker"/> and loads them with their trials; settled ones are skipped.</summary>

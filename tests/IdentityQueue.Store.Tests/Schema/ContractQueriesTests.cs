@@ -1,3 +1,4 @@
+using IdentityQueue.Screening.Ports;
 using IdentityQueue.Store.Work;
 
 namespace IdentityQueue.Store.Tests.Schema;

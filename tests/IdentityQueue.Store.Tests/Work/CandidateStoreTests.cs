@@ -1,4 +1,5 @@
 using System.Numerics;
+using IdentityQueue.Screening.Ports;
 using IdentityQueue.Screening;
 using IdentityQueue.Store.Work;
 
