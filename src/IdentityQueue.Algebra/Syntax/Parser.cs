@@ -326,7 +326,8 @@ internal sealed class Parser
         if ((pToken.Length - 1) * 3.3219 > maxBits) return Fail<FieldSpec>(pToken, SyntaxMessages.FieldTooLarge(fieldText, maxBits));
         var p = ParseInteger(pToken);
         if (p.GetBitLength() > maxBits) return Fail<FieldSpec>(pToken, SyntaxMessages.FieldTooLarge(fieldText, maxBits));
-        if (!Primality.IsPrime(p))
+        var prime = FieldSpec.Finite(p);
+        if (!prime.Success)
         {
             var (q, e) = AsPrimePower(p);
             return Fail<FieldSpec>(pToken, SyntaxMessages.NotPrime(fieldText, p, q, e));
@@ -339,7 +340,7 @@ internal sealed class Parser
             if (k < 1) return Fail<FieldSpec>(kt, SyntaxMessages.ZeroFieldExponent(fieldText));
             if (BigInteger.Log(p, 2) * k > maxBits) return Fail<FieldSpec>(kt, SyntaxMessages.FieldTooLarge(fieldText, maxBits));
         }
-        return FieldSpec.Finite(p, k);
+        return k == 1 ? prime.Value : prime.Value.WithDegree(k).ValueOrThrow();
     }
 
     /// <summary>(q, e) with n = q^e, q a prime below 2^16 and e ≥ 2; (null, 0) otherwise. Only used to word a message.</summary>
@@ -566,8 +567,9 @@ internal sealed class Parser
                 return Fail<Expr>(nameToken, SyntaxMessages.DefinitionNameCaptured(name, free, $"the parameter '{free}' of the definition of '{_defining}'"));
             (_freeUses ??= []).Add((free, name, nameToken));
         }
-        var expanded = DefinitionExpander.Expand(definition, arguments, out var error);
-        if (expanded is null) return Fail<Expr>(nameToken, error!);
+        var expansion = DefinitionExpander.Expand(definition, arguments);
+        if (!expansion.Success) return Fail<Expr>(nameToken, expansion.Error.Message);
+        var expanded = expansion.Value;
         var limit = _limits.MaxExpandedNodes;
         var (nodes, treeHeight) = DefinitionExpander.Measure(expanded, limit - _expandedNodes);
         _expandedNodes += nodes;
