@@ -18,12 +18,6 @@ public sealed record SmtLibObligation(
     int Denominators,
     int Entries);
 
-/// <summary>The outcome of translating one candidate: an obligation, or why it was skipped (never an exception). Immutable.</summary>
-public readonly record struct SmtLibTranslation(SmtLibObligation? Obligation, string? SkipReason)
-{
-    public bool Success => Obligation is not null;
-}
-
 /// <summary>
 /// Translates an identity with its parameters fixed into an SMT-LIB 2 script asserting its negation over the reals
 /// (<c>QF_NRA</c>). The identity is lowered by the algebra's one lowering step (<see cref="Lowering"/>: sums, products,
@@ -44,15 +38,16 @@ public static class SmtLibWriter
     /// <summary>The caution each script carries: screening is evidence, not proof.</summary>
     public const string Caution = "Screened by random evaluation over finite fields: very likely true, not proven; the error bound is only as good as the degree bound.";
 
-    public static SmtLibTranslation Translate(IdentityEntry entry, IReadOnlyDictionary<string, BigInteger>? parameters = null,
+    /// <summary>The obligation, or why the candidate is skipped (a failure with no position; never an exception).</summary>
+    public static Result<SmtLibObligation> Translate(IdentityEntry entry, IReadOnlyDictionary<string, BigInteger>? parameters = null,
         HandOffLimits? limits = null, Limits? algebraLimits = null)
     {
         limits ??= HandOffLimits.Default;
         algebraLimits ??= Limits.Default;
         if (entry.Field.IsSeries)
-            return new(null, $"it is a truncated power series identity (up to {entry.Field.SeriesVariable}^{entry.Field.SeriesOrder}): it compares coefficients, which is not a statement about real values");
+            return Result<SmtLibObligation>.Fail($"it is a truncated power series identity (up to {entry.Field.SeriesVariable}^{entry.Field.SeriesOrder}): it compares coefficients, which is not a statement about real values");
         if (!entry.Field.IsRationals)
-            return new(null, $"it is stated over {entry.Field}, an identity of polynomials over a finite field, which cannot be stated over the reals");
+            return Result<SmtLibObligation>.Fail($"it is stated over {entry.Field}, an identity of polynomials over a finite field, which cannot be stated over the reals");
         // The tree's meaning comes from the one lowering step, within the tighter of the two sets of limits.
         var steps = Math.Min(algebraLimits.MaxProgramSize, limits.MaxExpansionSteps);
         var lowering = algebraLimits with { MaxProgramSize = steps, MaxMatrixOrder = Math.Min(algebraLimits.MaxMatrixOrder, limits.MaxMatrixOrder) };
@@ -62,16 +57,16 @@ public static class SmtLibWriter
             var tooLarge = steps < algebraLimits.MaxProgramSize && lowered.Error.Message.Contains("(the limit MaxProgramSize)", StringComparison.Ordinal);
             // The lowering's word for a constant divisor 0 is "division by zero"; the hand-off's reason names it in its own words too.
             var byZero = lowered.Error.Message == "division by zero" ? "it divides by zero; " : "";
-            return new(null, tooLarge ? $"it expands to more than {limits.MaxExpansionSteps} steps (the limit MaxExpansionSteps): {lowered.Error}"
+            return Result<SmtLibObligation>.Fail(tooLarge ? $"it expands to more than {limits.MaxExpansionSteps} steps (the limit MaxExpansionSteps): {lowered.Error}"
                 : $"{byZero}it does not compile: {lowered.Error}");
         }
         try
         {
-            return new(new LoweredTerms(limits).Negation(lowered.Value), null);
+            return Result<SmtLibObligation>.Ok(new LoweredTerms(limits).Negation(lowered.Value));
         }
         catch (HandOffSkip e)
         {
-            return new(null, e.Message);
+            return Result<SmtLibObligation>.Fail(e.Message);
         }
     }
 
