@@ -1,6 +1,7 @@
 using System.CommandLine;
 using System.Globalization;
 using System.Text.Json;
+using IdentityQueue.Algebra;
 using IdentityQueue.Screening.HandOff;
 using IdentityQueue.Store;
 using IdentityQueue.Store.Work;
@@ -126,20 +127,20 @@ internal static class ExportCommand
         foreach (var (handOff, stored) in Candidates(rows))
         {
             var bound = stored.Bind();
-            var translation = bound.Success ? SmtLibWriter.Translate(bound.Entry!, bound.Parameters) : new SmtLibTranslation(null, bound.Error);
+            var translation = bound.Success ? SmtLibWriter.Translate(bound.Entry!, bound.Parameters) : Result<SmtLibObligation>.Fail(bound.Error!);
             if (!translation.Success)
             {
                 skipped++;
-                error.WriteLine($"idq export: skipped candidate {handOff.Id} ({handOff.Label}): {translation.SkipReason}");
+                error.WriteLine($"idq export: skipped candidate {handOff.Id} ({handOff.Label}): {translation.Error.Message}");
                 continue;
             }
             written++;
             if (directory is null)
             {
-                output.Write(SmtLibWriter.Block(handOff, translation.Obligation!));
+                output.Write(SmtLibWriter.Block(handOff, translation.Value));
                 continue;
             }
-            File.WriteAllText(Path.Combine(directory, FileName(handOff)), SmtLibWriter.Script(handOff, translation.Obligation!));
+            File.WriteAllText(Path.Combine(directory, FileName(handOff)), SmtLibWriter.Script(handOff, translation.Value));
         }
         var closing = $"wrote {written} SMT-LIB script{(written == 1 ? "" : "s")}{(directory is null ? "" : $" to {directory}")}; skipped {skipped}";
         if (directory is null)

@@ -39,7 +39,7 @@ public static class ExactDecision
             return Decide<RationalField, Rational>(identity, default, v => v.ToString());
         }
         var field = BigPrimeField.Create(identity.Field.Characteristic);
-        return Decide<BigPrimeField, BigResidue>(identity, field, v => v.Value.ToString());
+        return Decide<BigPrimeField, BigResidue>(identity, field, v => v.ToString());
     }
 
     private static ScreenResult Decide<TField, T>(CompiledIdentity identity, TField field, Func<T, string> show)

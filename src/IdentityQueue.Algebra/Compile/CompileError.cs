@@ -3,8 +3,8 @@ using IdentityQueue.Algebra.Syntax;
 namespace IdentityQueue.Algebra.Compile;
 
 /// <summary>
-/// Thrown inside the compiler to abandon one identity; caught at <see cref="IdentityCompiler.Compile"/> and
-/// returned as a <see cref="Diagnostic"/>. Never escapes the Algebra project's public entry points.
+/// Thrown inside the lowering to abandon one identity; caught at <see cref="Lower.Lowering.Lower"/> (and
+/// <see cref="IdentityCompiler.CompileTemplate"/>) and returned as a <see cref="Diagnostic"/>. Never escapes the Algebra project's public entry points.
 /// </summary>
 internal sealed class CompileError(SourcePosition position, string message) : Exception(message)
 {

@@ -7,13 +7,44 @@ public enum FieldKind { Rationals, Finite }
 /// <summary>
 /// The field an identity is stated over: Q, GF(p) or GF(p^k); in a family line p may be a parameter
 /// (<see cref="CharacteristicParameter"/>, <c>over GF(p) for p prime in 2..50</c>), fixed per instance by
-/// <see cref="Bind"/>. Immutable.
+/// <see cref="Bind"/>. A finite field is made only by <see cref="Finite"/>, which checks that p is a prime, so no
+/// FieldSpec names GF(n) of a composite n. Immutable.
 /// </summary>
-public sealed record FieldSpec(FieldKind Kind, BigInteger Characteristic, int Degree)
+public sealed record FieldSpec
 {
+    private FieldSpec(FieldKind kind, BigInteger characteristic, int degree)
+    {
+        Kind = kind;
+        Characteristic = characteristic;
+        Degree = degree;
+    }
+
     public static readonly FieldSpec Rationals = new(FieldKind.Rationals, BigInteger.Zero, 1);
 
-    public static FieldSpec Finite(BigInteger p, int k = 1) => new(FieldKind.Finite, p, k);
+    public FieldKind Kind { get; }
+
+    /// <summary>p for GF(p^k) (0 for Q and for a field whose p is a family parameter).</summary>
+    public BigInteger Characteristic { get; }
+
+    /// <summary>k for GF(p^k); 1 for Q.</summary>
+    public int Degree { get; }
+
+    /// <summary>GF(p^k): fails unless p is a prime (<see cref="Fields.Primality.IsPrime"/>) and k ≥ 1.</summary>
+    public static Result<FieldSpec> Finite(BigInteger p, int k = 1)
+    {
+        if (k < 1) return Result<FieldSpec>.Fail($"GF({p}^{k}) needs an exponent of at least 1");
+        if (p < 2 || !Fields.Primality.IsPrime(p)) return Result<FieldSpec>.Fail($"GF({p}) needs a prime, but {p} is not one");
+        return Result<FieldSpec>.Ok(new FieldSpec(FieldKind.Finite, p, k));
+    }
+
+    /// <summary>GF(p^k) of this field's prime p (already checked when this field was made); fails for Q, a parameter p, or k &lt; 1.</summary>
+    public Result<FieldSpec> WithDegree(int k)
+    {
+        if (Kind != FieldKind.Finite || CharacteristicParameter is not null)
+            return Result<FieldSpec>.Fail($"{this} has no fixed prime to raise to the power {k}");
+        if (k < 1) return Result<FieldSpec>.Fail($"GF({Characteristic}^{k}) needs an exponent of at least 1");
+        return Result<FieldSpec>.Ok(new FieldSpec(FieldKind.Finite, Characteristic, k) { SeriesVariable = SeriesVariable, SeriesOrder = SeriesOrder });
+    }
 
     /// <summary>GF(p) or GF(p^k) whose p is the family parameter <paramref name="name"/>, written at <paramref name="at"/>.</summary>
     public static FieldSpec FiniteOfParameter(string name, int k, SourcePosition at) =>
@@ -22,10 +53,10 @@ public sealed record FieldSpec(FieldKind Kind, BigInteger Characteristic, int De
     public bool IsRationals => Kind == FieldKind.Rationals;
 
     /// <summary>The family parameter that is the characteristic, or null when the field is fixed.</summary>
-    public string? CharacteristicParameter { get; init; }
+    public string? CharacteristicParameter { get; private init; }
 
     /// <summary>Where the parameter is written in the field.</summary>
-    public SourcePosition ParameterPosition { get; init; }
+    public SourcePosition ParameterPosition { get; private init; }
 
     /// <summary>
     /// For a truncated power series identity (<c>up to q^N</c>): the series variable q; the two sides are compared as power
@@ -40,28 +71,19 @@ public sealed record FieldSpec(FieldKind Kind, BigInteger Characteristic, int De
 
     /// <summary>
     /// This field for one instance: p replaced by the parameter's value, which must be a prime (and the field within
-    /// <paramref name="maxFieldBits"/>); null and the reason otherwise. A fixed field is itself.
+    /// <paramref name="maxFieldBits"/>); otherwise the reason, at the parameter's position. A fixed field is itself.
     /// </summary>
-    public FieldSpec? Bind(IReadOnlyDictionary<string, BigInteger> parameters, int maxFieldBits, out string? error)
+    public Result<FieldSpec> Bind(IReadOnlyDictionary<string, BigInteger> parameters, int maxFieldBits)
     {
-        error = null;
-        if (CharacteristicParameter is not { } name) return this;
+        if (CharacteristicParameter is not { } name) return Result<FieldSpec>.Ok(this);
         if (!parameters.TryGetValue(name, out var p))
-        {
-            error = $"GF({name}): '{name}' is not a parameter of the family (write: for {name} prime in A..B)";
-            return null;
-        }
-        if (p < 2 || !Fields.Primality.IsPrime(p))
-        {
-            error = $"GF({name}) needs a prime {name}, but {name} = {p} (write: for {name} prime in A..B)";
-            return null;
-        }
+            return Result<FieldSpec>.Fail(ParameterPosition, $"GF({name}): '{name}' is not a parameter of the family (write: for {name} prime in A..B)");
+        var field = Finite(p, Degree);
+        if (!field.Success)
+            return Result<FieldSpec>.Fail(ParameterPosition, $"GF({name}) needs a prime {name}, but {name} = {p} (write: for {name} prime in A..B)");
         if ((double)p.GetBitLength() * Degree > maxFieldBits + 1)
-        {
-            error = $"GF({p}{(Degree == 1 ? "" : $"^{Degree}")}) is larger than the limit MaxFieldBits ({maxFieldBits} bits)";
-            return null;
-        }
-        return this with { Characteristic = p, CharacteristicParameter = null, ParameterPosition = default };
+            return Result<FieldSpec>.Fail(ParameterPosition, $"GF({p}{(Degree == 1 ? "" : $"^{Degree}")}) is larger than the limit MaxFieldBits ({maxFieldBits} bits)");
+        return Result<FieldSpec>.Ok(field.Value with { SeriesVariable = SeriesVariable, SeriesOrder = SeriesOrder });
     }
 
     /// <summary>The canonical text: <c>Q</c>, <c>GF(7)</c>, <c>GF(2^8)</c>, <c>GF(p)</c>, and <c>Q up to q^30</c> for a series identity.</summary>

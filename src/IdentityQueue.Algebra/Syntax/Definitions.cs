@@ -38,11 +38,10 @@ public sealed class DefinitionScope
 /// </summary>
 internal static class DefinitionExpander
 {
-    /// <summary>The written-out use, or null with <paramref name="error"/> when a parameter that the body indexes gets an argument that is not a name.</summary>
-    public static Expr? Expand(Definition definition, IReadOnlyList<Expr> arguments, out string? error)
+    /// <summary>The written-out use; a failure (no position: the caller knows it) when a parameter that the body indexes gets an argument that is not a name.</summary>
+    public static Result<Expr> Expand(Definition definition, IReadOnlyList<Expr> arguments)
     {
-        error = null;
-        if (definition.Parameters.Count == 0) return definition.Body;
+        if (definition.Parameters.Count == 0) return Result<Expr>.Ok(definition.Body);
         var map = new Dictionary<string, Expr>(StringComparer.Ordinal);
         var avoid = new HashSet<string>(StringComparer.Ordinal);
         for (var i = 0; i < arguments.Count; i++)
@@ -56,12 +55,11 @@ internal static class DefinitionExpander
         var substitution = new Substitution(map, avoid, taken, definition.Name);
         try
         {
-            return definition.Body.Accept(substitution);
+            return Result<Expr>.Ok(definition.Body.Accept(substitution));
         }
         catch (SubstitutionError e)
         {
-            error = e.Message;
-            return null;
+            return Result<Expr>.Fail(e.Message);
         }
     }
 

@@ -16,8 +16,6 @@ namespace IdentityQueue.Algebra.Syntax;
 /// </summary>
 public sealed class ExprPrinter : IExprVisitor<StringBuilder>
 {
-    private const int OrLevel = -2, AndLevel = -1, ComparisonLevel = 0, AdditiveLevel = 1, MultiplicativeLevel = 2, UnaryLevel = 3, PowerLevel = 4, AtomLevel = 5;
-
     private readonly StringBuilder _output;
 
     public ExprPrinter(StringBuilder output) => _output = output;
@@ -77,18 +75,18 @@ public sealed class ExprPrinter : IExprVisitor<StringBuilder>
     public StringBuilder VisitUnary(UnaryExpr node)
     {
         _output.Append('-');
-        WriteOperand(node.Operand, UnaryLevel);
+        WriteOperand(node.Operand, Precedence.Unary);
         return _output;
     }
 
     public StringBuilder VisitSum(SumExpr node)
     {
         var terms = node.Terms;
-        WriteOperand(terms[0].Value, AdditiveLevel);
+        WriteOperand(terms[0].Value, PrecedenceTable.TermOperand(first: true));
         for (var i = 1; i < terms.Count; i++)
         {
             _output.Append(terms[i].Subtract ? " - " : " + ");
-            WriteOperand(terms[i].Value, MultiplicativeLevel);
+            WriteOperand(terms[i].Value, PrecedenceTable.TermOperand(first: false));
         }
         return _output;
     }
@@ -96,11 +94,11 @@ public sealed class ExprPrinter : IExprVisitor<StringBuilder>
     public StringBuilder VisitProduct(ProductExpr node)
     {
         var factors = node.Factors;
-        WriteOperand(factors[0].Value, MultiplicativeLevel);
+        WriteOperand(factors[0].Value, PrecedenceTable.FactorOperand(first: true));
         for (var i = 1; i < factors.Count; i++)
         {
             _output.Append(factors[i].Divide ? '/' : '*');
-            WriteOperand(factors[i].Value, UnaryLevel);
+            WriteOperand(factors[i].Value, PrecedenceTable.FactorOperand(first: false));
         }
         return _output;
     }
@@ -111,20 +109,16 @@ public sealed class ExprPrinter : IExprVisitor<StringBuilder>
         {
             // A condition of iverson/when: a comparison of two expressions, or comparisons joined by 'and' (binding tighter) and
             // 'or', left to right. The parser makes no other shape; a hand-built one gets parentheses.
-            var (left, right) = node.Operator switch
-            {
-                BinaryOperator.Or => (OrLevel, AndLevel),
-                BinaryOperator.And => (AndLevel, ComparisonLevel),
-                _ => (AdditiveLevel, AdditiveLevel),
-            };
+            var (left, right) = PrecedenceTable.Operands(node.Operator);
             WriteOperand(node.Left, left);
             _output.Append(' ').Append(Builtins.Symbol(node.Operator)).Append(' ');
             WriteOperand(node.Right, right);
             return _output;
         }
-        WriteOperand(node.Left, AtomLevel);
+        var (baseLevel, exponentLevel) = PrecedenceTable.Operands(BinaryOperator.Power);
+        WriteOperand(node.Left, baseLevel);
         _output.Append('^');
-        WriteOperand(node.Right, UnaryLevel);
+        WriteOperand(node.Right, exponentLevel);
         return _output;
     }
 
@@ -180,20 +174,6 @@ public sealed class ExprPrinter : IExprVisitor<StringBuilder>
         return _output.Append(']');
     }
 
-    /// <summary>How tightly the printed form of a node binds (higher binds tighter); a negative literal prints like a negation.</summary>
-    internal static int Level(Expr expr) => expr switch
-    {
-        BinaryExpr { Operator: BinaryOperator.Or } => OrLevel,
-        BinaryExpr { Operator: BinaryOperator.And } => AndLevel,
-        BinaryExpr { Operator: >= BinaryOperator.Less } => ComparisonLevel,
-        SumExpr => AdditiveLevel,
-        ProductExpr => MultiplicativeLevel,
-        BinaryExpr => PowerLevel,
-        UnaryExpr => UnaryLevel,
-        IntegerLiteral { Value.Sign: < 0 } => UnaryLevel,
-        _ => AtomLevel,
-    };
-
     private void WriteRange(string name, Expr from, Expr to)
     {
         _output.Append(name).Append(" in ");
@@ -211,9 +191,9 @@ public sealed class ExprPrinter : IExprVisitor<StringBuilder>
         }
     }
 
-    private void WriteOperand(Expr operand, int neededLevel)
+    private void WriteOperand(Expr operand, Precedence neededLevel)
     {
-        if (Level(operand) >= neededLevel)
+        if (PrecedenceTable.Of(operand) >= neededLevel)
         {
             Write(operand);
             return;

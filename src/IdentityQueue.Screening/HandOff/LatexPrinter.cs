@@ -12,8 +12,6 @@ namespace IdentityQueue.Screening.HandOff;
 /// </summary>
 public sealed class LatexPrinter : IExprVisitor<StringBuilder>
 {
-    private const int AdditiveLevel = 1, MultiplicativeLevel = 2, UnaryLevel = 3, PowerLevel = 4, AtomLevel = 5;
-
     private readonly StringBuilder _output;
 
     private LatexPrinter(StringBuilder output) => _output = output;
@@ -52,18 +50,18 @@ public sealed class LatexPrinter : IExprVisitor<StringBuilder>
     public StringBuilder VisitUnary(UnaryExpr node)
     {
         _output.Append('-');
-        Operand(node.Operand, UnaryLevel);
+        Operand(node.Operand, Precedence.Unary);
         return _output;
     }
 
     public StringBuilder VisitSum(SumExpr node)
     {
         var terms = node.Terms;
-        Operand(terms[0].Value, AdditiveLevel);
+        Operand(terms[0].Value, Precedence.Additive);
         for (var i = 1; i < terms.Count; i++)
         {
             _output.Append(terms[i].Subtract ? " - " : " + ");
-            Right(terms[i].Value, MultiplicativeLevel);
+            Right(terms[i].Value, Precedence.Multiplicative);
         }
         return _output;
     }
@@ -78,7 +76,7 @@ public sealed class LatexPrinter : IExprVisitor<StringBuilder>
         for (var i = 1; i < factors.Count; i++)
             if (factors[i].Divide) _output.Append("\\frac{");
         if (factors[1].Divide) Write(factors[0].Value);
-        else Operand(factors[0].Value, MultiplicativeLevel);
+        else Operand(factors[0].Value, Precedence.Multiplicative);
         for (var i = 1; i < factors.Count; i++)
         {
             if (factors[i].Divide)
@@ -90,7 +88,7 @@ public sealed class LatexPrinter : IExprVisitor<StringBuilder>
             else
             {
                 _output.Append(" \\cdot ");
-                Right(factors[i].Value, UnaryLevel);
+                Right(factors[i].Value, Precedence.Unary);
             }
         }
         return _output;
@@ -115,14 +113,14 @@ public sealed class LatexPrinter : IExprVisitor<StringBuilder>
             return Write(node.Right);
         }
         // '^'
-        Operand(node.Left, AtomLevel);
+        Operand(node.Left, Precedence.Atom);
         _output.Append("^{");
         Write(node.Right);
         return _output.Append('}');
     }
 
     /// <summary>The right operand of '+', '-' or '\cdot': "a - (-b)", not "a - -b" (a fraction needs no parentheses).</summary>
-    private void Right(Expr e, int needed) => Operand(e, Level(e) == UnaryLevel && !IsFraction(e) ? AtomLevel : needed);
+    private void Right(Expr e, Precedence needed) => Operand(e, Level(e) == Precedence.Unary && !IsFraction(e) ? Precedence.Atom : needed);
 
     private static bool IsFraction(Expr e) => e is ProductExpr { Factors: var f } && f[^1].Divide;
 
@@ -134,7 +132,7 @@ public sealed class LatexPrinter : IExprVisitor<StringBuilder>
             case Builtins.Binom:
                 return Braced("\\binom{", a[0], "}{", a[1], "}");
             case Builtins.Fact:
-                Operand(a[0], AtomLevel);
+                Operand(a[0], Precedence.Atom);
                 return _output.Append('!');
             case Builtins.QInt:
                 return Braced("[", a[0], "]_{", a[1], "}");
@@ -147,7 +145,7 @@ public sealed class LatexPrinter : IExprVisitor<StringBuilder>
             case Builtins.Det when a[0] is MatrixLiteral literal:
                 return Literal(literal, "vmatrix");
             case Builtins.Transpose:
-                Operand(a[0], AtomLevel);
+                Operand(a[0], Precedence.Atom);
                 return _output.Append("^{\\mathsf{T}}");
             case Builtins.Identity:
                 _output.Append("I_{");
@@ -205,7 +203,7 @@ public sealed class LatexPrinter : IExprVisitor<StringBuilder>
                 if (a.Count == 2) { _output.Append("\\times "); Write(a[1]); }
                 return _output.Append('}');
             case Builtins.Inverse:
-                Operand(a[0], AtomLevel);
+                Operand(a[0], Precedence.Atom);
                 return _output.Append("^{-1}");
             case Builtins.Diagonal:
                 _output.Append("\\operatorname{diag}\\left(");
@@ -214,7 +212,7 @@ public sealed class LatexPrinter : IExprVisitor<StringBuilder>
             case Builtins.Entry or Builtins.Submatrix or Builtins.Minor:
                 // M_{i,j} for an entry, M_{R,C} for the submatrix on rows R and columns C; a minor is its determinant.
                 if (node.Function == Builtins.Minor) _output.Append("\\det ");
-                Operand(a[0], AtomLevel);
+                Operand(a[0], Precedence.Atom);
                 _output.Append("_{");
                 Write(a[1]);
                 _output.Append(',');
@@ -257,7 +255,7 @@ public sealed class LatexPrinter : IExprVisitor<StringBuilder>
         _output.Append("}^{");
         if (node.To is NameRef { Name: "inf" }) _output.Append("\\infty"); else Write(node.To);
         _output.Append("} ");
-        Operand(node.Body, PowerLevel);
+        Operand(node.Body, Precedence.Power);
         return _output;
     }
 
@@ -318,18 +316,17 @@ public sealed class LatexPrinter : IExprVisitor<StringBuilder>
         return _output.Append(close);
     }
 
-    private static int Level(Expr e) => e switch
+    /// <summary>The shared table's level (<see cref="PrecedenceTable"/>), where LaTeX differs: <c>\frac{}{}</c> needs no parentheses except as a base, a condition prints as a whole, big operators bind like products, and <c>n!</c>, <c>M^T</c> like powers.</summary>
+    private static Precedence Level(Expr e) => e switch
     {
-        SumExpr => AdditiveLevel,
-        ProductExpr { Factors: var f } => f[^1].Divide ? UnaryLevel : MultiplicativeLevel, // \frac{}{} needs no parentheses except as a base
-        BinaryExpr => PowerLevel,
-        UnaryExpr or IntegerLiteral { Value.Sign: < 0 } => UnaryLevel,
-        BoundExpr => MultiplicativeLevel,
-        CallExpr { Function: Builtins.Fact or Builtins.QFact or Builtins.Transpose } => PowerLevel,
-        _ => AtomLevel,
+        ProductExpr { Factors: var f } when f[^1].Divide => Precedence.Unary,
+        BinaryExpr => Precedence.Power,
+        BoundExpr => Precedence.Multiplicative,
+        CallExpr { Function: Builtins.Fact or Builtins.QFact or Builtins.Transpose } => Precedence.Power,
+        _ => PrecedenceTable.Of(e),
     };
 
-    private void Operand(Expr e, int needed)
+    private void Operand(Expr e, Precedence needed)
     {
         if (Level(e) >= needed)
         {

@@ -239,9 +239,12 @@ public sealed class CatalogueImporter(StoreConnection store)
                     label.Append(ordered[i].Key).Append('=').Append(ordered[i].Value.ToString(CultureInfo.InvariantCulture));
                 }
                 // GF(p) of a family parameter: each instance stores its own field; one that is not prime is refused here.
-                var own = entry.Field.CharacteristicParameter is null ? null
-                    : entry.Field.Bind(assignment, options.Limits.MaxFieldBits, out var fieldError)?.ToString()
-                      ?? throw new FieldBindingException(read.Describe(new Diagnostic(entry.Field.ParameterPosition, fieldError!)));
+                string? own = null;
+                if (entry.Field.CharacteristicParameter is not null)
+                {
+                    var bound = entry.Field.Bind(assignment, options.Limits.MaxFieldBits);
+                    own = bound.Success ? bound.Value.ToString() : throw new FieldBindingException(read.Describe(bound.Error));
+                }
                 instances.Add((label.Append(']').ToString(), ParamsText.Write(ordered), own));
             }
             return (new Made(entry.Label, ownLabel, sides, field, instances), null);

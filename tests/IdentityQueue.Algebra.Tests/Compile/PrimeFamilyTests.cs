@@ -43,9 +43,9 @@ public class PrimeFamilyTests
         {
             var compiled = IdentityCompiler.Compile(entry, instance);
             Assert.True(compiled.Success, compiled.Error?.ToString());
-            Assert.Equal(FieldSpec.Finite(instance["p"]), compiled.Value!.Field);
+            Assert.Equal(FieldSpec.Finite(instance["p"]).Value, compiled.Value!.Field);
         }
-        Assert.Equal("GF(5^2)", Entry("x = x over GF(p^2) for p prime in 2..5").Field.Bind(new Dictionary<string, BigInteger> { ["p"] = 5 }, 4096, out _)!.ToString());
+        Assert.Equal("GF(5^2)", Entry("x = x over GF(p^2) for p prime in 2..5").Field.Bind(new Dictionary<string, BigInteger> { ["p"] = 5 }, 4096).Value.ToString());
     }
 
     [Fact]

@@ -16,15 +16,15 @@ public sealed class SmtLibWriterTests
     private static SmtScript Script(string identity, IReadOnlyDictionary<string, BigInteger>? parameters = null, HandOffLimits? limits = null)
     {
         var translation = SmtLibWriter.Translate(Some.Entry(identity), parameters, limits);
-        Assert.True(translation.Success, translation.SkipReason);
-        return new SmtScript(SmtLibWriter.Script(Sample, translation.Obligation!));
+        Assert.True(translation.Success, translation.Error?.Message);
+        return new SmtScript(SmtLibWriter.Script(Sample, translation.Value!));
     }
 
     private static string Skip(string identity, IReadOnlyDictionary<string, BigInteger>? parameters = null, HandOffLimits? limits = null)
     {
         var translation = SmtLibWriter.Translate(Some.Entry(identity), parameters, limits);
         Assert.False(translation.Success);
-        return translation.SkipReason!;
+        return translation.Error!.Message;
     }
 
     /// <summary>Whether the sides of every entry agree at <paramref name="points"/> random rational points where no divisor vanishes.</summary>
@@ -67,7 +67,7 @@ public sealed class SmtLibWriterTests
     [Fact]
     public void Script_DeclaresEveryVariable_QuotesIndexedNames_AndEndsWithCheckSat()
     {
-        var text = SmtLibWriter.Script(Sample, SmtLibWriter.Translate(Some.Entry("x[3]*a[1,2] + y = y + a[1,2]*x[3]")).Obligation!);
+        var text = SmtLibWriter.Script(Sample, SmtLibWriter.Translate(Some.Entry("x[3]*a[1,2] + y = y + a[1,2]*x[3]")).Value!);
         var script = new SmtScript(text);
         Assert.Equal("QF_NRA", script.Logic);
         Assert.Equal(["|x[3]|", "|a[1,2]|", "y"], script.Declared);
@@ -128,7 +128,7 @@ public sealed class SmtLibWriterTests
     [Fact]
     public void Division_AssertsEveryDivisorNonzero_AndComparesOverACommonDenominator()
     {
-        var text = SmtLibWriter.Script(Sample, SmtLibWriter.Translate(Some.Entry("1/(x*(x+1)) = 1/x - 1/(x+1)")).Obligation!);
+        var text = SmtLibWriter.Script(Sample, SmtLibWriter.Translate(Some.Entry("1/(x*(x+1)) = 1/x - 1/(x+1)")).Value!);
         Assert.Contains("(assert (not (= x 0)))", text);
         Assert.Contains("(assert (not (= (+ x 1) 0)))", text);
         Assert.Contains("(assert (not (= (* x (+ x 1)) 0)))", text);
@@ -141,7 +141,7 @@ public sealed class SmtLibWriterTests
     [Fact]
     public void DivisionByAConstant_IsARationalCoefficient_NotADivisor()
     {
-        var text = SmtLibWriter.Script(Sample, SmtLibWriter.Translate(Some.Entry("x/2 - y/3 = (3*x - 2*y)/6")).Obligation!);
+        var text = SmtLibWriter.Script(Sample, SmtLibWriter.Translate(Some.Entry("x/2 - y/3 = (3*x - 2*y)/6")).Value!);
         Assert.Contains("(/ 1 2)", text);
         Assert.Empty(new SmtScript(text).Divisors);
         Assert.True(AgreesAtRandomPoints(new SmtScript(text)));
@@ -170,7 +170,7 @@ public sealed class SmtLibWriterTests
     public void Inverse_AssertsItsDeterminantNonzero_AndEmptyMatricesAssertFalse()
     {
         Assert.Single(Script("inv([[a, b], [c, d]])*[[a, b], [c, d]] = id(2)").Divisors);
-        var empty = SmtLibWriter.Script(Sample, SmtLibWriter.Translate(Some.Entry("zero(0) = id(0)")).Obligation!);
+        var empty = SmtLibWriter.Script(Sample, SmtLibWriter.Translate(Some.Entry("zero(0) = id(0)")).Value!);
         Assert.Contains("(assert false)", empty);
     }
 
@@ -265,8 +265,8 @@ public sealed class SmtLibWriterTests
     {
         // n! = 3,628,800 terms if expanded naively; shared minors need about n·2^(n−1) products.
         var translation = SmtLibWriter.Translate(Some.Entry("det(matrix(i in 1..10, j in 1..10: a[i,j])) = 0"));
-        Assert.True(translation.Success, translation.SkipReason);
-        Assert.InRange(translation.Obligation!.Definitions.Count, 100, 10 * 512 * 2);
+        Assert.True(translation.Success, translation.Error?.Message);
+        Assert.InRange(translation.Value!.Definitions.Count, 100, 10 * 512 * 2);
     }
 
     [Fact]
@@ -302,7 +302,7 @@ public sealed class SmtLibWriterTests
     [Fact]
     public void PushPopBlock_WrapsOneCandidate()
     {
-        var block = SmtLibWriter.Block(Sample, SmtLibWriter.Translate(Some.Entry("x + 1 = 1 + x")).Obligation!);
+        var block = SmtLibWriter.Block(Sample, SmtLibWriter.Translate(Some.Entry("x + 1 = 1 + x")).Value!);
         Assert.Contains("(push 1)\n  (declare-const x Real)\n", block);
         Assert.EndsWith("  (check-sat)\n(pop 1)\n", block);
         Assert.DoesNotContain("set-logic", block);
