@@ -101,9 +101,10 @@ internal sealed class SparseInterpolation<TField, T>(TField field, int variables
                 var c = solver.Solve(values);
                 xs.Add(x);
                 var done = true;
+                var inverses = Inverses(xs);
                 for (var s = 0; s < t; s++)
                 {
-                    var top = AddPoint(xs, table[s], c[s]);
+                    var top = AddPoint(xs, table[s], c[s], inverses);
                     newton[s].Add(top);
                     settled[s] = field.IsZero(top) && xs.Count > 1 ? settled[s] + 1 : 0;
                     if (settled[s] < earlyTermination && !(degreeIsBound && xs.Count > maxDegree)) done = false;
@@ -191,7 +192,32 @@ internal sealed class SparseInterpolation<TField, T>(TField field, int variables
     /// Adds the value y at the newest point xs[^1] to the divided-difference row <paramref name="row"/> (row[j] = f[x_{m−j}, …, x_m]
     /// for the newest m) and returns the new top coefficient f[x_0, …, x_m].
     /// </summary>
-    private T AddPoint(List<T> xs, List<T> row, T y)
+    private T AddPoint(List<T> xs, List<T> row, T y) => AddPoint(xs, row, y, Inverses(xs));
+
+    /// <summary>1/(x_m − x_{m−j}) for j = 1 … m (index j − 1), with one inversion (Montgomery's batch trick, common practice).</summary>
+    private T[] Inverses(List<T> xs)
+    {
+        var m = xs.Count - 1;
+        var result = new T[m];
+        if (m == 0) return result;
+        var prefix = new T[m];
+        var product = field.One;
+        for (var j = 1; j <= m; j++)
+        {
+            prefix[j - 1] = product;
+            product = field.Multiply(product, field.Subtract(xs[m], xs[m - j]));
+        }
+        field.TryInvert(product, out var inverse); // the values are distinct, so the product is nonzero
+        for (var j = m; j >= 1; j--)
+        {
+            var difference = field.Subtract(xs[m], xs[m - j]);
+            result[j - 1] = field.Multiply(inverse, prefix[j - 1]);
+            inverse = field.Multiply(inverse, difference);
+        }
+        return result;
+    }
+
+    private T AddPoint(List<T> xs, List<T> row, T y, T[] inverses)
     {
         var m = xs.Count - 1;
         var current = y;
@@ -200,8 +226,7 @@ internal sealed class SparseInterpolation<TField, T>(TField field, int variables
         for (var j = 1; j <= m; j++)
         {
             // f[x_{m−j}, …, x_m] = (f[x_{m−j+1}, …, x_m] − f[x_{m−j}, …, x_{m−1}]) / (x_m − x_{m−j})
-            field.TryInvert(field.Subtract(xs[m], xs[m - j]), out var inverse);
-            current = field.Multiply(field.Subtract(current, row[j - 1]), inverse);
+            current = field.Multiply(field.Subtract(current, row[j - 1]), inverses[j - 1]);
             updated[j] = current;
         }
         row.Clear();
