@@ -25,6 +25,14 @@ public sealed class CounterexampleSearchTests
     }
 
     [Fact]
+    public void AnIdentityWithoutVariables_FailsAtTheEmptyPoint()
+    {
+        var cx = Find("2 = 3")!;
+        Assert.Equal("fails: lhs = 2, rhs = 3", cx.Describe());
+        Assert.True(cx.Exhaustive);
+    }
+
+    [Fact]
     public void APointWhereADenominatorVanishes_IsSkipped()
     {
         // 1/(xy) is undefined on the axes, where every point of max-norm ≤ 1 with |x| + |y| ≤ 1 lies; worked by hand.

@@ -72,6 +72,45 @@ public sealed class DifferenceRecoveryTests
         Assert.Equal("(lhs - rhs)[2,1] = -a*b (1 term, total degree 2)", d.Describe());
     }
 
+    [Theory]
+    [InlineData("x + 1 = x", "1", 0)]
+    [InlineData("2 = 3", "-1", 0)]
+    [InlineData("x^300*y - 3 = x*y^299", "x^300*y - x*y^299 - 3", 301)]
+    public void ConstantsAndHighDegrees_AreRecovered(string line, string text, int degree)
+    {
+        var d = Recover(line)!;
+        Assert.Equal(text, d.Text);
+        Assert.Equal(degree, d.TotalDegree);
+        Assert.True(d.Verified);
+    }
+
+    [Fact]
+    public void ACancelledRecovery_Throws()
+    {
+        using var cancelled = new CancellationTokenSource();
+        cancelled.Cancel();
+        Assert.ThrowsAny<OperationCanceledException>(() =>
+            DifferenceRecovery.Recover(Some.Compiled("(x + y)^2 = x^2"), DifferenceBudget.Default, Some.Seed, cancelled.Token));
+    }
+
+    [Fact]
+    public void ADegreeBeyondTheCap_IsNotRecovered()
+    {
+        // x^2000 exceeds MaxDegree 1000 in one variable: neither its terms nor its degree settle within the cap.
+        var d = Recover("x^2000 = 0")!;
+        Assert.Null(d.Text);
+        Assert.Null(d.EstimatedTerms);
+        Assert.Equal(-1, d.TotalDegree);
+        Assert.Equal("lhs - rhs: terms not recovered, total degree unknown", d.Describe());
+    }
+
+    [Fact]
+    public void ABadBudget_IsRejected()
+    {
+        Assert.Throws<ArgumentOutOfRangeException>(() => Recover("x = 1", new DifferenceBudget { MaxTerms = 0 }));
+        Assert.Throws<ArgumentOutOfRangeException>(() => Recover("x = 1", new DifferenceBudget { EarlyTermination = 0 }));
+    }
+
     [Fact]
     public void ARationalFunction_IsNotRecovered()
     {
