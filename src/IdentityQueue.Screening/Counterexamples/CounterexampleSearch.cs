@@ -109,7 +109,14 @@ public static class CounterexampleSearch
         /// <summary>False when a constant's denominator vanishes in the field (then no point is defined).</summary>
         public bool Ready { get; }
 
-        public double Cost(long maxAbs) => _cost(maxAbs);
+        private readonly Dictionary<long, double> _costs = [];
+
+        /// <summary>The cost of a point of max-norm <paramref name="maxAbs"/>, computed once per max-norm (a pass over the program).</summary>
+        public double Cost(long maxAbs)
+        {
+            if (!_costs.TryGetValue(maxAbs, out var cost)) _costs[maxAbs] = cost = _cost(maxAbs);
+            return cost;
+        }
 
         public Outcome Evaluate(long[] point, CancellationToken cancellation)
         {
