@@ -13,8 +13,9 @@ namespace IdentityQueue.Screening.Counterexamples;
 /// agree and the result matches the program at fresh random points over a fresh prime. Over GF(p) it interpolates in GF(p)
 /// itself (p ≥ 2^61) or in an extension GF(p^m) of at least 62 bits, so that a small p has enough points. Beyond
 /// <see cref="DifferenceBudget.MaxTerms"/> terms it gives the total degree along a random line and a lower bound on the
-/// number of terms. A difference with a nonconstant divisor (a rational function) is not recovered: see
-/// <see cref="Unsupported"/>. Stateless; thread-safe.
+/// number of terms. A difference with divisors (a rational function) is recovered as D·(lhs − rhs) over D, D the product of
+/// the registers the program inverts (not reduced to lowest terms), when no divisor has a divisor of its own; otherwise
+/// /// <see cref="Unsupported"/>. Stateless; thread-safe.
 /// </summary>
 public static class DifferenceRecovery
 {
@@ -23,8 +24,7 @@ public static class DifferenceRecovery
     {
         ArgumentNullException.ThrowIfNull(compiled);
         if (compiled.Field.IsSeries) return "a power series identity";
-        if (!compiled.Bounds.DivisorDegree.IsZero) return "not a polynomial";
-        return null;
+        return Divisors(compiled.Program) is null ? "not a polynomial, and a divisor has a divisor of its own" : null;
     }
 
     /// <summary>
@@ -43,14 +43,96 @@ public static class DifferenceRecovery
         var bound = compiled.Bounds.Degree;
         var degreeIsBound = bound <= budget.MaxDegree;
         var cap = degreeIsBound ? (int)bound : budget.MaxDegree;
-        var run = new Run(compiled, budget, cap, degreeIsBound, cancellation);
-        if (compiled.Field.IsRationals) return run.OverQ(ref random);
-        var p = compiled.Field.Characteristic;
-        var prime = BigPrimeField.Create(p);
-        if (p.GetBitLength() >= 62) return run.OverFiniteField<BigPrimeField, BigResidue>(prime, ref random);
-        var m = (int)Math.Ceiling(62 / BigInteger.Log(p, 2));
-        var extension = ExtensionField<BigPrimeField, BigResidue>.Create(prime, m, ref random);
-        return run.OverFiniteField<ExtensionField<BigPrimeField, BigResidue>, ExtElement<BigResidue>>(extension, ref random);
+        var divisors = Divisors(program)!;
+        // With divisors, the parts are D·(lhs − rhs) and D, D the product of the divisors: no proven degree bound for them.
+        var run = new Run(compiled, budget, cap, degreeIsBound && divisors.Length == 0, divisors, cancellation);
+        try
+        {
+            if (compiled.Field.IsRationals)
+            {
+                var numeratorQ = run.OverQ(ref random);
+                if (numeratorQ is null || divisors.Length == 0) return numeratorQ;
+                run.Denominator = true;
+                return Combine(numeratorQ, run.OverQ(ref random));
+            }
+            var p = compiled.Field.Characteristic;
+            var prime = BigPrimeField.Create(p);
+            if (p.GetBitLength() >= 62)
+            {
+                var numeratorP = run.OverFiniteField<BigPrimeField, BigResidue>(prime, ref random);
+                if (numeratorP is null || divisors.Length == 0) return numeratorP;
+                run.Denominator = true;
+                return Combine(numeratorP, run.OverFiniteField<BigPrimeField, BigResidue>(prime, ref random));
+            }
+            var m = (int)Math.Ceiling(62 / BigInteger.Log(p, 2));
+            var extension = ExtensionField<BigPrimeField, BigResidue>.Create(prime, m, ref random);
+            var numerator = run.OverFiniteField<ExtensionField<BigPrimeField, BigResidue>, ExtElement<BigResidue>>(extension, ref random);
+            if (numerator is null || divisors.Length == 0) return numerator;
+            run.Denominator = true;
+            return Combine(numerator, run.OverFiniteField<ExtensionField<BigPrimeField, BigResidue>, ExtElement<BigResidue>>(extension, ref random));
+        }
+        catch (DivideByZeroException)
+        {
+            return null; // a random point hit a zero of a divisor (probability about its degree over 2^62)
+        }
+    }
+
+    /// <summary>The numerator D·(lhs − rhs) with the denominator D beside it; neither text when either was not recovered.</summary>
+    private static RecoveredDifference Combine(RecoveredDifference numerator, RecoveredDifference? denominator) =>
+        numerator.Text is null || denominator?.Text is null
+            ? numerator with { Text = null, Terms = null, TermList = null, Verified = false }
+            : numerator with
+            {
+                DenominatorText = denominator.Text,
+                DenominatorTerms = denominator.TermList,
+                Verified = numerator.Verified && denominator.Verified,
+            };
+
+    /// <summary>
+    /// The registers the program divides by that depend on a variable (the operands of its inversions), or null when one of
+    /// them itself divides by such a register (then their product does not clear the difference's denominator).
+    /// </summary>
+    internal static int[]? Divisors(StraightLineProgram program)
+    {
+        var instructions = program.Instructions;
+        var variable = new bool[instructions.Length]; // depends on a variable
+        var divides = new bool[instructions.Length];  // divides by something that depends on a variable
+        var divisors = new List<int>();
+        for (var i = 0; i < instructions.Length; i++)
+        {
+            var ins = instructions[i];
+            switch (ins.Op)
+            {
+                case OpCode.Constant: break;
+                case OpCode.Variable: variable[i] = true; break;
+                case OpCode.Add or OpCode.Subtract or OpCode.Multiply:
+                    variable[i] = variable[ins.A] || variable[ins.B];
+                    divides[i] = divides[ins.A] || divides[ins.B];
+                    break;
+                case OpCode.Negate or OpCode.Power:
+                    variable[i] = variable[ins.A];
+                    divides[i] = divides[ins.A];
+                    break;
+                case OpCode.Invert:
+                    variable[i] = variable[ins.A];
+                    if (variable[ins.A])
+                    {
+                        if (divides[ins.A]) return null;
+                        divisors.Add(ins.A);
+                        divides[i] = true;
+                    }
+                    else divides[i] = divides[ins.A];
+                    break;
+                default: // Determinant, Permanent, Pfaffian: operands are Operands[A .. A + B·B]
+                    for (var k = ins.A; k < ins.A + ins.B * ins.B; k++)
+                    {
+                        variable[i] |= variable[program.Operands[k]];
+                        divides[i] |= divides[program.Operands[k]];
+                    }
+                    break;
+            }
+        }
+        return divisors.ToArray();
     }
 
     /// <summary>Wang's rational reconstruction: a/b ≡ u (mod M) with |a|, b ≤ √(M/2), or false when there is none.</summary>
@@ -84,8 +166,11 @@ public static class DifferenceRecovery
         }
     }
 
-    private sealed class Run(CompiledIdentity compiled, DifferenceBudget budget, int cap, bool degreeIsBound, CancellationToken cancellation)
+    private sealed class Run(CompiledIdentity compiled, DifferenceBudget budget, int cap, bool degreeIsBound, int[] divisors, CancellationToken cancellation)
     {
+        /// <summary>False: interpolate D·(lhs − rhs) (lhs − rhs itself without divisors); true: interpolate D.</summary>
+        public bool Denominator { get; set; }
+
         private readonly StraightLineProgram _program = compiled.Program;
         private long _evaluations;
 
@@ -96,11 +181,14 @@ public static class DifferenceRecovery
         {
             var registers = new T[_program.Length];
             var register = _program.Outputs[output];
+            var denominator = Denominator;
             return point =>
             {
                 if (!Evaluator.Evaluate<TField, T>(field, _program, constants, point, registers, cancellation))
-                    throw new InvalidOperationException("a polynomial program had a division by zero"); // a divisor of degree 0 is a constant, prepared already
-                return registers[register];
+                    throw new DivideByZeroException(); // a divisor vanished at the point
+                var value = denominator ? field.One : registers[register];
+                foreach (var d in divisors) value = field.Multiply(value, registers[d]);
+                return value;
             };
         }
 

@@ -112,11 +112,61 @@ public sealed class DifferenceRecoveryTests
     }
 
     [Fact]
-    public void ARationalFunction_IsNotRecovered()
+    public void ARationalFunction_IsRecoveredOverTheProductOfItsDivisors()
     {
-        var compiled = Some.Compiled("1/x = x");
-        Assert.Equal("not a polynomial", DifferenceRecovery.Unsupported(compiled));
+        // 1/x − x = (1 − x²)/x; x/(x+y) + y/(x+y) − 2 = (x + y)(…)/(x + y) = (−x − y)/(x + y), not reduced (worked by hand).
+        var d = Recover("1/x = x")!;
+        Assert.Equal("-x^2 + 1", d.Text);
+        Assert.Equal("x", d.DenominatorText);
+        Assert.True(d.Verified);
+        Assert.Equal("lhs - rhs = (-x^2 + 1)/(x) (numerator: 2 terms, total degree 2)", d.Describe());
+        var sum = Recover("x/(x + y) + y/(x + y) = 2")!;
+        Assert.Equal("-x - y", sum.Text);
+        Assert.Equal("x + y", sum.DenominatorText);
+    }
+
+    [Fact]
+    public void ADivisorWithADivisorOfItsOwn_IsNotRecovered()
+    {
+        var compiled = Some.Compiled("1/(1/x + 1) = x");
+        Assert.Equal("not a polynomial, and a divisor has a divisor of its own", DifferenceRecovery.Unsupported(compiled));
         Assert.Null(DifferenceRecovery.Recover(compiled, DifferenceBudget.Default, Some.Seed));
+    }
+
+    [SympyFact]
+    public void RationalDifferences_AgreeWithSympy()
+    {
+        // The oracle: sympy's cancel(N/D − (lhs − rhs)) is 0 for the recovered numerator N and denominator D.
+        string[] lines =
+        [
+            "1/x + 1/y = 2/(x + y)",
+            "(x^2 - y^2)/(x - y) = x + 2*y",
+            "1/(x*y) - 3/(x + 1) = x/(y^2 + 1)",
+            "(a + b)^2/(a*b) = a/b + b/a + 3",
+            "x/(x - 1) + 1/(1 - x) = 1 + 1/x^3",
+        ];
+        var checks = new List<string>();
+        foreach (var line in lines)
+        {
+            var d = Recover(line)!;
+            Assert.True(d is { Verified: true, DenominatorText: not null }, $"{line}: {d?.Describe()}");
+            var sides = line.Split(" = ");
+            checks.Add($"({d!.Text})/({d.DenominatorText}) - (({sides[0]}) - ({sides[1]}))");
+        }
+        var program = "import sys, sympy\n"
+            + "for t in sys.argv[1:]:\n"
+            + "    print(sympy.cancel(sympy.sympify(t.replace('^', '**'))))\n";
+        var start = new ProcessStartInfo(SympyFactAttribute.Python, ["-c", program, .. checks])
+        {
+            RedirectStandardOutput = true,
+            RedirectStandardError = true,
+        };
+        using var process = Process.Start(start)!;
+        var output = process.StandardOutput.ReadToEnd();
+        var errors = process.StandardError.ReadToEnd();
+        process.WaitForExit();
+        Assert.True(process.ExitCode == 0, errors);
+        Assert.Equal(Enumerable.Repeat("0", lines.Length), output.Split('\n', StringSplitOptions.RemoveEmptyEntries));
     }
 
     [Fact]
