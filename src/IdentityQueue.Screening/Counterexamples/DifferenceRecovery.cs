@@ -14,8 +14,9 @@ namespace IdentityQueue.Screening.Counterexamples;
 /// itself (p ≥ 2^61) or in an extension GF(p^m) of at least 62 bits, so that a small p has enough points. Beyond
 /// <see cref="DifferenceBudget.MaxTerms"/> terms it gives the total degree along a random line and a lower bound on the
 /// number of terms. A difference with divisors (a rational function) is recovered as D·(lhs − rhs) over D, D the product of
-/// the registers the program inverts (not reduced to lowest terms), when no divisor has a divisor of its own; otherwise
-/// /// <see cref="Unsupported"/>. Stateless; thread-safe.
+/// the registers the program inverts, each to the highest power in which it can divide (not reduced to lowest terms), when
+/// no divisor has a divisor of its own; otherwise it is not recovered (<see cref="Unsupported"/> says why). Stateless;
+/// thread-safe.
 /// </summary>
 public static class DifferenceRecovery
 {
@@ -24,7 +25,9 @@ public static class DifferenceRecovery
     {
         ArgumentNullException.ThrowIfNull(compiled);
         if (compiled.Field.IsSeries) return "a power series identity";
-        return Divisors(compiled.Program) is null ? "not a polynomial, and a divisor has a divisor of its own" : null;
+        return Divisors(compiled.Program) is null
+            ? $"not a polynomial, and a divisor has a divisor of its own or divides in a power above {MaxDivisorPower}"
+            : null;
     }
 
     /// <summary>
@@ -42,8 +45,8 @@ public static class DifferenceRecovery
         var program = compiled.Program;
         var bound = compiled.Bounds.Degree;
         var degreeIsBound = bound <= budget.MaxDegree;
-        var cap = degreeIsBound ? (int)bound : budget.MaxDegree;
         var divisors = Divisors(program)!;
+        var cap = degreeIsBound && divisors.Length == 0 ? (int)bound : budget.MaxDegree;
         // With divisors, the parts are D·(lhs − rhs) and D, D the product of the divisors: no proven degree bound for them.
         var run = new Run(compiled, budget, cap, degreeIsBound && divisors.Length == 0, divisors, cancellation);
         try
@@ -88,16 +91,19 @@ public static class DifferenceRecovery
                 Verified = numerator.Verified && denominator.Verified,
             };
 
+    /// <summary>Highest power of one divisor in the denominator that is cleared; beyond, the difference is not recovered.</summary>
+    private const int MaxDivisorPower = 1_000;
+
     /// <summary>
-    /// The registers the program divides by that depend on a variable (the operands of its inversions), or null when one of
-    /// them itself divides by such a register (then their product does not clear the difference's denominator).
+    /// The registers the program divides by that depend on a variable (the operands of its inversions), each with the
+    /// highest power in which it can divide an entry of lhs − rhs, so that their product D makes D·(lhs − rhs) a polynomial;
+    /// null when a divisor itself divides by such a register, or a power exceeds <see cref="MaxDivisorPower"/>.
     /// </summary>
-    internal static int[]? Divisors(StraightLineProgram program)
+    internal static (int Register, int Power)[]? Divisors(StraightLineProgram program)
     {
         var instructions = program.Instructions;
-        var variable = new bool[instructions.Length]; // depends on a variable
-        var divides = new bool[instructions.Length];  // divides by something that depends on a variable
-        var divisors = new List<int>();
+        var variable = new bool[instructions.Length];            // depends on a variable
+        var powers = new Dictionary<int, int>?[instructions.Length]; // divisor → highest power in the denominator
         for (var i = 0; i < instructions.Length; i++)
         {
             var ins = instructions[i];
@@ -105,34 +111,59 @@ public static class DifferenceRecovery
             {
                 case OpCode.Constant: break;
                 case OpCode.Variable: variable[i] = true; break;
-                case OpCode.Add or OpCode.Subtract or OpCode.Multiply:
+                case OpCode.Add or OpCode.Subtract:
                     variable[i] = variable[ins.A] || variable[ins.B];
-                    divides[i] = divides[ins.A] || divides[ins.B];
+                    powers[i] = Combine(powers[ins.A], powers[ins.B], Math.Max);
                     break;
-                case OpCode.Negate or OpCode.Power:
+                case OpCode.Multiply:
+                    variable[i] = variable[ins.A] || variable[ins.B];
+                    powers[i] = Combine(powers[ins.A], powers[ins.B], (a, b) => a + b);
+                    break;
+                case OpCode.Negate:
                     variable[i] = variable[ins.A];
-                    divides[i] = divides[ins.A];
+                    powers[i] = powers[ins.A];
+                    break;
+                case OpCode.Power:
+                    variable[i] = variable[ins.A];
+                    if (powers[ins.A] is { } divided)
+                    {
+                        var e = program.Exponents[ins.B];
+                        if (e > MaxDivisorPower) return null;
+                        powers[i] = divided.ToDictionary(kv => kv.Key, kv => kv.Value * (int)e);
+                    }
                     break;
                 case OpCode.Invert:
                     variable[i] = variable[ins.A];
                     if (variable[ins.A])
                     {
-                        if (divides[ins.A]) return null;
-                        divisors.Add(ins.A);
-                        divides[i] = true;
+                        if (powers[ins.A] is not null) return null;
+                        powers[i] = new Dictionary<int, int> { [ins.A] = 1 };
                     }
-                    else divides[i] = divides[ins.A];
                     break;
-                default: // Determinant, Permanent, Pfaffian: operands are Operands[A .. A + B·B]
+                default: // Determinant, Permanent, Pfaffian of a B×B matrix: a sum of products of at most B of the entries
+                    Dictionary<int, int>? entries = null;
                     for (var k = ins.A; k < ins.A + ins.B * ins.B; k++)
                     {
                         variable[i] |= variable[program.Operands[k]];
-                        divides[i] |= divides[program.Operands[k]];
+                        entries = Combine(entries, powers[program.Operands[k]], Math.Max);
                     }
+                    powers[i] = entries?.ToDictionary(kv => kv.Key, kv => kv.Value * ins.B);
                     break;
             }
+            if (powers[i] is { } p && p.Values.Any(v => v > MaxDivisorPower)) return null;
         }
-        return divisors.ToArray();
+        Dictionary<int, int>? all = null;
+        for (var o = program.ConditionNames.Length; o < program.Outputs.Length; o++) all = Combine(all, powers[program.Outputs[o]], Math.Max);
+        return all is null ? [] : all.OrderBy(kv => kv.Key).Select(kv => (kv.Key, kv.Value)).ToArray();
+    }
+
+    private static Dictionary<int, int>? Combine(Dictionary<int, int>? a, Dictionary<int, int>? b, Func<int, int, int> merge)
+    {
+        if (a is null) return b;
+        if (b is null) return a;
+        var result = new Dictionary<int, int>(a);
+        foreach (var (k, v) in b) result[k] = result.TryGetValue(k, out var w) ? merge(w, v) : v;
+        return result;
     }
 
     /// <summary>Wang's rational reconstruction: a/b ≡ u (mod M) with |a|, b ≤ √(M/2), or false when there is none.</summary>
@@ -166,7 +197,7 @@ public static class DifferenceRecovery
         }
     }
 
-    private sealed class Run(CompiledIdentity compiled, DifferenceBudget budget, int cap, bool degreeIsBound, int[] divisors, CancellationToken cancellation)
+    private sealed class Run(CompiledIdentity compiled, DifferenceBudget budget, int cap, bool degreeIsBound, (int Register, int Power)[] divisors, CancellationToken cancellation)
     {
         /// <summary>False: interpolate D·(lhs − rhs) (lhs − rhs itself without divisors); true: interpolate D.</summary>
         public bool Denominator { get; set; }
@@ -187,7 +218,8 @@ public static class DifferenceRecovery
                 if (!Evaluator.Evaluate<TField, T>(field, _program, constants, point, registers, cancellation))
                     throw new DivideByZeroException(); // a divisor vanished at the point
                 var value = denominator ? field.One : registers[register];
-                foreach (var d in divisors) value = field.Multiply(value, registers[d]);
+                foreach (var (d, power) in divisors)
+                    for (var k = 0; k < power; k++) value = field.Multiply(value, registers[d]);
                 return value;
             };
         }
