@@ -5,7 +5,8 @@ namespace IdentityQueue.Algebra.Fields;
 /// <summary>An element of <see cref="BigPrimeField"/>: the standard representative in [0, p). Immutable value type.</summary>
 public readonly struct BigResidue : IEquatable<BigResidue>
 {
-    internal readonly BigInteger Value;
+    /// <summary>The residue as an integer in [0, p).</summary>
+    public BigInteger Value { get; }
 
     internal BigResidue(BigInteger reduced) => Value = reduced;
 
