@@ -24,6 +24,21 @@ public sealed record ScreeningPolicy
     public long MaxCertifyBits { get; init; } = 1 << 22;
 
     /// <summary>
+    /// After a refutation, look for the smallest integer counterexample and recover the difference
+    /// (<see cref="Counterexamples.RefutationDetails"/>); off, a refutation keeps only its witness.
+    /// </summary>
+    public bool RefutationDetails { get; init; } = true;
+
+    /// <summary>Most time those two searches may take together for one refuted candidate (within its <see cref="TimeBudget"/>).</summary>
+    public TimeSpan RefutationDetailTime { get; init; } = TimeSpan.FromSeconds(2);
+
+    /// <summary>The counterexample search's budget (points in the exhaustive box, lines, exact-evaluation size).</summary>
+    public Counterexamples.CounterexampleBudget CounterexampleBudget { get; init; } = Counterexamples.CounterexampleBudget.Default;
+
+    /// <summary>The difference recovery's budget (terms written out, degrees, primes).</summary>
+    public Counterexamples.DifferenceBudget DifferenceBudget { get; init; } = Counterexamples.DifferenceBudget.Default;
+
+    /// <summary>
     /// The worker's stages, in the order they are planned: every candidate's first stage (no zero trial stored yet: its
     /// trials on the cheapest rung) before any candidate's rest, so that a partial run holds nearly all refutations.
     /// </summary>

@@ -1,6 +1,7 @@
 using System.ComponentModel;
 using Hangfire;
 using IdentityQueue.Screening;
+using IdentityQueue.Screening.Counterexamples;
 using IdentityQueue.Screening.Ports;
 using Microsoft.Extensions.Logging;
 
@@ -136,7 +137,11 @@ public sealed class ScreeningJob(IWorkSource source, IOutcomeSink sink, WorkerSe
         stats.Begin(work.Id, work.Label);
         try
         {
-            return CandidateOutcome.Screened(work.Id, Screener.Screen(prepared.Identity!, prepared.Options!, work.Key, work.Trials, cancellation));
+            var result = Screener.Screen(prepared.Identity!, prepared.Options!, work.Key, work.Trials, cancellation);
+            var outcome = CandidateOutcome.Screened(work.Id, result);
+            if (result.Verdict != Verdict.Refuted || !settings.Policy.RefutationDetails) return outcome;
+            // a later, budgeted stage: where and how the refuted identity fails (the smallest counterexample, the difference)
+            return outcome with { Details = RefutationDetails.Find(prepared.Identity!, settings.Policy, work.Key, clock, cancellation) };
         }
         catch (Exception e) when (e is not OutOfMemoryException and not OperationCanceledException)
         {

@@ -68,6 +68,9 @@ public sealed record CandidateOutcome
     /// <summary>The screen's message, or why the candidate is invalid or failed.</summary>
     public string? Message { get; }
 
+    /// <summary>For a refuted candidate: its smallest counterexample and recovered difference, when they were looked for and found.</summary>
+    public Counterexamples.RefutationDetails? Details { get; init; }
+
     [MemberNotNullWhen(true, nameof(Screen))]
     public bool IsScreened => Kind == OutcomeKind.Screened;
 
