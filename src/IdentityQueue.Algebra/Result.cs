@@ -5,23 +5,24 @@ namespace IdentityQueue.Algebra;
 
 /// <summary>
 /// The one failure convention of every layer: either a value or a <see cref="Diagnostic"/> (a message with its position
-/// when it has one). Never throws; <see cref="Success"/> tells the compiler which of the two is there.
+/// when it has one). Making one never throws; <see cref="Success"/> says which of the two is there.
 /// </summary>
 public readonly struct Result<T>
 {
+    private readonly T? _value;
+
     private Result(T? value, Diagnostic? error)
     {
-        Value = value;
+        _value = value;
         Error = error;
     }
 
-    /// <summary>The value; not null when <see cref="Success"/>.</summary>
-    public T? Value { get; }
+    /// <summary>The value; reading it from a failure throws with the diagnostic (check <see cref="Success"/> first).</summary>
+    public T Value => Error is null ? _value! : throw new InvalidOperationException($"failed: {Error}");
 
     /// <summary>What went wrong, with its position; not null when not <see cref="Success"/>.</summary>
     public Diagnostic? Error { get; }
 
-    [MemberNotNullWhen(true, nameof(Value))]
     [MemberNotNullWhen(false, nameof(Error))]
     public bool Success => Error is null;
 
@@ -38,8 +39,5 @@ public readonly struct Result<T>
     public Result<TOther> Cast<TOther>() =>
         Success ? throw new InvalidOperationException("only a failure can change its value type") : Result<TOther>.Fail(Error);
 
-    /// <summary>The value; throws with the diagnostic when there is none (for callers that checked already, and tests).</summary>
-    public T ValueOrThrow() => Success ? Value : throw new InvalidOperationException($"failed: {Error}");
-
-    public override string ToString() => Success ? $"Ok({Value})" : $"Fail({Error})";
+    public override string ToString() => Success ? $"Ok({_value})" : $"Fail({Error})";
 }

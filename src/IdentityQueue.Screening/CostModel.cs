@@ -157,7 +157,7 @@ public sealed class CostModel
 
     private static CompiledIdentity Compile(string text, FieldSpec field)
     {
-        var entry = CatalogueParser.ParseIdentity(text).ValueOrThrow() with { Field = field };
+        var entry = CatalogueParser.ParseIdentity(text).Value with { Field = field };
         return IdentityCompiler.Compile(entry).Value!;
     }
 

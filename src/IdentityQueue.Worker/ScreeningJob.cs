@@ -71,14 +71,18 @@ public sealed class ScreeningJob(IScreeningStore store, WorkerSettings settings,
     }
 
     /// <summary>
-    /// A compile error of a stored candidate: its catalogue line (the stored position) and the column in the stored side,
-    /// which is the catalogue's side as printed by the importer (`idq show` prints it), with the side and the values:
-    /// "line 36, column 20 of the stored rhs, at n=2, j=1: …".
+    /// A compile error of a stored candidate, pointing at its catalogue line: "line 36, column 20, rhs, at n=2, j=1: …"
+    /// when the stored side is the text as written there (its column is stored), else the column inside the stored side,
+    /// "line 36, column 20 of the stored rhs, at n=2, j=1: …" (a side written out from definitions, a hand-inserted row).
     /// </summary>
     internal static string StoredMessage(Algebra.Syntax.IdentityEntry entry, Algebra.Syntax.Diagnostic error)
     {
         if (error.Side is null) return $"line {entry.Line}: {error}";
-        return $"line {entry.Line}, column {error.Position.Column} of the stored {error.Side}{(error.Values is null ? "" : $", {error.Values}")}: {error.Message}";
+        var values = error.Values is null ? "" : $", {error.Values}";
+        var span = error.Side == "lhs" ? entry.LeftSpan : error.Side == "rhs" ? entry.RightSpan : null;
+        return span is { } s
+            ? $"line {entry.Line}, column {s.Column + error.Position.Column - 1}, {error.Side}{values}: {error.Message}"
+            : $"line {entry.Line}, column {error.Position.Column} of the stored {error.Side}{values}: {error.Message}";
     }
 
     /// <summary>A graceful stop: what is screened is saved (a candidate stopped mid-screen with its finished trials, as pending), the rest goes back to pending.</summary>

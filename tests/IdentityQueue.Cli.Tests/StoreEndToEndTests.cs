@@ -103,6 +103,8 @@ public sealed class StoreEndToEndTests : IDisposable
         var family = Query(Db, "SELECT instances, survived, refuted, first_refuted FROM families WHERE family = 'vdm-reversed'").Single();
         Assert.Equal((6L, 2L, 4L), ((long)family[0]!, (long)family[1]!, (long)family[2]!));
         Assert.Contains("\"n\":2", ((string)family[3]!).Replace(" ", ""));
+        // refuted at n = 2, 3, 6, 7 and survived at 4, 5 (the states asserted above), as runs of instances
+        Assert.Equal(["4..5", "2..3, 6..7"], Query(Db, "SELECT holds_for, fails_for FROM families WHERE family = 'vdm-reversed'").Single());
 
         Assert.Equal(0, Idq("recheck", "--all", "--db", Db).Code);
     }
@@ -218,19 +220,60 @@ public sealed class StoreEndToEndTests : IDisposable
         Assert.Equal(0, Idq("recheck", "--all", "--db", Db).Code);
     }
 
-    // A screening-time invalid names the catalogue line, the column in the stored side (as idq show prints it), the side
-    // and the values of the parameters and bound variables.
+    // Where a family breaks. Moser's circle problem: n points on a circle joined by all chords cut it into
+    // 1, 2, 4, 8, 16 regions for n = 1..5 but 31 (not 32) for n = 6; the count is sum(k in 0..4: binom(n-1, k))
+    // (R. K. Guy, "The strong law of small numbers", Amer. Math. Monthly 95 (1988), example 4). So "= 2^(n-1)" holds
+    // for n = 1..5 and fails for every n >= 6. (-1)^n = 1 holds exactly at the even n (common practice): runs of one value.
     [Fact]
-    public void InvalidAtScreening_NamesTheLineTheSideAndTheValues()
+    public void FamiliesView_SaysForWhichValuesAFamilyHoldsAndFails()
+    {
+        var file = Path.Combine(_dir, "m.idq");
+        File.WriteAllText(file, """
+            moser: sum(k in 0..4: binom(n-1, k)) = 2^(n-1) for n in 1..10
+            parity: (-1)^n = 1 for n in -3..3
+            two: x^(m+n) = x^m*x^n for m in 0..1, n in 0..1
+            """);
+        Idq("init", "--db", Db);
+        Idq("import", file, "--db", Db);
+        Assert.Equal(0, Idq("run", "--db", Db).Code);
+        var rows = Query(Db, "SELECT family, holds_for, fails_for, first_refuted FROM families ORDER BY family");
+        Assert.Equal(["moser", "1..5", "6..10", "{\"n\":6}"], rows[0]);
+        Assert.Equal(["parity", "-2, 0, 2", "-3, -1, 1, 3", "{\"n\":-3}"], rows[1]);
+        // two parameters: no ranges in one parameter (the report shows a grid)
+        Assert.Equal(["two", null, null, null], rows[2]);
+    }
+
+    // A screening-time invalid names the catalogue line and the column in that line (the stored side is the text as
+    // written, and the column where it starts is stored), the side and the values of the parameters and bound variables.
+    // Columns counted by hand on the lines below.
+    [Fact]
+    public void InvalidAtScreening_NamesTheLineTheColumnTheSideAndTheValues()
     {
         var file = Path.Combine(_dir, "i.idq");
-        File.WriteAllText(file, "# first line\nok: x = x\nbad: x + sum(j in 0..n: x^j/(j-1)) = 0 for n in 2..3\n");
+        File.WriteAllText(file, "# first line\nok: x = x\nbad: x + sum(j in 0..n: x^j/(j-1)) = 0 for n in 2..3\nbad-rhs:   x   =   x + fact(n - 3)*0   for n in 2..2\n");
         Idq("init", "--db", Db);
         Idq("import", file, "--db", Db);
         Idq("run", "--db", Db);
         var rows = Query(Db, "SELECT label, message FROM verdicts WHERE state = 'invalid' ORDER BY label");
-        Assert.Equal("line 3, column 23 of the stored lhs, at n=2, j=1: division by zero", rows[0][1]);
-        Assert.Equal("line 3, column 23 of the stored lhs, at n=3, j=1: division by zero", rows[1][1]);
+        // "bad-rhs:   x   =   x + fact(n - 3)*0": fact's argument starts at column 29.
+        Assert.Equal("bad-rhs[n=2]", rows[0][0]);
+        Assert.StartsWith("line 4, column 29, rhs, at n=2: ", (string)rows[0][1]!);
+        // "bad: x + sum(j in 0..n: x^j/(j-1)) = 0": the '/' is column 28 of the line.
+        Assert.Equal("line 3, column 28, lhs, at n=2, j=1: division by zero", rows[1][1]);
+        Assert.Equal("line 3, column 28, lhs, at n=3, j=1: division by zero", rows[2][1]);
+    }
+
+    // A .jsonl object's sides are its fields: the column is counted inside the stored side, which is the field as written.
+    [Fact]
+    public void InvalidAtScreening_OfAJsonlLine_CountsInTheStoredSide()
+    {
+        var file = Path.Combine(_dir, "i.jsonl");
+        File.WriteAllText(file, "{\"label\": \"bad\", \"lhs\": \"x + sum(j in 0..n: x^j/(j-1))\", \"rhs\": \"x\", \"for\": {\"n\": [2, 2]}}\n");
+        Idq("init", "--db", Db);
+        Idq("import", file, "--db", Db);
+        Idq("run", "--db", Db);
+        var rows = Query(Db, "SELECT label, message FROM verdicts WHERE state = 'invalid'");
+        Assert.Equal("line 1, column 23 of the stored lhs, at n=2, j=1: division by zero", rows[0][1]);
     }
 
     [Fact]

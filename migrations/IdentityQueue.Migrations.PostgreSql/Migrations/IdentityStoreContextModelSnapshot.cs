@@ -62,6 +62,10 @@ namespace IdentityQueue.Migrations.PostgreSql.Migrations
                         .HasColumnType("text")
                         .HasColumnName("lhs");
 
+                    b.Property<int?>("LhsColumn")
+                        .HasColumnType("integer")
+                        .HasColumnName("lhs_column");
+
                     b.Property<string>("Params")
                         .HasColumnType("text")
                         .HasColumnName("params");
@@ -74,6 +78,10 @@ namespace IdentityQueue.Migrations.PostgreSql.Migrations
                         .IsRequired()
                         .HasColumnType("text")
                         .HasColumnName("rhs");
+
+                    b.Property<int?>("RhsColumn")
+                        .HasColumnType("integer")
+                        .HasColumnName("rhs_column");
 
                     b.HasKey("Id")
                         .HasName("pk_candidate");
@@ -149,6 +157,112 @@ namespace IdentityQueue.Migrations.PostgreSql.Migrations
                         .HasDatabaseName("ux_catalogue_name");
 
                     b.ToTable("catalogue", (string)null);
+                });
+
+            modelBuilder.Entity("IdentityQueue.Store.Schema.CounterexampleRow", b =>
+                {
+                    b.Property<long>("CandidateId")
+                        .HasColumnType("bigint")
+                        .HasColumnName("candidate_id");
+
+                    b.Property<DateTime>("CreatedAt")
+                        .ValueGeneratedOnAdd()
+                        .HasColumnType("timestamp with time zone")
+                        .HasColumnName("created_at")
+                        .HasDefaultValueSql("CURRENT_TIMESTAMP");
+
+                    b.Property<string>("Entry")
+                        .HasColumnType("text")
+                        .HasColumnName("entry");
+
+                    b.Property<bool>("Exhaustive")
+                        .HasColumnType("boolean")
+                        .HasColumnName("exhaustive");
+
+                    b.Property<string>("LhsValue")
+                        .IsRequired()
+                        .HasColumnType("text")
+                        .HasColumnName("lhs_value");
+
+                    b.Property<long>("MaxAbs")
+                        .HasColumnType("bigint")
+                        .HasColumnName("max_abs");
+
+                    b.Property<string>("Point")
+                        .IsRequired()
+                        .HasColumnType("text")
+                        .HasColumnName("point");
+
+                    b.Property<long>("PointsTried")
+                        .HasColumnType("bigint")
+                        .HasColumnName("points_tried");
+
+                    b.Property<string>("RhsValue")
+                        .IsRequired()
+                        .HasColumnType("text")
+                        .HasColumnName("rhs_value");
+
+                    b.HasKey("CandidateId")
+                        .HasName("pk_counterexample");
+
+                    b.ToTable("counterexample", (string)null);
+                });
+
+            modelBuilder.Entity("IdentityQueue.Store.Schema.EquivalenceRow", b =>
+                {
+                    b.Property<long>("CandidateId")
+                        .HasColumnType("bigint")
+                        .HasColumnName("candidate_id");
+
+                    b.Property<long>("GroupCandidateId")
+                        .HasColumnType("bigint")
+                        .HasColumnName("group_candidate_id");
+
+                    b.Property<bool>("Swapped")
+                        .HasColumnType("boolean")
+                        .HasColumnName("swapped");
+
+                    b.HasKey("CandidateId")
+                        .HasName("pk_equivalence");
+
+                    b.HasIndex("GroupCandidateId")
+                        .HasDatabaseName("ix_equivalence_group");
+
+                    b.ToTable("equivalence", (string)null);
+                });
+
+            modelBuilder.Entity("IdentityQueue.Store.Schema.RecoveredDifferenceRow", b =>
+                {
+                    b.Property<long>("CandidateId")
+                        .HasColumnType("bigint")
+                        .HasColumnName("candidate_id");
+
+                    b.Property<DateTime>("CreatedAt")
+                        .ValueGeneratedOnAdd()
+                        .HasColumnType("timestamp with time zone")
+                        .HasColumnName("created_at")
+                        .HasDefaultValueSql("CURRENT_TIMESTAMP");
+
+                    b.Property<string>("Difference")
+                        .HasColumnType("text")
+                        .HasColumnName("difference");
+
+                    b.Property<long?>("Terms")
+                        .HasColumnType("bigint")
+                        .HasColumnName("terms");
+
+                    b.Property<bool>("TermsEstimated")
+                        .HasColumnType("boolean")
+                        .HasColumnName("terms_estimated");
+
+                    b.Property<int?>("TotalDegree")
+                        .HasColumnType("integer")
+                        .HasColumnName("total_degree");
+
+                    b.HasKey("CandidateId")
+                        .HasName("pk_recovered_difference");
+
+                    b.ToTable("recovered_difference", (string)null);
                 });
 
             modelBuilder.Entity("IdentityQueue.Store.Schema.RejectionRow", b =>
@@ -429,6 +543,43 @@ namespace IdentityQueue.Migrations.PostgreSql.Migrations
                         .OnDelete(DeleteBehavior.Cascade)
                         .IsRequired()
                         .HasConstraintName("fk_candidate_catalogue");
+                });
+
+            modelBuilder.Entity("IdentityQueue.Store.Schema.CounterexampleRow", b =>
+                {
+                    b.HasOne("IdentityQueue.Store.Schema.CandidateRow", null)
+                        .WithOne()
+                        .HasForeignKey("IdentityQueue.Store.Schema.CounterexampleRow", "CandidateId")
+                        .OnDelete(DeleteBehavior.Cascade)
+                        .IsRequired()
+                        .HasConstraintName("fk_counterexample_candidate");
+                });
+
+            modelBuilder.Entity("IdentityQueue.Store.Schema.EquivalenceRow", b =>
+                {
+                    b.HasOne("IdentityQueue.Store.Schema.CandidateRow", null)
+                        .WithOne()
+                        .HasForeignKey("IdentityQueue.Store.Schema.EquivalenceRow", "CandidateId")
+                        .OnDelete(DeleteBehavior.Cascade)
+                        .IsRequired()
+                        .HasConstraintName("fk_equivalence_candidate");
+
+                    b.HasOne("IdentityQueue.Store.Schema.CandidateRow", null)
+                        .WithMany()
+                        .HasForeignKey("GroupCandidateId")
+                        .OnDelete(DeleteBehavior.Cascade)
+                        .IsRequired()
+                        .HasConstraintName("fk_equivalence_group");
+                });
+
+            modelBuilder.Entity("IdentityQueue.Store.Schema.RecoveredDifferenceRow", b =>
+                {
+                    b.HasOne("IdentityQueue.Store.Schema.CandidateRow", null)
+                        .WithOne()
+                        .HasForeignKey("IdentityQueue.Store.Schema.RecoveredDifferenceRow", "CandidateId")
+                        .OnDelete(DeleteBehavior.Cascade)
+                        .IsRequired()
+                        .HasConstraintName("fk_recovered_difference_candidate");
                 });
 
             modelBuilder.Entity("IdentityQueue.Store.Schema.RejectionRow", b =>

@@ -55,6 +55,10 @@ namespace IdentityQueue.Migrations.Sqlite.Migrations
                         .HasColumnType("TEXT")
                         .HasColumnName("lhs");
 
+                    b.Property<int?>("LhsColumn")
+                        .HasColumnType("INTEGER")
+                        .HasColumnName("lhs_column");
+
                     b.Property<string>("Params")
                         .HasColumnType("TEXT")
                         .HasColumnName("params");
@@ -67,6 +71,10 @@ namespace IdentityQueue.Migrations.Sqlite.Migrations
                         .IsRequired()
                         .HasColumnType("TEXT")
                         .HasColumnName("rhs");
+
+                    b.Property<int?>("RhsColumn")
+                        .HasColumnType("INTEGER")
+                        .HasColumnName("rhs_column");
 
                     b.HasKey("Id")
                         .HasName("pk_candidate");
@@ -140,6 +148,112 @@ namespace IdentityQueue.Migrations.Sqlite.Migrations
                         .HasDatabaseName("ux_catalogue_name");
 
                     b.ToTable("catalogue", (string)null);
+                });
+
+            modelBuilder.Entity("IdentityQueue.Store.Schema.CounterexampleRow", b =>
+                {
+                    b.Property<long>("CandidateId")
+                        .HasColumnType("INTEGER")
+                        .HasColumnName("candidate_id");
+
+                    b.Property<DateTime>("CreatedAt")
+                        .ValueGeneratedOnAdd()
+                        .HasColumnType("TEXT")
+                        .HasColumnName("created_at")
+                        .HasDefaultValueSql("CURRENT_TIMESTAMP");
+
+                    b.Property<string>("Entry")
+                        .HasColumnType("TEXT")
+                        .HasColumnName("entry");
+
+                    b.Property<bool>("Exhaustive")
+                        .HasColumnType("INTEGER")
+                        .HasColumnName("exhaustive");
+
+                    b.Property<string>("LhsValue")
+                        .IsRequired()
+                        .HasColumnType("TEXT")
+                        .HasColumnName("lhs_value");
+
+                    b.Property<long>("MaxAbs")
+                        .HasColumnType("INTEGER")
+                        .HasColumnName("max_abs");
+
+                    b.Property<string>("Point")
+                        .IsRequired()
+                        .HasColumnType("TEXT")
+                        .HasColumnName("point");
+
+                    b.Property<long>("PointsTried")
+                        .HasColumnType("INTEGER")
+                        .HasColumnName("points_tried");
+
+                    b.Property<string>("RhsValue")
+                        .IsRequired()
+                        .HasColumnType("TEXT")
+                        .HasColumnName("rhs_value");
+
+                    b.HasKey("CandidateId")
+                        .HasName("pk_counterexample");
+
+                    b.ToTable("counterexample", (string)null);
+                });
+
+            modelBuilder.Entity("IdentityQueue.Store.Schema.EquivalenceRow", b =>
+                {
+                    b.Property<long>("CandidateId")
+                        .HasColumnType("INTEGER")
+                        .HasColumnName("candidate_id");
+
+                    b.Property<long>("GroupCandidateId")
+                        .HasColumnType("INTEGER")
+                        .HasColumnName("group_candidate_id");
+
+                    b.Property<bool>("Swapped")
+                        .HasColumnType("INTEGER")
+                        .HasColumnName("swapped");
+
+                    b.HasKey("CandidateId")
+                        .HasName("pk_equivalence");
+
+                    b.HasIndex("GroupCandidateId")
+                        .HasDatabaseName("ix_equivalence_group");
+
+                    b.ToTable("equivalence", (string)null);
+                });
+
+            modelBuilder.Entity("IdentityQueue.Store.Schema.RecoveredDifferenceRow", b =>
+                {
+                    b.Property<long>("CandidateId")
+                        .HasColumnType("INTEGER")
+                        .HasColumnName("candidate_id");
+
+                    b.Property<DateTime>("CreatedAt")
+                        .ValueGeneratedOnAdd()
+                        .HasColumnType("TEXT")
+                        .HasColumnName("created_at")
+                        .HasDefaultValueSql("CURRENT_TIMESTAMP");
+
+                    b.Property<string>("Difference")
+                        .HasColumnType("TEXT")
+                        .HasColumnName("difference");
+
+                    b.Property<long?>("Terms")
+                        .HasColumnType("INTEGER")
+                        .HasColumnName("terms");
+
+                    b.Property<bool>("TermsEstimated")
+                        .HasColumnType("INTEGER")
+                        .HasColumnName("terms_estimated");
+
+                    b.Property<int?>("TotalDegree")
+                        .HasColumnType("INTEGER")
+                        .HasColumnName("total_degree");
+
+                    b.HasKey("CandidateId")
+                        .HasName("pk_recovered_difference");
+
+                    b.ToTable("recovered_difference", (string)null);
                 });
 
             modelBuilder.Entity("IdentityQueue.Store.Schema.RejectionRow", b =>
@@ -416,6 +530,43 @@ namespace IdentityQueue.Migrations.Sqlite.Migrations
                         .OnDelete(DeleteBehavior.Cascade)
                         .IsRequired()
                         .HasConstraintName("fk_candidate_catalogue");
+                });
+
+            modelBuilder.Entity("IdentityQueue.Store.Schema.CounterexampleRow", b =>
+                {
+                    b.HasOne("IdentityQueue.Store.Schema.CandidateRow", null)
+                        .WithOne()
+                        .HasForeignKey("IdentityQueue.Store.Schema.CounterexampleRow", "CandidateId")
+                        .OnDelete(DeleteBehavior.Cascade)
+                        .IsRequired()
+                        .HasConstraintName("fk_counterexample_candidate");
+                });
+
+            modelBuilder.Entity("IdentityQueue.Store.Schema.EquivalenceRow", b =>
+                {
+                    b.HasOne("IdentityQueue.Store.Schema.CandidateRow", null)
+                        .WithOne()
+                        .HasForeignKey("IdentityQueue.Store.Schema.EquivalenceRow", "CandidateId")
+                        .OnDelete(DeleteBehavior.Cascade)
+                        .IsRequired()
+                        .HasConstraintName("fk_equivalence_candidate");
+
+                    b.HasOne("IdentityQueue.Store.Schema.CandidateRow", null)
+                        .WithMany()
+                        .HasForeignKey("GroupCandidateId")
+                        .OnDelete(DeleteBehavior.Cascade)
+                        .IsRequired()
+                        .HasConstraintName("fk_equivalence_group");
+                });
+
+            modelBuilder.Entity("IdentityQueue.Store.Schema.RecoveredDifferenceRow", b =>
+                {
+                    b.HasOne("IdentityQueue.Store.Schema.CandidateRow", null)
+                        .WithOne()
+                        .HasForeignKey("IdentityQueue.Store.Schema.RecoveredDifferenceRow", "CandidateId")
+                        .OnDelete(DeleteBehavior.Cascade)
+                        .IsRequired()
+                        .HasConstraintName("fk_recovered_difference_candidate");
                 });
 
             modelBuilder.Entity("IdentityQueue.Store.Schema.RejectionRow", b =>

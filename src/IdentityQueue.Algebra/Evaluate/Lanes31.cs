@@ -1,5 +1,4 @@
 using System.Runtime.CompilerServices;
-using System.Runtime.InteropServices;
 using System.Runtime.Intrinsics;
 using System.Runtime.Intrinsics.X86;
 
@@ -11,8 +10,8 @@ namespace IdentityQueue.Algebra.Evaluate;
 /// 32×32→64-bit multiply (<c>vpmuludq</c>), run Montgomery reduction in subtractive form on both halves (the low words of
 /// t and m·p cancel, so a 64-bit subtraction leaves hi(t) − hi(m·p) in the high word), and merge the halves with a shift
 /// and an or; each 32-bit lane may have its own modulus (the odd lanes' moduli are shifted down for <c>vpmuludq</c>,
-/// which reads the even lanes); corrections use the unsigned minimum: for x in [0, 2p), min(x, x − p) is x mod p. The destination may be one
-/// of the sources. Stateless.
+/// which reads the even lanes); corrections use the unsigned minimum: for x in [0, 2p), min(x, x − p) is x mod p.
+/// The block evaluator runs them through the kernel structs of <see cref="Montgomery31Kernels"/>. Stateless.
 /// </summary>
 internal static class Lanes31
 {
@@ -40,7 +39,7 @@ internal static class Lanes31
     }
 
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
-    private static uint AddMod(uint a, uint b, uint p)
+    internal static uint AddMod(uint a, uint b, uint p)
     {
         unchecked
         {
@@ -50,7 +49,7 @@ internal static class Lanes31
     }
 
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
-    private static uint SubMod(uint a, uint b, uint p)
+    internal static uint SubMod(uint a, uint b, uint p)
     {
         unchecked
         {
@@ -118,202 +117,4 @@ internal static class Lanes31
         var d = Avx2.Subtract(a, b);
         return Avx2.Min(d, Avx2.Add(d, p));
     }
-
-    // ---- kernels: the vector part, then a scalar tail ----
-
-    public static void Add(LaneKernel kernel, ReadOnlySpan<uint> a, ReadOnlySpan<uint> b, Span<uint> d, ReadOnlySpan<uint> p)
-    {
-        var done = 0;
-        if (kernel == LaneKernel.Avx512 && Avx512F.IsSupported)
-        {
-            var vp = V512(p, d.Length);
-            var va = V512(a, d.Length);
-            var vb = V512(b, d.Length);
-            var vd = V512(d);
-            for (var i = 0; i < vd.Length; i++) vd[i] = AddMod(va[i], vb[i], vp[i]);
-            done = vd.Length * Vector512<uint>.Count;
-        }
-        else if (kernel == LaneKernel.Avx2 && Avx2.IsSupported)
-        {
-            var vp = V256(p, d.Length);
-            var va = V256(a, d.Length);
-            var vb = V256(b, d.Length);
-            var vd = V256(d);
-            for (var i = 0; i < vd.Length; i++) vd[i] = AddMod(va[i], vb[i], vp[i]);
-            done = vd.Length * Vector256<uint>.Count;
-        }
-        for (var i = done; i < d.Length; i++) d[i] = AddMod(a[i], b[i], p[i]);
-    }
-
-    public static void Subtract(LaneKernel kernel, ReadOnlySpan<uint> a, ReadOnlySpan<uint> b, Span<uint> d, ReadOnlySpan<uint> p)
-    {
-        var done = 0;
-        if (kernel == LaneKernel.Avx512 && Avx512F.IsSupported)
-        {
-            var vp = V512(p, d.Length);
-            var va = V512(a, d.Length);
-            var vb = V512(b, d.Length);
-            var vd = V512(d);
-            for (var i = 0; i < vd.Length; i++) vd[i] = SubMod(va[i], vb[i], vp[i]);
-            done = vd.Length * Vector512<uint>.Count;
-        }
-        else if (kernel == LaneKernel.Avx2 && Avx2.IsSupported)
-        {
-            var vp = V256(p, d.Length);
-            var va = V256(a, d.Length);
-            var vb = V256(b, d.Length);
-            var vd = V256(d);
-            for (var i = 0; i < vd.Length; i++) vd[i] = SubMod(va[i], vb[i], vp[i]);
-            done = vd.Length * Vector256<uint>.Count;
-        }
-        for (var i = done; i < d.Length; i++) d[i] = SubMod(a[i], b[i], p[i]);
-    }
-
-    public static void Negate(LaneKernel kernel, ReadOnlySpan<uint> a, Span<uint> d, ReadOnlySpan<uint> p)
-    {
-        var done = 0;
-        if (kernel == LaneKernel.Avx512 && Avx512F.IsSupported)
-        {
-            var vp = V512(p, d.Length);
-            var va = V512(a, d.Length);
-            var vd = V512(d);
-            for (var i = 0; i < vd.Length; i++) vd[i] = SubMod(Vector512<uint>.Zero, va[i], vp[i]);
-            done = vd.Length * Vector512<uint>.Count;
-        }
-        else if (kernel == LaneKernel.Avx2 && Avx2.IsSupported)
-        {
-            var vp = V256(p, d.Length);
-            var va = V256(a, d.Length);
-            var vd = V256(d);
-            for (var i = 0; i < vd.Length; i++) vd[i] = SubMod(Vector256<uint>.Zero, va[i], vp[i]);
-            done = vd.Length * Vector256<uint>.Count;
-        }
-        for (var i = done; i < d.Length; i++) d[i] = SubMod(0, a[i], p[i]);
-    }
-
-    public static void Multiply(LaneKernel kernel, ReadOnlySpan<uint> a, ReadOnlySpan<uint> b, Span<uint> d, ReadOnlySpan<uint> p, ReadOnlySpan<uint> pInverse)
-    {
-        var done = 0;
-        if (kernel == LaneKernel.Avx512 && Avx512F.IsSupported)
-        {
-            var vp = V512(p, d.Length);
-            var vq = V512(pInverse, d.Length);
-            var va = V512(a, d.Length);
-            var vb = V512(b, d.Length);
-            var vd = V512(d);
-            for (var i = 0; i < vd.Length; i++) vd[i] = Multiply(va[i], vb[i], vp[i], vq[i]);
-            done = vd.Length * Vector512<uint>.Count;
-        }
-        else if (kernel == LaneKernel.Avx2 && Avx2.IsSupported)
-        {
-            var vp = V256(p, d.Length);
-            var vq = V256(pInverse, d.Length);
-            var va = V256(a, d.Length);
-            var vb = V256(b, d.Length);
-            var vd = V256(d);
-            for (var i = 0; i < vd.Length; i++) vd[i] = Multiply(va[i], vb[i], vp[i], vq[i]);
-            done = vd.Length * Vector256<uint>.Count;
-        }
-        for (var i = done; i < d.Length; i++) d[i] = Multiply(a[i], b[i], p[i], pInverse[i]);
-    }
-
-    /// <summary>d ← a·b + c.</summary>
-    public static void MultiplyAdd(LaneKernel kernel, ReadOnlySpan<uint> a, ReadOnlySpan<uint> b, ReadOnlySpan<uint> c, Span<uint> d, ReadOnlySpan<uint> p, ReadOnlySpan<uint> pInverse)
-    {
-        var done = 0;
-        if (kernel == LaneKernel.Avx512 && Avx512F.IsSupported)
-        {
-            var vp = V512(p, d.Length);
-            var vq = V512(pInverse, d.Length);
-            var va = V512(a, d.Length);
-            var vb = V512(b, d.Length);
-            var vc = V512(c, d.Length);
-            var vd = V512(d);
-            for (var i = 0; i < vd.Length; i++) vd[i] = AddMod(Multiply(va[i], vb[i], vp[i], vq[i]), vc[i], vp[i]);
-            done = vd.Length * Vector512<uint>.Count;
-        }
-        else if (kernel == LaneKernel.Avx2 && Avx2.IsSupported)
-        {
-            var vp = V256(p, d.Length);
-            var vq = V256(pInverse, d.Length);
-            var va = V256(a, d.Length);
-            var vb = V256(b, d.Length);
-            var vc = V256(c, d.Length);
-            var vd = V256(d);
-            for (var i = 0; i < vd.Length; i++) vd[i] = AddMod(Multiply(va[i], vb[i], vp[i], vq[i]), vc[i], vp[i]);
-            done = vd.Length * Vector256<uint>.Count;
-        }
-        for (var i = done; i < d.Length; i++) d[i] = AddMod(Multiply(a[i], b[i], p[i], pInverse[i]), c[i], p[i]);
-    }
-
-    /// <summary>d ← a·b − c.</summary>
-    public static void MultiplySubtract(LaneKernel kernel, ReadOnlySpan<uint> a, ReadOnlySpan<uint> b, ReadOnlySpan<uint> c, Span<uint> d, ReadOnlySpan<uint> p, ReadOnlySpan<uint> pInverse)
-    {
-        var done = 0;
-        if (kernel == LaneKernel.Avx512 && Avx512F.IsSupported)
-        {
-            var vp = V512(p, d.Length);
-            var vq = V512(pInverse, d.Length);
-            var va = V512(a, d.Length);
-            var vb = V512(b, d.Length);
-            var vc = V512(c, d.Length);
-            var vd = V512(d);
-            for (var i = 0; i < vd.Length; i++) vd[i] = SubMod(Multiply(va[i], vb[i], vp[i], vq[i]), vc[i], vp[i]);
-            done = vd.Length * Vector512<uint>.Count;
-        }
-        else if (kernel == LaneKernel.Avx2 && Avx2.IsSupported)
-        {
-            var vp = V256(p, d.Length);
-            var vq = V256(pInverse, d.Length);
-            var va = V256(a, d.Length);
-            var vb = V256(b, d.Length);
-            var vc = V256(c, d.Length);
-            var vd = V256(d);
-            for (var i = 0; i < vd.Length; i++) vd[i] = SubMod(Multiply(va[i], vb[i], vp[i], vq[i]), vc[i], vp[i]);
-            done = vd.Length * Vector256<uint>.Count;
-        }
-        for (var i = done; i < d.Length; i++) d[i] = SubMod(Multiply(a[i], b[i], p[i], pInverse[i]), c[i], p[i]);
-    }
-
-    /// <summary>d ← c − a·b.</summary>
-    public static void NegativeMultiplyAdd(LaneKernel kernel, ReadOnlySpan<uint> a, ReadOnlySpan<uint> b, ReadOnlySpan<uint> c, Span<uint> d, ReadOnlySpan<uint> p, ReadOnlySpan<uint> pInverse)
-    {
-        var done = 0;
-        if (kernel == LaneKernel.Avx512 && Avx512F.IsSupported)
-        {
-            var vp = V512(p, d.Length);
-            var vq = V512(pInverse, d.Length);
-            var va = V512(a, d.Length);
-            var vb = V512(b, d.Length);
-            var vc = V512(c, d.Length);
-            var vd = V512(d);
-            for (var i = 0; i < vd.Length; i++) vd[i] = SubMod(vc[i], Multiply(va[i], vb[i], vp[i], vq[i]), vp[i]);
-            done = vd.Length * Vector512<uint>.Count;
-        }
-        else if (kernel == LaneKernel.Avx2 && Avx2.IsSupported)
-        {
-            var vp = V256(p, d.Length);
-            var vq = V256(pInverse, d.Length);
-            var va = V256(a, d.Length);
-            var vb = V256(b, d.Length);
-            var vc = V256(c, d.Length);
-            var vd = V256(d);
-            for (var i = 0; i < vd.Length; i++) vd[i] = SubMod(vc[i], Multiply(va[i], vb[i], vp[i], vq[i]), vp[i]);
-            done = vd.Length * Vector256<uint>.Count;
-        }
-        for (var i = done; i < d.Length; i++) d[i] = SubMod(c[i], Multiply(a[i], b[i], p[i], pInverse[i]), p[i]);
-    }
-
-    /// <summary>The whole vectors of the first <paramref name="length"/> lanes (a reinterpretation, no copy).</summary>
-    private static ReadOnlySpan<Vector512<uint>> V512(ReadOnlySpan<uint> s, int length) =>
-        MemoryMarshal.Cast<uint, Vector512<uint>>(s[..(length - length % Vector512<uint>.Count)]);
-
-    private static Span<Vector512<uint>> V512(Span<uint> s) =>
-        MemoryMarshal.Cast<uint, Vector512<uint>>(s[..(s.Length - s.Length % Vector512<uint>.Count)]);
-
-    private static ReadOnlySpan<Vector256<uint>> V256(ReadOnlySpan<uint> s, int length) =>
-        MemoryMarshal.Cast<uint, Vector256<uint>>(s[..(length - length % Vector256<uint>.Count)]);
-
-    private static Span<Vector256<uint>> V256(Span<uint> s) =>
-        MemoryMarshal.Cast<uint, Vector256<uint>>(s[..(s.Length - s.Length % Vector256<uint>.Count)]);
 }

@@ -1,5 +1,4 @@
 using System.Runtime.CompilerServices;
-using System.Runtime.InteropServices;
 using System.Runtime.Intrinsics;
 using System.Runtime.Intrinsics.X86;
 
@@ -11,8 +10,8 @@ namespace IdentityQueue.Algebra.Evaluate;
 /// Montgomery reduction in subtractive form (hi(a·b) − hi(m·p)) and branch-free corrections, as in the field itself; the
 /// AVX-512 kernels do the same on 8 lanes at once, with corrections by the unsigned minimum (for x in [0, 2p),
 /// min(x, x − p) is x mod p).
-/// The span kernels take the modulus lane by lane (each lane may be in its own field). The destination may be one of the
-/// sources (lane i is read before it is written). Stateless.
+/// The block evaluator runs them through the kernel structs of <see cref="Montgomery62Kernels"/>, with the modulus lane by
+/// lane (each lane may be in its own field). Stateless.
 /// </summary>
 internal static class Lanes62
 {
@@ -86,7 +85,7 @@ internal static class Lanes62
     public static ulong High(ulong a, ulong b) => Bmi2.X64.IsSupported ? Bmi2.X64.MultiplyNoFlags(a, b) : Math.BigMul(a, b, out _);
 
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
-    private static ulong AddMod(ulong a, ulong b, ulong p)
+    internal static ulong AddMod(ulong a, ulong b, ulong p)
     {
         unchecked
         {
@@ -96,142 +95,12 @@ internal static class Lanes62
     }
 
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
-    private static ulong SubMod(ulong a, ulong b, ulong p)
+    internal static ulong SubMod(ulong a, ulong b, ulong p)
     {
         unchecked
         {
             var d = a - b;
             return d + (p & (ulong)((long)d >> 63));
-        }
-    }
-
-    /// <summary>d ← a + b, on whole AVX-512 vectors where <paramref name="kernel"/> allows, then lane by lane.</summary>
-    public static void Add(LaneKernel kernel, ReadOnlySpan<ulong> a, ReadOnlySpan<ulong> b, Span<ulong> d, ReadOnlySpan<ulong> p)
-    {
-        var done = 0;
-        if (kernel == LaneKernel.Avx512 && Avx512F.IsSupported)
-        {
-            var vp = V512(p, d.Length);
-            var vd = V512(d);
-            var va = V512(a, d.Length);
-            var vb = V512(b, d.Length);
-            for (var i = 0; i < vd.Length; i++) vd[i] = AddMod(va[i], vb[i], vp[i]);
-            done = vd.Length * Vector512<ulong>.Count;
-        }
-        Add(a[done..d.Length], b[done..d.Length], d[done..], p[done..]);
-    }
-
-    /// <summary>d ← a − b, on whole AVX-512 vectors where <paramref name="kernel"/> allows, then lane by lane.</summary>
-    public static void Subtract(LaneKernel kernel, ReadOnlySpan<ulong> a, ReadOnlySpan<ulong> b, Span<ulong> d, ReadOnlySpan<ulong> p)
-    {
-        var done = 0;
-        if (kernel == LaneKernel.Avx512 && Avx512F.IsSupported)
-        {
-            var vp = V512(p, d.Length);
-            var vd = V512(d);
-            var va = V512(a, d.Length);
-            var vb = V512(b, d.Length);
-            for (var i = 0; i < vd.Length; i++) vd[i] = SubMod(va[i], vb[i], vp[i]);
-            done = vd.Length * Vector512<ulong>.Count;
-        }
-        Subtract(a[done..d.Length], b[done..d.Length], d[done..], p[done..]);
-    }
-
-    /// <summary>d ← a·b, on whole AVX-512 vectors where <paramref name="kernel"/> allows, then lane by lane.</summary>
-    public static void Multiply(LaneKernel kernel, ReadOnlySpan<ulong> a, ReadOnlySpan<ulong> b, Span<ulong> d, ReadOnlySpan<ulong> p, ReadOnlySpan<ulong> pInverse)
-    {
-        var done = 0;
-        if (kernel == LaneKernel.Avx512 && Avx512F.IsSupported && Avx512DQ.IsSupported)
-        {
-            var vp = V512(p, d.Length);
-            var vq = V512(pInverse, d.Length);
-            var vd = V512(d);
-            var va = V512(a, d.Length);
-            var vb = V512(b, d.Length);
-            for (var i = 0; i < vd.Length; i++) vd[i] = Multiply(va[i], vb[i], vp[i], Avx512F.ShiftRightLogical(vp[i], 32), vq[i]);
-            done = vd.Length * Vector512<ulong>.Count;
-        }
-        Multiply(a[done..d.Length], b[done..d.Length], d[done..], p[done..], pInverse[done..]);
-    }
-
-    private static ReadOnlySpan<Vector512<ulong>> V512(ReadOnlySpan<ulong> s, int length) =>
-        MemoryMarshal.Cast<ulong, Vector512<ulong>>(s[..(length - length % Vector512<ulong>.Count)]);
-
-    private static Span<Vector512<ulong>> V512(Span<ulong> s) =>
-        MemoryMarshal.Cast<ulong, Vector512<ulong>>(s[..(s.Length - s.Length % Vector512<ulong>.Count)]);
-
-    public static void Add(ReadOnlySpan<ulong> a, ReadOnlySpan<ulong> b, Span<ulong> d, ReadOnlySpan<ulong> p)
-    {
-        a = a[..d.Length];
-        b = b[..d.Length];
-        unchecked
-        {
-            for (var i = 0; i < d.Length; i++) d[i] = AddMod(a[i], b[i], p[i]);
-        }
-    }
-
-    public static void Subtract(ReadOnlySpan<ulong> a, ReadOnlySpan<ulong> b, Span<ulong> d, ReadOnlySpan<ulong> p)
-    {
-        a = a[..d.Length];
-        b = b[..d.Length];
-        unchecked
-        {
-            for (var i = 0; i < d.Length; i++) d[i] = SubMod(a[i], b[i], p[i]);
-        }
-    }
-
-    public static void Negate(ReadOnlySpan<ulong> a, Span<ulong> d, ReadOnlySpan<ulong> p)
-    {
-        a = a[..d.Length];
-        unchecked
-        {
-            for (var i = 0; i < d.Length; i++) d[i] = SubMod(0, a[i], p[i]);
-        }
-    }
-
-    public static void Multiply(ReadOnlySpan<ulong> a, ReadOnlySpan<ulong> b, Span<ulong> d, ReadOnlySpan<ulong> p, ReadOnlySpan<ulong> pInverse)
-    {
-        a = a[..d.Length];
-        b = b[..d.Length];
-        unchecked
-        {
-            for (var i = 0; i < d.Length; i++) d[i] = Multiply(a[i], b[i], p[i], pInverse[i]);
-        }
-    }
-
-    /// <summary>d ← a·b + c.</summary>
-    public static void MultiplyAdd(ReadOnlySpan<ulong> a, ReadOnlySpan<ulong> b, ReadOnlySpan<ulong> c, Span<ulong> d, ReadOnlySpan<ulong> p, ReadOnlySpan<ulong> pInverse)
-    {
-        a = a[..d.Length];
-        b = b[..d.Length];
-        c = c[..d.Length];
-        unchecked
-        {
-            for (var i = 0; i < d.Length; i++) d[i] = AddMod(Multiply(a[i], b[i], p[i], pInverse[i]), c[i], p[i]);
-        }
-    }
-
-    /// <summary>d ← a·b − c.</summary>
-    public static void MultiplySubtract(ReadOnlySpan<ulong> a, ReadOnlySpan<ulong> b, ReadOnlySpan<ulong> c, Span<ulong> d, ReadOnlySpan<ulong> p, ReadOnlySpan<ulong> pInverse)
-    {
-        a = a[..d.Length];
-        b = b[..d.Length];
-        c = c[..d.Length];
-        unchecked
-        {
-            for (var i = 0; i < d.Length; i++) d[i] = SubMod(Multiply(a[i], b[i], p[i], pInverse[i]), c[i], p[i]);
-        }
-    }
-
-    /// <summary>d ← c − a·b.</summary>
-    public static void NegativeMultiplyAdd(ReadOnlySpan<ulong> a, ReadOnlySpan<ulong> b, ReadOnlySpan<ulong> c, Span<ulong> d, ReadOnlySpan<ulong> p, ReadOnlySpan<ulong> pInverse)
-    {
-        a = a[..d.Length];
-        b = b[..d.Length];
-        c = c[..d.Length];
-        unchecked
-        {
-            for (var i = 0; i < d.Length; i++) d[i] = SubMod(c[i], Multiply(a[i], b[i], p[i], pInverse[i]), p[i]);
         }
     }
 }

@@ -10,7 +10,7 @@ namespace IdentityQueue.Algebra.Evaluate;
 /// Determinant, Pfaffian and permanent of a square matrix over a field, on a row-major span, with no allocation per call.
 /// Determinant and Pfaffian work in place (they overwrite the matrix). Stateless.
 /// </summary>
-public static partial class MatrixKernels
+public static class MatrixKernels
 {
     /// <summary>
     /// Below this remaining order, elimination goes on division-free (one inversion at the end instead of one per pivot):
@@ -34,17 +34,17 @@ public static partial class MatrixKernels
     /// <summary>
     /// Determinant by Gaussian elimination (any nonzero pivot; a field has no rounding), O(n³), overwriting
     /// <paramref name="a"/>. The last <see cref="DivisionFreeOrder"/> columns are eliminated division-free. On the 62-bit
-    /// Montgomery rung, larger matrices are eliminated by panels with delayed reduction (see <see cref="Determinant62"/>).
+    /// Montgomery rung, larger matrices are eliminated by panels with delayed reduction (see <see cref="MatrixKernels62.Determinant"/>).
     /// </summary>
     /// <param name="cancellation">Looked at once per pivot column; a cancelled elimination throws <see cref="OperationCanceledException"/>.</param>
     public static T Determinant<TField, T>(TField f, Span<T> a, int n, CancellationToken cancellation = default)
         where TField : struct, IField<T> where T : struct
     {
         CheckSquare(a.Length, n);
-        if (typeof(TField) == typeof(PrimeField62) && typeof(T) == typeof(Residue62))
+        if (TField.Layout == ElementLayout.Montgomery62)
         {
-            var field = (PrimeField62)(object)f;
-            return (T)(object)PrimeField62.FromMontgomery(Determinant62(field, MemoryMarshal.Cast<T, ulong>(a), n, avx512: true, cancellation));
+            var raw = MatrixKernels62.Determinant(Unsafe.As<TField, PrimeField62>(ref f), MemoryMarshal.Cast<T, ulong>(a), n, avx512: true, cancellation);
+            return Unsafe.As<ulong, T>(ref raw);
         }
         return DeterminantByElimination(f, a, n, DivisionFreeOrder, cancellation);
     }
@@ -190,13 +190,13 @@ public static partial class MatrixKernels
     }
 
     /// <summary>Exchanges the contents of two equally long, non-overlapping ranges.</summary>
-    private static void Swap<T>(Span<T> x, Span<T> y)
+    internal static void Swap<T>(Span<T> x, Span<T> y)
     {
         y = y[..x.Length];
         for (var i = 0; i < x.Length; i++) (x[i], y[i]) = (y[i], x[i]);
     }
 
-    private static void SwapIndex<T>(Span<T> a, int n, int x, int y)
+    internal static void SwapIndex<T>(Span<T> a, int n, int x, int y)
     {
         Swap(a.Slice(x * n, n), a.Slice(y * n, n));
         for (var i = 0; i < n; i++) (a[i * n + x], a[i * n + y]) = (a[i * n + y], a[i * n + x]);
@@ -213,7 +213,7 @@ public static partial class MatrixKernels
     /// Permanent in O(2^n·n): Glynn's formula in odd characteristic and from order <see cref="GlynnMinOrder"/> on, else
     /// Ryser's formula, both visiting their sign patterns in Gray-code order so that each step updates the sums by one row or
     /// column. No allocation for n ≤ 32 (larger orders are far beyond any time budget anyway). On the 62-bit rung with
-    /// AVX-512, Glynn's sign patterns run 8 at a time in vector lanes (see <see cref="Glynn62Avx512"/>).
+    /// AVX-512, Glynn's sign patterns run 8 at a time in vector lanes (see <see cref="MatrixKernels62.GlynnAvx512"/>).
     /// </summary>
     /// <param name="cancellation">Looked at every <see cref="CancellationInterval"/> Gray-code steps.</param>
     public static T Permanent<TField, T>(TField f, ReadOnlySpan<T> a, int n, CancellationToken cancellation = default)
@@ -232,11 +232,10 @@ public static partial class MatrixKernels
         ArgumentOutOfRangeException.ThrowIfGreaterThan(n, MaxPermanentOrder);
         if (scratch.Length < n) throw new ArgumentException($"the scratch needs {n} elements, got {scratch.Length}", nameof(scratch));
         if (n == 0) return f.One;
-        if (typeof(TField) == typeof(PrimeField62) && typeof(T) == typeof(Residue62) && n >= GlynnMinOrder && n <= 32
-            && Avx512F.IsSupported && Avx512DQ.IsSupported)
+        if (TField.Layout == ElementLayout.Montgomery62 && n >= GlynnMinOrder && n <= 32 && Avx512F.IsSupported && Avx512DQ.IsSupported)
         {
-            var raw = Glynn62Avx512((PrimeField62)(object)f, MemoryMarshal.Cast<T, ulong>(a), n, cancellation);
-            return (T)(object)PrimeField62.FromMontgomery(raw);
+            var raw = MatrixKernels62.GlynnAvx512(Unsafe.As<TField, PrimeField62>(ref f), MemoryMarshal.Cast<T, ulong>(a), n, cancellation);
+            return Unsafe.As<ulong, T>(ref raw);
         }
         return n >= GlynnMinOrder && f.Characteristic != 2 ? Glynn(f, a, n, scratch[..n], cancellation) : Ryser(f, a, n, scratch[..n], cancellation);
     }

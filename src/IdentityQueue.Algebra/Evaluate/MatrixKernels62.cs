@@ -8,45 +8,49 @@ using IdentityQueue.Algebra.Fields;
 
 namespace IdentityQueue.Algebra.Evaluate;
 
-public static partial class MatrixKernels
+/// <summary>
+/// The 62-bit Montgomery rung's own matrix kernels (raw representatives of <see cref="PrimeField62"/>): the blocked
+/// determinant with delayed reduction and Glynn's permanent with AVX-512. <see cref="MatrixKernels"/> chooses them. Stateless.
+/// </summary>
+internal static class MatrixKernels62
 {
     /// <summary>Columns per panel of the blocked 62-bit elimination: 8 products of residues sum to less than 2p·2^64.</summary>
-    internal const int Panel62 = 8;
+    internal const int Panel = 8;
 
     /// <summary>From this order on the 62-bit determinant is eliminated by panels; below it the generic elimination is faster.</summary>
-    internal const int PanelMinOrder62 = 24;
+    internal const int PanelMinOrder = 24;
 
     /// <summary>
     /// Determinant of a matrix of raw Montgomery representatives mod a 62-bit prime, overwriting <paramref name="a"/>; the
     /// result is a Montgomery representative. Right-looking blocked LU elimination (any nonzero pivot): each panel of
-    /// <see cref="Panel62"/> columns is factorised on its own (multipliers stored in place), its pivot rows are updated by
+    /// <see cref="Panel"/> columns is factorised on its own (multipliers stored in place), its pivot rows are updated by
     /// forward substitution, and the trailing matrix gets the rank-8 update A ← A − L·U with delayed reduction: the eight
     /// 124-bit products of an entry are summed in 128 bits and reduced once (Montgomery, after one conditional subtraction of
     /// p from the high word, since the sum is below 2p·2^64), instead of once per product. The last
-    /// <see cref="DivisionFreeOrder"/> columns go division-free as in the generic code. With <paramref name="avx512"/> (and a
+    /// <see cref="MatrixKernels.DivisionFreeOrder"/> columns go division-free as in the generic code. With <paramref name="avx512"/> (and a
     /// CPU that has AVX-512F/DQ) the updates right of each panel run 8 columns per vector; the scalar code gives the same results.
     /// </summary>
-    internal static ulong Determinant62(PrimeField62 f, Span<ulong> a, int n, bool avx512, CancellationToken cancellation = default)
+    internal static ulong Determinant(PrimeField62 f, Span<ulong> a, int n, bool avx512, CancellationToken cancellation = default)
     {
         var residues = MemoryMarshal.Cast<ulong, Residue62>(a);
-        if (n < PanelMinOrder62) return PrimeField62.ToMontgomery(DeterminantByElimination(f, residues, n, DivisionFreeOrder, cancellation));
+        if (n < PanelMinOrder) return PrimeField62.ToMontgomery(MatrixKernels.DeterminantByElimination(f, residues, n, MatrixKernels.DivisionFreeOrder, cancellation));
 
         unchecked
         {
             var (p, q) = (f.Modulus, f.ModulusInverse);
             var det = PrimeField62.ToMontgomery(f.One);
             var negative = false;
-            var head = n - DivisionFreeOrder;
+            var head = n - MatrixKernels.DivisionFreeOrder;
             var vector = avx512 && Avx512F.IsSupported && Avx512DQ.IsSupported;
             ulong[]? rented = null;
-            var transposed = n <= 256 ? stackalloc ulong[Panel62 * 256] : (rented = ArrayPool<ulong>.Shared.Rent(Panel62 * n));
-            Span<ulong> triangle = stackalloc ulong[Panel62 * Panel62];
+            var transposed = n <= 256 ? stackalloc ulong[Panel * 256] : (rented = ArrayPool<ulong>.Shared.Rent(Panel * n));
+            Span<ulong> triangle = stackalloc ulong[Panel * Panel];
             try
             {
-                for (var k0 = 0; k0 < head; k0 += Panel62)
+                for (var k0 = 0; k0 < head; k0 += Panel)
                 {
                     cancellation.ThrowIfCancellationRequested();
-                    var kb = Math.Min(Panel62, head - k0);
+                    var kb = Math.Min(Panel, head - k0);
                     var c1 = k0 + kb;
 
                     // 1. The panel: columns k0 .. c1−1, every row from k0 down; multipliers stay in place.
@@ -57,7 +61,7 @@ public static partial class MatrixKernels
                         if (pivot == n) return 0;
                         if (pivot != k)
                         {
-                            Swap(a.Slice(k * n + k0, n - k0), a.Slice(pivot * n + k0, n - k0));
+                            MatrixKernels.Swap(a.Slice(k * n + k0, n - k0), a.Slice(pivot * n + k0, n - k0));
                             negative = !negative;
                         }
                         var pk = a[k * n + k];
@@ -93,13 +97,13 @@ public static partial class MatrixKernels
                     //    substitution on each column of U, u[t] −= Σ_{s<t} L[k0+t][k0+s]·u[s]. The pivot rows themselves are
                     //    not needed again, so U stays in the scratch only.
                     for (var t = 1; t < kb; t++)
-                        for (var s = 0; s < t; s++) triangle[t * Panel62 + s] = a[(k0 + t) * n + k0 + s];
+                        for (var s = 0; s < t; s++) triangle[t * Panel + s] = a[(k0 + t) * n + k0 + s];
                     for (var j = 0; j < w; j++)
                     {
                         var uj = u.Slice(j * kb, kb);
                         for (var t = 1; t < uj.Length; t++)
                         {
-                            var lt = triangle.Slice(t * Panel62, t);
+                            var lt = triangle.Slice(t * Panel, t);
                             ulong x0 = 0, x1 = 0, hi = 0;
                             for (var s = 0; s < lt.Length; s++) Accumulate(lt[s], uj[s], ref x0, ref x1, ref hi);
                             uj[t] = SubMod62(uj[t], Reduce(x0, x1, hi, p, q), p);
@@ -111,13 +115,13 @@ public static partial class MatrixKernels
                     {
                         var row = a.Slice(i * n, n);
                         var dst = row.Slice(c1, w);
-                        if (kb == Panel62)
+                        if (kb == Panel)
                         {
-                            var l = row.Slice(k0, Panel62);
+                            var l = row.Slice(k0, Panel);
                             ulong l0 = l[0], l1 = l[1], l2 = l[2], l3 = l[3], l4 = l[4], l5 = l[5], l6 = l[6], l7 = l[7];
                             for (var j = 0; j < dst.Length; j++)
                             {
-                                var uj = u.Slice(j * Panel62, Panel62);
+                                var uj = u.Slice(j * Panel, Panel);
                                 ulong x0 = 0, x1 = 0, hi = 0;
                                 Accumulate(l0, uj[0], ref x0, ref x1, ref hi);
                                 Accumulate(l1, uj[1], ref x0, ref x1, ref hi);
@@ -143,7 +147,7 @@ public static partial class MatrixKernels
                         }
                     }
                 }
-                var tail = DivisionFreeTail(f, residues, n, Math.Max(head, 0), ref negative);
+                var tail = MatrixKernels.DivisionFreeTail(f, residues, n, Math.Max(head, 0), ref negative);
                 det = Lanes62.Multiply(det, PrimeField62.ToMontgomery(tail), p, q);
                 return negative && det != 0 ? p - det : det;
             }
@@ -155,7 +159,7 @@ public static partial class MatrixKernels
     }
 
     /// <summary>
-    /// Steps 2–4 of <see cref="Determinant62"/> on AVX-512, 8 columns per vector: U stays in the pivot rows (forward
+    /// Steps 2–4 of <see cref="Determinant"/> on AVX-512, 8 columns per vector: U stays in the pivot rows (forward
     /// substitution in place), and each vector of 8 entries sums its kb products in 128 bits (low words with
     /// <c>vpmullq</c>, carries by an unsigned compare) before one Montgomery reduction.
     /// </summary>
@@ -195,7 +199,7 @@ public static partial class MatrixKernels
 
             // the trailing matrix: A[i][j] −= Σ_s L[i][k0+s]·U[s][j]
             var u = a.Slice(k0 * n + c1, (kb - 1) * n + w);
-            Span<Vector512<ulong>> lv = stackalloc Vector512<ulong>[2 * Panel62];
+            Span<Vector512<ulong>> lv = stackalloc Vector512<ulong>[2 * Panel];
             for (var i = c1; i < n; i++)
             {
                 var row = a.Slice(i * n, n);
@@ -206,7 +210,7 @@ public static partial class MatrixKernels
                     lv[2 * s + 1] = Vector512.Create(l[s] >> 32);
                 }
                 var dst = row.Slice(c1, w);
-                if (kb == Panel62)
+                if (kb == Panel)
                 {
                     Vector512<ulong> l0 = lv[0], h0 = lv[1], l1 = lv[2], h1 = lv[3], l2 = lv[4], h2 = lv[5], l3 = lv[6], h3 = lv[7];
                     Vector512<ulong> l4 = lv[8], h4 = lv[9], l5 = lv[10], h5 = lv[11], l6 = lv[12], h6 = lv[13], l7 = lv[14], h7 = lv[15];
@@ -269,7 +273,7 @@ public static partial class MatrixKernels
     /// on every lane, so each step moves n vectors of column sums by a broadcast ∓2·a_ij and multiplies them lane by lane
     /// (in four chains). Lane k's terms carry the extra sign (−1)^popcount(k). Returns a Montgomery representative.
     /// </summary>
-    internal static ulong Glynn62Avx512(PrimeField62 f, ReadOnlySpan<ulong> a, int n, CancellationToken cancellation = default)
+    internal static ulong GlynnAvx512(PrimeField62 f, ReadOnlySpan<ulong> a, int n, CancellationToken cancellation = default)
     {
         unchecked
         {
@@ -304,7 +308,7 @@ public static partial class MatrixKernels
             var count = 1UL << (n - 4);
             for (var g = 1UL; g < count; g++)
             {
-                if ((g & (CancellationInterval - 1)) == 0) cancellation.ThrowIfCancellationRequested();
+                if ((g & (MatrixKernels.CancellationInterval - 1)) == 0) cancellation.ThrowIfCancellationRequested();
                 var bit = BitOperations.TrailingZeroCount(g);
                 var row = twice.Slice((bit + 1) * n, n);
                 if ((minus >> bit & 1) != 0)

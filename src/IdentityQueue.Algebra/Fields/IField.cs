@@ -8,7 +8,7 @@ namespace IdentityQueue.Algebra.Fields;
 /// (<c>where TField : struct, IField&lt;T&gt;</c>) so the JIT specialises and inlines each rung.
 /// Implementations are immutable and thread-safe.
 /// </summary>
-public interface IField<T> where T : struct
+public interface IField<T> : IElementLayout where T : struct
 {
     T Zero { get; }
     T One { get; }

@@ -57,6 +57,8 @@ public readonly struct PrimeField31 : IField<Residue31>
 
     public uint Modulus => _p;
 
+    static ElementLayout IElementLayout.Layout => ElementLayout.Montgomery31;
+
     /// <summary>p^-1 mod 2^32, for lane kernels that run the Montgomery product on raw representatives.</summary>
     internal uint ModulusInverse => _pInverse;
 

@@ -57,6 +57,8 @@ public readonly struct PrimeField62 : IField<Residue62>
 
     public ulong Modulus => _p;
 
+    static ElementLayout IElementLayout.Layout => ElementLayout.Montgomery62;
+
     /// <summary>p^-1 mod 2^64, for lane kernels that run the Montgomery product on raw representatives.</summary>
     internal ulong ModulusInverse => _pInverse;
 

@@ -95,6 +95,27 @@ public sealed record IdentityEntry(
     string Text)
 {
     public bool IsFamily => Parameters.Count > 0;
+
+    /// <summary>
+    /// Where the left side is written in its catalogue line: in <see cref="Text"/> for a parsed line; for a stored
+    /// candidate, in the line it was imported from (null when the stored side is not the text as written).
+    /// </summary>
+    public TextSpan? LeftSpan { get; init; }
+
+    /// <summary>Where the right side is written in its catalogue line (as <see cref="LeftSpan"/>).</summary>
+    public TextSpan? RightSpan { get; init; }
+
+    /// <summary>True when a side uses a definition (a <c>let</c> name), so its tree is not the text as written.</summary>
+    public bool UsesDefinitions { get; init; }
+}
+
+/// <summary>A stretch of a line: 0-based <see cref="Start"/> and <see cref="Length"/> in characters.</summary>
+public readonly record struct TextSpan(int Start, int Length)
+{
+    /// <summary>The 1-based column where the stretch starts.</summary>
+    public int Column => Start + 1;
+
+    public string Of(string text) => text.Substring(Start, Length);
 }
 
 /// <summary>

@@ -33,6 +33,13 @@ public sealed class ExprPrinter : IExprVisitor<StringBuilder>
     /// <summary>The one-line identity of stored sides: <c>LHS = RHS</c>, then <c>over FIELD</c> unless the field is Q.</summary>
     public static string Line(string lhs, string rhs, string field) => field == "Q" ? $"{lhs} = {rhs}" : $"{lhs} = {rhs} over {field}";
 
+    /// <summary>A stored side in the printer's spelling (<c>(x+1)^2</c> → <c>(x + 1)^2</c>); the text itself when it does not parse.</summary>
+    public static string Canonical(string side)
+    {
+        var parsed = CatalogueParser.ParseExpression(side);
+        return parsed.Success ? Print(parsed.Value) : side;
+    }
+
     /// <summary>The catalogue line of an entry: <c>label: LHS = RHS over FIELD for n in A..B, …</c> (no <c>over</c> for Q).</summary>
     public static string Print(IdentityEntry entry)
     {

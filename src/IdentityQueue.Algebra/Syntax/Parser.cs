@@ -62,14 +62,18 @@ internal sealed class Parser
         if (label is not null && AtEnd) return Fail<IdentityEntry>(_token, SyntaxMessages.NothingAfterLabel(label));
         if (_token.Kind == TokenKind.Equals) return Fail<IdentityEntry>(_token, SyntaxMessages.EmptyLeftSide);
 
+        var leftStart = _token.Start;
         var left = ParseExpression(0, out _);
         if (left is null) return null;
         if (_token.Kind != TokenKind.Equals)
             return Fail<IdentityEntry>(_token, FollowMessage(SyntaxMessages.MissingEquals(Describe(_token))));
+        var leftSpan = Span(leftStart, _token.Start);
         Advance();
 
+        var rightStart = _token.Start;
         var right = ParseExpression(0, out _);
         if (right is null) return null;
+        var rightSpan = Span(rightStart, _token.Start);
 
         FieldSpec? field = null;
         List<ParameterRange>? parameters = null;
@@ -128,7 +132,15 @@ internal sealed class Parser
             return null;
         }
         return new IdentityEntry(label, left, right, field ?? FieldSpec.Rationals,
-            parameters is null ? [] : parameters.ToArray(), _line, _text);
+            parameters is null ? [] : parameters.ToArray(), _line, _text)
+        { LeftSpan = leftSpan, RightSpan = rightSpan, UsesDefinitions = _expandedNodes > 0 };
+    }
+
+    /// <summary>The text from <paramref name="start"/> up to <paramref name="end"/>, without the spaces before the end.</summary>
+    private TextSpan Span(int start, int end)
+    {
+        while (end > start && char.IsWhiteSpace(_text[end - 1])) end--;
+        return new TextSpan(start, end - start);
     }
 
     /// <summary>

@@ -17,16 +17,32 @@ public sealed record CatalogueInstance(string Label, IReadOnlyList<KeyValuePair<
 }
 
 /// <summary>
-/// What one catalogue entry gives: the label written in the file (or null), the family name (the entry's own label, or
-/// <c>FILE:LINE</c>) for a family, the sides and field as printed from the tree, and one instance per candidate.
+/// The sides as stored: the text as written when the line uses no definition (with the columns where each starts in an
+/// <c>.idq</c> line, so a screening-time message can point there), else the printed tree with its uses written out.
 /// </summary>
-public sealed record CatalogueEntry(string? Label, string? Family, string Lhs, string Rhs, string Field, IReadOnlyList<CatalogueInstance> Instances)
+public readonly record struct CatalogueSides(string Lhs, string Rhs, int? LhsColumn, int? RhsColumn)
 {
+    public static CatalogueSides Of(IdentityEntry entry, bool idqLine) =>
+        !entry.UsesDefinitions && entry.LeftSpan is { } l && entry.RightSpan is { } r
+            ? new CatalogueSides(l.Of(entry.Text), r.Of(entry.Text), idqLine ? l.Column : null, idqLine ? r.Column : null)
+            : new CatalogueSides(ExprPrinter.Print(entry.Left), ExprPrinter.Print(entry.Right), null, null);
+}
+
+/// <summary>
+/// What one catalogue entry gives: the label written in the file (or null), the family name (the entry's own label, or
+/// <c>FILE:LINE</c>) for a family, the sides as stored, the field, and one instance per candidate.
+/// </summary>
+public sealed record CatalogueEntry(string? Label, string? Family, CatalogueSides Sides, string Field, IReadOnlyList<CatalogueInstance> Instances)
+{
+    public string Lhs => Sides.Lhs;
+
+    public string Rhs => Sides.Rhs;
+
     public bool Equals(CatalogueEntry? other) =>
-        other is not null && Label == other.Label && Family == other.Family && Lhs == other.Lhs && Rhs == other.Rhs
+        other is not null && Label == other.Label && Family == other.Family && Sides == other.Sides
         && Field == other.Field && Instances.SequenceEqual(other.Instances);
 
-    public override int GetHashCode() => HashCode.Combine(Label, Lhs, Rhs, Field, Instances.Count);
+    public override int GetHashCode() => HashCode.Combine(Label, Sides, Field, Instances.Count);
 }
 
 /// <summary>
@@ -101,12 +117,11 @@ public sealed class CatalogueReader
             if (read.Value is not { Entry: var entry } made) return Result<CatalogueEntry?>.Ok(null);
             var expansion = FamilyExpander.Expand(entry, _limits);
             if (!expansion.Success) return Result<CatalogueEntry?>.Fail(made.Describe(expansion.Error!));
-            var lhs = ExprPrinter.Print(entry.Left);
-            var rhs = ExprPrinter.Print(entry.Right);
+            var sides = CatalogueSides.Of(entry, made.Built is null);
             var field = entry.Field.ToString();
             var ownLabel = entry.Label ?? $"{_fileName}:{line.Number}";
             if (!entry.IsFamily)
-                return Result<CatalogueEntry?>.Ok(new CatalogueEntry(entry.Label, null, lhs, rhs, field, [new CatalogueInstance(ownLabel, [], null)]));
+                return Result<CatalogueEntry?>.Ok(new CatalogueEntry(entry.Label, null, sides, field, [new CatalogueInstance(ownLabel, [], null)]));
             var names = entry.Parameters.Select(p => p.Name).ToList();
             var instances = new List<CatalogueInstance>(expansion.Instances.Count);
             var label = new StringBuilder();
@@ -125,7 +140,7 @@ public sealed class CatalogueReader
                       ?? throw new FieldBindingException(made.Describe(new Diagnostic(entry.Field.ParameterPosition, fieldError!)));
                 instances.Add(new CatalogueInstance(label.Append(']').ToString(), ordered, own));
             }
-            return Result<CatalogueEntry?>.Ok(new CatalogueEntry(entry.Label, ownLabel, lhs, rhs, field, instances));
+            return Result<CatalogueEntry?>.Ok(new CatalogueEntry(entry.Label, ownLabel, sides, field, instances));
         }
         catch (FieldBindingException e)
         {

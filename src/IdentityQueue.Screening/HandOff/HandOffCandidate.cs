@@ -21,8 +21,11 @@ public sealed record HandOffCandidate(
     double? ErrorBoundLog2,
     long Trials)
 {
-    /// <summary>The identity as one line of catalogue text (parameters fixed by <see cref="Params"/>).</summary>
-    public string Identity => ExprPrinter.Line(Lhs, Rhs, Field);
+    /// <summary>
+    /// The identity as one line of catalogue text in the printer's spelling, whatever the spacing it was written with
+    /// (parameters fixed by <see cref="Params"/>).
+    /// </summary>
+    public string Identity => ExprPrinter.Line(ExprPrinter.Canonical(Lhs), ExprPrinter.Canonical(Rhs), Field);
 
     /// <summary>The error bound as the exponent of 2, rounded up to one decimal (never stronger than stored); null when none.</summary>
     public string? ErrorBoundExponent => ErrorBoundLog2 is { } e && double.IsFinite(e)

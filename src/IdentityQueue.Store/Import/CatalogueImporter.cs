@@ -133,7 +133,7 @@ public sealed class CatalogueImporter(StoreConnection store)
                     foreach (var c in made.Instances)
                     {
                         rows.Candidate(c.Label, made.Family, made.Family is null ? null : ParamsText.Write(c.Parameters),
-                            made.Lhs, made.Rhs, c.Field ?? made.Field, line.Number);
+                            made.Sides, c.Field ?? made.Field, line.Number);
                         instances++;
                     }
                 }
@@ -173,7 +173,7 @@ public sealed class CatalogueImporter(StoreConnection store)
     {
         private readonly DbConnection _db;
         private readonly DbCommand _candidate, _rejection;
-        private readonly DbParameter _label, _family, _params, _lhs, _rhs, _field, _position, _line, _raw, _reason;
+        private readonly DbParameter _label, _family, _params, _lhs, _rhs, _field, _position, _lhsColumn, _rhsColumn, _line, _raw, _reason;
         private DbTransaction _transaction;
         private bool _finished;
 
@@ -182,8 +182,8 @@ public sealed class CatalogueImporter(StoreConnection store)
             _db = db;
             _transaction = db.BeginTransaction();
             _candidate = db.Command("""
-                INSERT INTO candidate (catalogue_id, label, family, params, lhs, rhs, field, position)
-                VALUES (@catalogue, @label, @family, @params, @lhs, @rhs, @field, @position)
+                INSERT INTO candidate (catalogue_id, label, family, params, lhs, rhs, field, position, lhs_column, rhs_column)
+                VALUES (@catalogue, @label, @family, @params, @lhs, @rhs, @field, @position, @lhs_column, @rhs_column)
                 """, _transaction);
             _candidate.Parameter("@catalogue", catalogueId);
             _label = _candidate.Parameter("@label");
@@ -193,6 +193,8 @@ public sealed class CatalogueImporter(StoreConnection store)
             _rhs = _candidate.Parameter("@rhs");
             _field = _candidate.Parameter("@field");
             _position = _candidate.Parameter("@position");
+            _lhsColumn = _candidate.Parameter("@lhs_column");
+            _rhsColumn = _candidate.Parameter("@rhs_column");
             _rejection = db.Command("""
                 INSERT INTO rejection (catalogue_id, source, line, raw, reason)
                 VALUES (@catalogue, @source, @line, @raw, @reason)
@@ -209,8 +211,9 @@ public sealed class CatalogueImporter(StoreConnection store)
         /// <summary>Rows written since the last commit.</summary>
         public int Pending { get; private set; }
 
-        public void Candidate(string label, string? family, string? parameters, string lhs, string rhs, string field, int position)
+        public void Candidate(string label, string? family, string? parameters, CatalogueSides sides, string field, int position)
         {
+            var (lhs, rhs, lhsColumn, rhsColumn) = sides;
             _label.Set(label);
             _family.Set(family);
             _params.Set(parameters);
@@ -218,6 +221,8 @@ public sealed class CatalogueImporter(StoreConnection store)
             _rhs.Set(rhs);
             _field.Set(field);
             _position.Set(position);
+            _lhsColumn.Set(lhsColumn);
+            _rhsColumn.Set(rhsColumn);
             _candidate.ExecuteNonQuery();
             Pending++;
         }

@@ -16,6 +16,9 @@ public sealed class IdentityStoreContext(DbContextOptions<IdentityStoreContext> 
     public DbSet<TrialRow> Trials => Set<TrialRow>();
     public DbSet<RejectionRow> Rejections => Set<RejectionRow>();
     public DbSet<WorkerRow> Workers => Set<WorkerRow>();
+    public DbSet<CounterexampleRow> Counterexamples => Set<CounterexampleRow>();
+    public DbSet<RecoveredDifferenceRow> RecoveredDifferences => Set<RecoveredDifferenceRow>();
+    public DbSet<EquivalenceRow> Equivalences => Set<EquivalenceRow>();
 
     private const string Now = "CURRENT_TIMESTAMP";
 
@@ -52,6 +55,8 @@ public sealed class IdentityStoreContext(DbContextOptions<IdentityStoreContext> 
             e.Property(x => x.Field).HasColumnName("field").HasDefaultValue("Q");
             e.Property(x => x.CreatedAt).HasColumnName("created_at").HasDefaultValueSql(Now);
             e.Property(x => x.Position).HasColumnName("position");
+            e.Property(x => x.LhsColumn).HasColumnName("lhs_column");
+            e.Property(x => x.RhsColumn).HasColumnName("rhs_column");
             e.HasOne<CatalogueRow>().WithMany().HasForeignKey(x => x.CatalogueId)
                 .HasConstraintName("fk_candidate_catalogue").OnDelete(DeleteBehavior.Cascade);
             // The families view groups by (catalogue_id, family) and orders instances by position.
@@ -111,6 +116,51 @@ public sealed class IdentityStoreContext(DbContextOptions<IdentityStoreContext> 
                 .HasConstraintName("fk_trial_candidate").OnDelete(DeleteBehavior.Cascade);
             // Also the index for "the trials of a candidate": candidate_id is its leading column.
             e.HasIndex(x => new { x.CandidateId, x.Seq }).IsUnique().HasDatabaseName("ux_trial_candidate_seq");
+        });
+
+        modelBuilder.Entity<CounterexampleRow>(e =>
+        {
+            e.ToTable("counterexample");
+            e.HasKey(x => x.CandidateId).HasName("pk_counterexample");
+            e.Property(x => x.CandidateId).HasColumnName("candidate_id").ValueGeneratedNever();
+            e.Property(x => x.Point).HasColumnName("point");
+            e.Property(x => x.LhsValue).HasColumnName("lhs_value");
+            e.Property(x => x.RhsValue).HasColumnName("rhs_value");
+            e.Property(x => x.Entry).HasColumnName("entry");
+            e.Property(x => x.MaxAbs).HasColumnName("max_abs");
+            e.Property(x => x.Exhaustive).HasColumnName("exhaustive");
+            e.Property(x => x.PointsTried).HasColumnName("points_tried");
+            e.Property(x => x.CreatedAt).HasColumnName("created_at").HasDefaultValueSql(Now);
+            e.HasOne<CandidateRow>().WithOne().HasForeignKey<CounterexampleRow>(x => x.CandidateId)
+                .HasConstraintName("fk_counterexample_candidate").OnDelete(DeleteBehavior.Cascade);
+        });
+
+        modelBuilder.Entity<RecoveredDifferenceRow>(e =>
+        {
+            e.ToTable("recovered_difference");
+            e.HasKey(x => x.CandidateId).HasName("pk_recovered_difference");
+            e.Property(x => x.CandidateId).HasColumnName("candidate_id").ValueGeneratedNever();
+            e.Property(x => x.Difference).HasColumnName("difference");
+            e.Property(x => x.Terms).HasColumnName("terms");
+            e.Property(x => x.TotalDegree).HasColumnName("total_degree");
+            e.Property(x => x.TermsEstimated).HasColumnName("terms_estimated");
+            e.Property(x => x.CreatedAt).HasColumnName("created_at").HasDefaultValueSql(Now);
+            e.HasOne<CandidateRow>().WithOne().HasForeignKey<RecoveredDifferenceRow>(x => x.CandidateId)
+                .HasConstraintName("fk_recovered_difference_candidate").OnDelete(DeleteBehavior.Cascade);
+        });
+
+        modelBuilder.Entity<EquivalenceRow>(e =>
+        {
+            e.ToTable("equivalence");
+            e.HasKey(x => x.CandidateId).HasName("pk_equivalence");
+            e.Property(x => x.CandidateId).HasColumnName("candidate_id").ValueGeneratedNever();
+            e.Property(x => x.GroupCandidateId).HasColumnName("group_candidate_id");
+            e.Property(x => x.Swapped).HasColumnName("swapped");
+            e.HasOne<CandidateRow>().WithOne().HasForeignKey<EquivalenceRow>(x => x.CandidateId)
+                .HasConstraintName("fk_equivalence_candidate").OnDelete(DeleteBehavior.Cascade);
+            e.HasOne<CandidateRow>().WithMany().HasForeignKey(x => x.GroupCandidateId)
+                .HasConstraintName("fk_equivalence_group").OnDelete(DeleteBehavior.Cascade);
+            e.HasIndex(x => x.GroupCandidateId).HasDatabaseName("ix_equivalence_group");
         });
 
         modelBuilder.Entity<RejectionRow>(e =>

@@ -45,6 +45,10 @@ public sealed class CandidateRow
     public DateTime CreatedAt { get; set; }
     /// <summary>The line of the catalogue file the candidate came from; null for a hand-inserted row.</summary>
     public int? Position { get; set; }
+    /// <summary>The column of the catalogue line where <see cref="Lhs"/> starts, when it is the text as written there; else null.</summary>
+    public int? LhsColumn { get; set; }
+    /// <summary>The column of the catalogue line where <see cref="Rhs"/> starts, when it is the text as written there; else null.</summary>
+    public int? RhsColumn { get; set; }
 }
 
 /// <summary>A row of <c>result</c>: the screening state of one candidate.</summary>
@@ -131,4 +135,59 @@ public sealed class WorkerRow
     public long? CurrentCandidateId { get; set; }
     /// <summary>Since when it screens <see cref="CurrentCandidateId"/>.</summary>
     public DateTime? CurrentSince { get; set; }
+}
+
+/// <summary>
+/// A row of <c>counterexample</c>: the smallest integer point found where a refuted candidate's sides differ (least
+/// max-norm, then least sum of absolute values, then the variables' order), with both sides' exact values.
+/// </summary>
+public sealed class CounterexampleRow
+{
+    public long CandidateId { get; set; }
+    /// <summary>A JSON object, variable → integer as text, in the variables' order: <c>{"a":"1","b":"0"}</c>.</summary>
+    public required string Point { get; set; }
+    /// <summary>The left side's exact value at the point (an integer or a fraction, as text).</summary>
+    public required string LhsValue { get; set; }
+    /// <summary>The right side's exact value at the point.</summary>
+    public required string RhsValue { get; set; }
+    /// <summary>For a matrix identity, the differing entry, <c>[2,1]</c>; else null.</summary>
+    public string? Entry { get; set; }
+    /// <summary>The point's max-norm (largest absolute coordinate).</summary>
+    public long MaxAbs { get; set; }
+    /// <summary>True when every point of smaller norm (and every smaller one of this norm) was tried, so none smaller exists.</summary>
+    public bool Exhaustive { get; set; }
+    /// <summary>How many points the search evaluated.</summary>
+    public long PointsTried { get; set; }
+    public DateTime CreatedAt { get; set; }
+}
+
+/// <summary>
+/// A row of <c>recovered_difference</c>: lhs − rhs of a refuted candidate (its numerator when it is a fraction),
+/// recovered exactly by sparse interpolation and verified at fresh points; or, when it has too many terms, its total
+/// degree along a random line and an estimate of its number of terms.
+/// </summary>
+public sealed class RecoveredDifferenceRow
+{
+    public long CandidateId { get; set; }
+    /// <summary>The difference in catalogue syntax, <c>2*x*y</c>; null when it was too large to recover.</summary>
+    public string? Difference { get; set; }
+    /// <summary>Its number of terms (exact when <see cref="Difference"/> is set, else an estimate).</summary>
+    public long? Terms { get; set; }
+    public int? TotalDegree { get; set; }
+    /// <summary>True when <see cref="Terms"/> is an estimate (the difference was not written out).</summary>
+    public bool TermsEstimated { get; set; }
+    public DateTime CreatedAt { get; set; }
+}
+
+/// <summary>
+/// A row of <c>equivalence</c>: a candidate whose fingerprint (both sides evaluated at fixed random points) equals
+/// another's, so it is the same identity up to the chance the Schwartz–Zippel lemma bounds, and shares the evidence of
+/// its group's representative (<see cref="GroupCandidateId"/>).
+/// </summary>
+public sealed class EquivalenceRow
+{
+    public long CandidateId { get; set; }
+    public long GroupCandidateId { get; set; }
+    /// <summary>True when the sides are swapped with respect to the representative's.</summary>
+    public bool Swapped { get; set; }
 }

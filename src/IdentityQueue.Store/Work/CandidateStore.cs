@@ -97,13 +97,17 @@ public sealed class CandidateStore(StoreConnection store)
 
     /// <summary>The select of <see cref="ReadCandidate"/>'s columns; add a WHERE clause.</summary>
     internal const string CandidateColumns = """
-        SELECT c.id, c.catalogue_id, k.name, c.label, c.family, c.params, c.lhs, c.rhs, c.field, c.position, k.seed, k.target_bits, k.key_scheme
+        SELECT c.id, c.catalogue_id, k.name, c.label, c.family, c.params, c.lhs, c.rhs, c.field, c.position, k.seed, k.target_bits, k.key_scheme, c.lhs_column, c.rhs_column
         FROM candidate c JOIN catalogue k ON k.id = c.catalogue_id
         """;
 
     internal static StoredCandidate ReadCandidate(DbDataReader r) =>
         new(r.GetInt64(0), r.GetInt64(1), r.GetString(2), r.GetString(3), r.NullableString(4), r.NullableString(5),
-            r.GetString(6), r.GetString(7), r.GetString(8), r.NullableInt(9), r.GetInt64(10), r.GetInt32(11), r.GetInt32(12));
+            r.GetString(6), r.GetString(7), r.GetString(8), r.NullableInt(9), r.GetInt64(10), r.GetInt32(11), r.GetInt32(12))
+        {
+            LhsColumn = r.NullableInt(13),
+            RhsColumn = r.NullableInt(14),
+        };
 
     /// <summary>The stored trials of a candidate in seq order, as the screener takes them for prior evidence.</summary>
     public IReadOnlyList<TrialRecord> LoadTrials(long candidateId)

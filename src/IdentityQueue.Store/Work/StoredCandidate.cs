@@ -21,6 +21,12 @@ public sealed record StoredCandidate(
     int CatalogueTargetBits,
     int KeyScheme = 1)
 {
+    /// <summary>The column of the catalogue line where <see cref="Lhs"/> starts, when it is the text as written there.</summary>
+    public int? LhsColumn { get; init; }
+
+    /// <summary>The column of the catalogue line where <see cref="Rhs"/> starts, when it is the text as written there.</summary>
+    public int? RhsColumn { get; init; }
+
     /// <summary>The catalogue's run seed.</summary>
     public RunSeed Seed => RunSeed.FromStored(CatalogueSeed);
 
@@ -55,7 +61,11 @@ public sealed record StoredCandidate(
             if (read is null) return BoundCandidate.Fail(error!);
             parameters = read;
         }
-        var entry = new IdentityEntry(Label, left.Value, right.Value, field.Value, [], Position ?? 1, Text);
+        var entry = new IdentityEntry(Label, left.Value, right.Value, field.Value, [], Position ?? 1, Text)
+        {
+            LeftSpan = LhsColumn is { } l ? new TextSpan(l - 1, Lhs.Length) : null,
+            RightSpan = RhsColumn is { } r ? new TextSpan(r - 1, Rhs.Length) : null,
+        };
         return new BoundCandidate(entry, parameters, null);
     }
 }

@@ -78,7 +78,7 @@ public class CompileErrorTests
     public void FamilyTooLarge_IsRefusedBeforeExpansion()
     {
         var parsed = CatalogueParser.ParseIdentity("x = y for n in 1..10^12");
-        var family = FamilyExpander.Expand(parsed.ValueOrThrow());
+        var family = FamilyExpander.Expand(parsed.Value);
         Assert.False(family.Success);
         Assert.Contains("the limit MaxFamilySize", family.Error!.Message);
     }
@@ -86,7 +86,7 @@ public class CompileErrorTests
     [Fact]
     public void EmptyFamily_IsAnError()
     {
-        var family = FamilyExpander.Expand(CatalogueParser.ParseIdentity("x = y for n in 5..2").ValueOrThrow());
+        var family = FamilyExpander.Expand(CatalogueParser.ParseIdentity("x = y for n in 5..2").Value);
         Assert.False(family.Success);
         Assert.Contains("no instances", family.Error!.Message);
     }
@@ -94,7 +94,7 @@ public class CompileErrorTests
     [Fact]
     public void TriangularFamily_UsesEarlierParameters()
     {
-        var family = FamilyExpander.Expand(CatalogueParser.ParseIdentity("binom(n, k) = binom(n, n-k) for n in 0..3, k in 0..n").ValueOrThrow());
+        var family = FamilyExpander.Expand(CatalogueParser.ParseIdentity("binom(n, k) = binom(n, n-k) for n in 0..3, k in 0..n").Value);
         Assert.True(family.Success);
         Assert.Equal(10, family.Instances.Count);
     }

@@ -576,4 +576,42 @@ public class BlockEvaluatorTests
         Assert.Contains("scalar", new BlockEvaluator<PrimeField62, Residue62>(PrimeField62.CreateRandom(ref r), program, 64, LaneKernel.Scalar).Kernel);
         Assert.Contains("generic", new BlockEvaluator<PrimeField127, Residue127>(PrimeField127.CreateRandom(ref r), program).Kernel);
     }
+
+    private static ElementLayout LayoutOf<TField>() where TField : IElementLayout => TField.Layout;
+
+    [Fact]
+    public void FieldsNameTheirLayout_OnlyTheMontgomeryRungsRunOnRawRepresentatives()
+    {
+        // The layouts as the fields document them (PrimeField31: R = 2^32, PrimeField62: R = 2^64); every other field is generic.
+        Assert.Equal(ElementLayout.Montgomery31, LayoutOf<PrimeField31>());
+        Assert.Equal(ElementLayout.Montgomery62, LayoutOf<PrimeField62>());
+        Assert.Equal(ElementLayout.Generic, LayoutOf<PrimeField127>());
+        Assert.Equal(ElementLayout.Generic, LayoutOf<SmallPrimeField>());
+        Assert.Equal(ElementLayout.Generic, LayoutOf<ExtensionField<SmallPrimeField, SmallResidue>>());
+    }
+
+    [Fact]
+    public void Kernel_IsTheWidestThatTheCpuRunsAndTheBlockFills()
+    {
+        // The rule of BlockInterpreter.Create (this code's design, not an outside fact): a vector kernel only for a block of
+        // whole vectors, else the next narrower one; LanesPerInstruction is the width of the widest.
+        var program = BlockProgram.Prepare(Compile("x*y + 1 = y*x + 1"));
+        var r = new Xoshiro256(96);
+        var f31 = PrimeField31.CreateRandom(ref r);
+        var f62 = PrimeField62.CreateRandom(ref r);
+        var avx512 = System.Runtime.Intrinsics.X86.Avx512F.IsSupported;
+        var avx2 = System.Runtime.Intrinsics.X86.Avx2.IsSupported;
+        var avx512dq = avx512 && System.Runtime.Intrinsics.X86.Avx512DQ.IsSupported;
+        Assert.Equal(avx512 ? 16 : avx2 ? 8 : 1, BlockEvaluator.LanesPerInstruction<PrimeField31>());
+        Assert.Equal(avx512dq ? 8 : 1, BlockEvaluator.LanesPerInstruction<PrimeField62>());
+        Assert.Equal(1, BlockEvaluator.LanesPerInstruction<PrimeField127>());
+
+        Assert.Contains(avx512 ? "AVX-512" : avx2 ? "AVX2" : "scalar", new BlockEvaluator<PrimeField31, Residue31>(f31, program, 64).Kernel);
+        Assert.Contains(avx2 ? "AVX2" : "scalar", new BlockEvaluator<PrimeField31, Residue31>(f31, program, 8).Kernel);
+        Assert.Contains(avx2 ? "AVX2" : "scalar", new BlockEvaluator<PrimeField31, Residue31>(f31, program, 64, LaneKernel.Avx2).Kernel);
+        Assert.Contains("scalar", new BlockEvaluator<PrimeField31, Residue31>(f31, program, 20).Kernel);
+        Assert.Contains(avx512dq ? "AVX-512" : "scalar", new BlockEvaluator<PrimeField62, Residue62>(f62, program, 64).Kernel);
+        Assert.Contains("scalar", new BlockEvaluator<PrimeField62, Residue62>(f62, program, 12).Kernel);
+        Assert.Contains("scalar", new BlockEvaluator<PrimeField62, Residue62>(f62, program, 64, LaneKernel.Avx2).Kernel);
+    }
 }

@@ -61,7 +61,7 @@ public class MatrixKernelPathTests
                 if (f is PrimeField62 f62)
                 {
                     // the blocked elimination without vectors, whatever the CPU
-                    var scalar = MatrixKernels.Determinant62(f62, MemoryMarshal.Cast<T, ulong>(((T[])m.Clone()).AsSpan()), n, avx512: false);
+                    var scalar = MatrixKernels62.Determinant(f62, MemoryMarshal.Cast<T, ulong>(((T[])m.Clone()).AsSpan()), n, avx512: false);
                     Assert.True(PrimeField62.ToMontgomery((Residue62)(object)plain) == scalar, $"scalar blocked path, n={n}, {kind}");
                 }
                 if (kind is "repeated row" or "zero column") Assert.True(f.IsZero(fast), $"singular, n={n}");
@@ -96,7 +96,7 @@ public class MatrixKernelPathTests
         var first = MatrixKernels.Determinant(f, (Residue62[])m.Clone(), 300);
         Assert.Equal(first, MatrixKernels.Determinant(f, (Residue62[])m.Clone(), 300));
         Assert.Equal(first, MatrixKernels.DeterminantByElimination(f, (Residue62[])m.Clone(), 300, 0));
-        var scalar = MatrixKernels.Determinant62(f, MemoryMarshal.Cast<Residue62, ulong>(((Residue62[])m.Clone()).AsSpan()), 300, avx512: false);
+        var scalar = MatrixKernels62.Determinant(f, MemoryMarshal.Cast<Residue62, ulong>(((Residue62[])m.Clone()).AsSpan()), 300, avx512: false);
         Assert.Equal(PrimeField62.ToMontgomery(first), scalar);
     }
 
@@ -186,7 +186,7 @@ public class MatrixKernelPathTests
                 var m = new Residue62[n * n];
                 for (var i = 0; i < m.Length; i++) m[i] = r.NextBelow(6) == 0 ? f.Zero : r.NextBelow(6) == 0 ? f.Negate(f.One) : f.Sample(ref r);
                 var ryser = MatrixKernels.Ryser<PrimeField62, Residue62>(f, m, n, new Residue62[n]);
-                var vector = MatrixKernels.Glynn62Avx512(f, MemoryMarshal.Cast<Residue62, ulong>(m.AsSpan()), n);
+                var vector = MatrixKernels62.GlynnAvx512(f, MemoryMarshal.Cast<Residue62, ulong>(m.AsSpan()), n);
                 Assert.Equal(PrimeField62.ToMontgomery(ryser), vector);
             }
     }

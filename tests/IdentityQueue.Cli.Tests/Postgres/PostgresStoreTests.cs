@@ -117,6 +117,26 @@ public sealed class PostgresStoreTests : IDisposable
         Assert.Contains("\"workers\"", status.Out);
     }
 
+    // The families view's runs, as on SQLite (Moser's circle problem: holds for n = 1..5, fails from 6; R. K. Guy,
+    // "The strong law of small numbers", Amer. Math. Monthly 95 (1988)).
+    [PostgresFact]
+    public void FamiliesView_GivesTheSameRunsAsOnSqlite()
+    {
+        var pg = NewDatabase();
+        var sqlite = Path.Combine(_dir, "families.db");
+        var file = Path.Combine(_dir, "m.idq");
+        File.WriteAllText(file, "moser: sum(k in 0..4: binom(n-1, k)) = 2^(n-1) for n in 1..10\nparity: (-1)^n = 1 for n in -3..3\ntwo: x^(m+n) = x^m*x^n for m in 0..1, n in 0..1\n");
+        foreach (var store in new[] { new[] { "--db", sqlite }, new[] { "--postgres", pg } })
+        {
+            Assert.Equal(0, Idq(["init", .. store]).Code);
+            Assert.Equal(0, Idq(["import", file, "--seed", "3", .. store]).Code);
+            Assert.Equal(0, Idq(["run", .. store]).Code);
+        }
+        const string sql = "SELECT family, holds_for, fails_for FROM families ORDER BY family";
+        Assert.Equal(["moser|1..5|6..10", "parity|-2, 0, 2|-3, -1, 1, 3", "two||"], Rows(StoreLocation.PostgreSql(pg), sql));
+        Assert.Equal(Rows(StoreLocation.Sqlite(sqlite), sql), Rows(StoreLocation.PostgreSql(pg), sql));
+    }
+
     [PostgresFact]
     public void HandInsertedRows_ArePickedUpByTheNextRun()
     {

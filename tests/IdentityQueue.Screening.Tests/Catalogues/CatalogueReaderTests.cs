@@ -25,10 +25,12 @@ public sealed class CatalogueReaderTests
         Assert.Equal([1, 2, 3, 4, 5, 6], lines.Select(l => l.Number));
         Assert.True(lines[0].Read.Success);
         Assert.Null(lines[0].Read.Value);
-        var sq = lines[1].Read.ValueOrThrow()!;
+        var sq = lines[1].Read.Value!;
         Assert.Equal(("sq", null, "Q"), (sq.Label, sq.Family, sq.Field));
         Assert.Equal(["sq"], sq.Instances.Select(i => i.Label));
-        var pow = lines[3].Read.ValueOrThrow()!;
+        // Sides as written, with the columns where they start in the line (counted by hand: "sq: " is 4 characters).
+        Assert.Equal(new CatalogueSides("(a+b)^2", "a^2 + 2*a*b + b^2", 5, 15), sq.Sides);
+        var pow = lines[3].Read.Value!;
         Assert.Equal("pow", pow.Family);
         Assert.Equal(["pow[n=1]", "pow[n=2]", "pow[n=3]"], pow.Instances.Select(i => i.Label));
         Assert.Equal([1, 2, 3], pow.Instances.Select(i => (int)i.Parameters.Single().Value));
@@ -42,7 +44,7 @@ public sealed class CatalogueReaderTests
     public void UnlabelledEntries_AreNamedByFileAndLine()
     {
         var lines = Read("dir/my.idq", "x = x\n", out _);
-        Assert.Equal("my.idq:1", lines[0].Read.ValueOrThrow()!.Instances.Single().Label);
+        Assert.Equal("my.idq:1", lines[0].Read.Value!.Instances.Single().Label);
         Assert.Null(lines[0].Read.Value!.Label);
     }
 
@@ -55,14 +57,15 @@ public sealed class CatalogueReaderTests
             {"lhs": "x", "rhs": "x", "for": {"2n": [1, 2]}}
             {"lhs": "x", "rhs": "x", "for": {"α": [1, 1]}}
             """, out _);
-        Assert.Equal(2, json[0].Read.ValueOrThrow()!.Instances.Count);
+        Assert.Equal(2, json[0].Read.Value!.Instances.Count);
+        Assert.Equal(new CatalogueSides("x^n", "x^n", null, null), json[0].Read.Value!.Sides); // no columns outside an .idq line
         Assert.Equal("line 2: the label \"bad label!\" may contain only letters, digits, '_', '-' and '.'", json[1].Read.Error!.Message);
         Assert.Equal("line 3: \"2n\" in \"for\" is not a parameter name", json[2].Read.Error!.Message);
         Assert.True(json[3].Read.Success); // Greek letters are names (the lexer's rule)
 
         var csv = Read("c.csv", "label,lhs,rhs,note\nt,x+1,1+x,from a paper\n", out var reader);
         Assert.Null(csv[0].Read.Value);
-        Assert.Equal("t", csv[1].Read.ValueOrThrow()!.Label);
+        Assert.Equal("t", csv[1].Read.Value!.Label);
         Assert.Single(reader.Warnings);
     }
 

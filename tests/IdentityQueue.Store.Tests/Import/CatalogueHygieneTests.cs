@@ -16,7 +16,7 @@ public sealed class CatalogueHygieneTests
         var rejections = store.Rows("SELECT line, reason FROM rejection ORDER BY line");
         Assert.Equal([4L, "line 4: the label 'sq' is already used on line 1; labels must be unique in a catalogue"], rejections[0]);
         Assert.Equal([6L, "line 6: the label 'fam' is already used on line 5; labels must be unique in a catalogue"], rejections[1]);
-        Assert.Equal("(x + 1)^2", store.Scalar("SELECT lhs FROM candidate WHERE label = 'sq'"));
+        Assert.Equal("(x+1)^2", store.Scalar("SELECT lhs FROM candidate WHERE label = 'sq'"));
     }
 
     [Fact]

@@ -65,14 +65,15 @@ public sealed class CatalogueImporterTests
         Assert.Equal("c", summary.Catalogue);
 
         var plain = store.Rows("SELECT label, family, params, lhs, rhs, field FROM candidate WHERE family IS NULL ORDER BY id");
-        Assert.Equal(["two-squares", null, null, "(a^2 + b^2)*(c^2 + d^2)", "(a*c - b*d)^2 + (a*d + b*c)^2", "Q"], plain[0]);
-        Assert.Equal(["wrong", null, null, "(x + y)^2", "x^2 + y^2", "Q"], plain[1]);
+        // Each side is stored as written (the column where it starts in an .idq line is stored beside it).
+        Assert.Equal(["two-squares", null, null, "(a^2+b^2)*(c^2+d^2)", "(a*c-b*d)^2 + (a*d+b*c)^2", "Q"], plain[0]);
+        Assert.Equal(["wrong", null, null, "(x+y)^2", "x^2 + y^2", "Q"], plain[1]);
 
         var family = store.Rows("SELECT label, params, lhs, rhs FROM candidate WHERE family = 'binomial' ORDER BY id");
         Assert.Equal(6, family.Count);
         Assert.Equal(Enumerable.Range(0, 6).Select(n => $"binomial[n={n}]"), family.Select(r => (string)r[0]!));
         Assert.Equal(Enumerable.Range(0, 6).Select(n => $"{{\"n\":{n}}}"), family.Select(r => (string)r[1]!));
-        Assert.All(family, r => Assert.Equal("sum(k in 0..n: binom(n, k))", r[2]));
+        Assert.All(family, r => Assert.Equal("sum(k in 0..n: binom(n,k))", r[2]));
 
         var rejection = Assert.Single(store.Rows("SELECT source, line, raw, reason FROM rejection"));
         Assert.Equal(Path.Combine(store.Folder, name), rejection[0]);

@@ -14,7 +14,10 @@ public sealed class MigrationTests
         { "rejection", ["id", "catalogue_id", "source", "line", "raw", "reason"] },
         { "verdicts", ["candidate_id", "catalogue", "label", "family", "state", "degree_bound", "trials", "error_bound_log2", "witness_modulus", "witness_point", "message"] },
         { "survivors", ["label", "state"] },
-        { "families", ["catalogue", "family", "instances", "survived", "refuted", "other", "first_refuted", "survived_params"] },
+        { "families", ["catalogue", "family", "instances", "survived", "refuted", "other", "first_refuted", "survived_params", "holds_for", "fails_for"] },
+        { "counterexamples", ["candidate_id", "label", "point", "lhs_value", "rhs_value", "max_abs", "exhaustive"] },
+        { "differences", ["candidate_id", "label", "difference", "terms", "total_degree"] },
+        { "equivalents", ["candidate_id", "label", "group_label"] },
     };
 
     [Theory]
