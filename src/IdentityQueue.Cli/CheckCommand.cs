@@ -68,12 +68,13 @@ public static class CheckCommand
             DefinitionScope? scope = null;
             if (parse.GetValue(definitions) is { } file)
             {
-                scope = ReadDefinitions(file, options.Limits, out var definitionProblem);
-                if (scope is null)
+                var read = ReadDefinitions(file, options.Limits);
+                if (!read.Success)
                 {
-                    error.WriteLine($"idq check: {definitionProblem}");
+                    error.WriteLine($"idq check: {read.Error.Message}");
                     return ExitCodes.BadInput;
                 }
+                scope = read.Value;
             }
             using var stop = new StopSignals();
             return Execute(parse.GetValue(identity) ?? "", parse.GetValue(over), options, parse.GetValue(json), output, error, scope, stop.Token);
@@ -81,9 +82,14 @@ public static class CheckCommand
         return command;
     }
 
-    /// <summary>One instance's outcome: its parameters, and a screen result or the reason it is invalid.</summary>
-    internal sealed record InstanceOutcome(IReadOnlyDictionary<string, BigInteger> Parameters, ScreenResult? Result, string? Invalid)
+    /// <summary>One instance's outcome: its parameters, and a screen result or why it does not compile (with its position).</summary>
+    internal sealed record InstanceOutcome(IReadOnlyDictionary<string, BigInteger> Parameters, Result<ScreenResult> Screen)
     {
+        public ScreenResult? Result => Screen.Success ? Screen.Value : null;
+
+        /// <summary>The compile error's text, or null when the instance was screened.</summary>
+        public string? Invalid => Screen.Success ? null : Screen.Error.ToString();
+
         public Verdict Verdict => Result?.Verdict ?? Verdict.Invalid;
     }
 
@@ -95,10 +101,9 @@ public static class CheckCommand
         DefaultValueFactory = _ => TimeBudget.Default.PerCandidate.TotalSeconds,
     };
 
-    /// <summary>The definitions (<c>let</c> lines) of a catalogue file, in order; null with the problem when one is bad or the file cannot be read.</summary>
-    internal static DefinitionScope? ReadDefinitions(FileInfo file, Limits limits, out string? problem)
+    /// <summary>The definitions (<c>let</c> lines) of a catalogue file, in order, or the problem when one is bad or the file cannot be read.</summary>
+    internal static Result<DefinitionScope> ReadDefinitions(FileInfo file, Limits limits)
     {
-        problem = null;
         var scope = new DefinitionScope();
         string[] lines;
         try
@@ -107,8 +112,7 @@ public static class CheckCommand
         }
         catch (Exception e) when (e is IOException or UnauthorizedAccessException)
         {
-            problem = $"--definitions: cannot read {file.FullName}: {e.Message}";
-            return null;
+            return Result<DefinitionScope>.Fail($"--definitions: cannot read {file.FullName}: {e.Message}");
         }
         for (var i = 0; i < lines.Length; i++)
         {
@@ -116,13 +120,9 @@ public static class CheckCommand
             while (first < lines[i].Length && char.IsWhiteSpace(lines[i][first])) first++;
             if (!CatalogueParser.IsDefinition(lines[i], first)) continue;
             var parsed = CatalogueParser.ParseLine(lines[i], i + 1, limits, scope);
-            if (!parsed.Success)
-            {
-                problem = $"--definitions {file.Name}: {parsed.Error}";
-                return null;
-            }
+            if (!parsed.Success) return Result<DefinitionScope>.Fail($"--definitions {file.Name}: {parsed.Error}");
         }
-        return scope;
+        return Result<DefinitionScope>.Ok(scope);
     }
 
     internal static int Execute(string text, string? over, ScreeningOptions options, bool json, TextWriter output, TextWriter error,
@@ -146,7 +146,7 @@ public static class CheckCommand
             var compiled = IdentityCompiler.Compile(entry, parameters, options.Limits);
             if (!compiled.Success)
             {
-                outcomes.Add(new InstanceOutcome(parameters, null, compiled.Error!.ToString()));
+                outcomes.Add(new InstanceOutcome(parameters, compiled.Cast<ScreenResult>()));
                 continue;
             }
             if (cancellation.IsCancellationRequested) break;
@@ -163,15 +163,14 @@ public static class CheckCommand
                     Verdict = Verdict.Undecided,
                     Message = $"stopped by a signal after {result.TrialCount} trials, at 2^{result.ErrorBoundLog2 ?? 0:F1} of the target {options.Target}",
                 };
-            outcomes.Add(new InstanceOutcome(parameters, result, null));
+            outcomes.Add(new InstanceOutcome(parameters, Result<ScreenResult>.Ok(result)));
         }
         if (json) JsonReport.Write(output, entry, options, outcomes);
         else TextReport.Write(output, entry, options, outcomes);
         // Every invalid message on standard error, like a parse error (with the text and a caret for a single line).
         foreach (var o in outcomes.Where(o => o.Verdict == Verdict.Invalid))
             error.WriteLine($"idq check: invalid: {o.Invalid ?? o.Result?.Message}");
-        if (outcomes is [{ Verdict: Verdict.Invalid, Invalid: not null }] && !json && text.Length <= 200
-            && IdentityCompiler.Compile(entry, family.Instances[0], options.Limits).Error is { Position: { Line: 1, Column: >= 1 } at })
+        if (outcomes is [{ Screen.Error.Position: { Line: 1, Column: >= 1 } at }] && !json && text.Length <= 200)
         {
             error.WriteLine($"  {text}");
             error.WriteLine($"  {new string(' ', Math.Min(at.Column - 1, text.Length))}^");

@@ -4,6 +4,8 @@ using System.Text.Json;
 using IdentityQueue.Algebra;
 using IdentityQueue.Screening.HandOff;
 using IdentityQueue.Store;
+using IdentityQueue.Store.Read;
+using IdentityQueue.Store.Schema;
 using IdentityQueue.Store.Work;
 
 namespace IdentityQueue.Cli;
@@ -14,20 +16,6 @@ namespace IdentityQueue.Cli;
 /// </summary>
 internal static class ExportCommand
 {
-    /// <summary>One row per candidate: the candidate, its result and its witness (if refuted). Portable SQL.</summary>
-    internal const string Query = """
-        SELECT c.id, k.name AS catalogue, c.label, c.family, c.params, c.lhs, c.rhs, c.field,
-               r.state, r.degree_bound, r.error_bound_log2, r.certified, r.message,
-               (SELECT count(*) FROM trial t WHERE t.candidate_id = c.id) AS trials,
-               w.modulus AS witness_modulus, w.defining_polynomial AS witness_polynomial, w.point AS witness_point,
-               w.difference AS witness_difference, w.entry AS witness_entry,
-               r.height_bound_log2, r.trials_zero
-        FROM candidate c
-        JOIN catalogue k ON k.id = c.catalogue_id
-        LEFT JOIN result r ON r.candidate_id = c.id
-        LEFT JOIN trial w ON w.id = r.witness_trial_id
-        """;
-
     private static readonly string[] HandOffFormats = ["smtlib", "tex", "md"];
 
     private const string Help = """
@@ -68,49 +56,48 @@ internal static class ExportCommand
         store.AddTo(command);
         command.SetAction(parse =>
         {
-            using (var connection = store.OpenCurrent(parse, "export", error)) if (connection is null) return ExitCodes.BadInput;
+            using var connection = store.OpenCurrent(parse, "export", error);
+            if (connection is null) return ExitCodes.BadInput;
             var chosen = parse.GetValue(format)!;
-            var states = parse.GetValue(state) ?? [];
-            if (states.Length == 0 && HandOffFormats.Contains(chosen)) states = ["survived"];
-            var known = new[] { "pending", "queued", "screening", "refuted", "survived", "undecided", "invalid", "failed" };
-            if (states.FirstOrDefault(s => !known.Contains(s)) is { } bad)
+            var names = parse.GetValue(state) ?? [];
+            if (names.Length == 0 && HandOffFormats.Contains(chosen)) names = [ResultStates.Survived];
+            var states = new List<ResultState>();
+            foreach (var name in names)
             {
-                error.WriteLine($"idq export: unknown state '{bad}'; states are {string.Join(", ", known)}");
-                return ExitCodes.BadInput;
+                if (!ResultStates.TryParse(name, out var known))
+                {
+                    error.WriteLine($"idq export: unknown state '{name}'; states are {string.Join(", ", ResultStates.All)}");
+                    return ExitCodes.BadInput;
+                }
+                states.Add(known);
             }
-            var where = states.Length == 0 ? "" : $" WHERE r.state IN ({string.Join(",", states.Select(s => $"'{s}'"))})";
-            var rows = ReadOnlyQuery.Run(store.Location(parse), Query + where + " ORDER BY c.id");
+            var rows = new ExportRows(connection).Read(states);
             var target = parse.GetValue(outFile);
-            var selection = states.Length == 0 ? "all states" : string.Join(", ", states);
+            var selection = names.Length == 0 ? "all states" : string.Join(", ", names);
             if (chosen == "smtlib") return WriteSmtLib(rows, target, output, error);
             using var file = target is not null ? new StreamWriter(target) : null;
             var writer = (TextWriter?)file ?? output;
             switch (chosen)
             {
-                case "csv": QueryCommands.WriteCsv(writer, rows); break;
+                case "csv": QueryCommands.WriteCsv(writer, new QueryResult(ExportRows.Columns, [.. rows.Select(r => r.Values())])); break;
                 case "tex": writer.Write(EvidenceTable.Latex(Candidates(rows).Select(c => c.HandOff).ToList(), selection)); break;
                 case "md": writer.Write(EvidenceTable.Markdown(Candidates(rows).Select(c => c.HandOff).ToList(), selection)); break;
                 default: WriteJsonLines(writer, rows); break;
             }
-            if (file is not null) output.WriteLine($"wrote {rows.Rows.Count} candidates to {target}");
+            if (file is not null) output.WriteLine($"wrote {rows.Count} candidates to {target}");
             return ExitCodes.Success;
         });
         return command;
     }
 
     /// <summary>The rows as hand-off candidates, with the stored form that binds the parameters.</summary>
-    private static IEnumerable<(HandOffCandidate HandOff, StoredCandidate Stored)> Candidates(QueryResult rows)
+    private static IEnumerable<(HandOffCandidate HandOff, StoredCandidate Stored)> Candidates(IReadOnlyList<ExportRow> rows)
     {
-        var at = rows.Columns.Select((name, i) => (name, i)).ToDictionary(p => p.name, p => p.i);
-        foreach (var row in rows.Rows)
+        foreach (var row in rows)
         {
-            string? Text(string column) => row[at[column]] is { } v ? QueryCommands.Text(v) : null;
-            var id = Convert.ToInt64(row[at["id"]], CultureInfo.InvariantCulture);
-            var errorBound = row[at["error_bound_log2"]] is { } e ? Convert.ToDouble(e, CultureInfo.InvariantCulture) : (double?)null;
-            var handOff = new HandOffCandidate(id, Text("label") ?? "", Text("family"), Text("params"), Text("lhs") ?? "", Text("rhs") ?? "",
-                Text("field") ?? "Q", Text("state"), Text("degree_bound"), errorBound, Convert.ToInt64(row[at["trials"]], CultureInfo.InvariantCulture));
-            var stored = new StoredCandidate(id, 0, Text("catalogue") ?? "", handOff.Label, handOff.Family, handOff.Params,
-                handOff.Lhs, handOff.Rhs, handOff.Field, null, 0, 0);
+            var handOff = new HandOffCandidate(row.Id, row.Label, row.Family, row.Params, row.Lhs, row.Rhs, row.Field, row.State?.Text(),
+                row.DegreeBound, row.ErrorBoundLog2, row.Trials);
+            var stored = new StoredCandidate(row.Id, 0, row.Catalogue, row.Label, row.Family, row.Params, row.Lhs, row.Rhs, row.Field, null, 0, 0);
             yield return (handOff, stored);
         }
     }
@@ -119,7 +106,7 @@ internal static class ExportCommand
     /// smtlib: one file per candidate in <paramref name="directory"/>, or one script with push/pop blocks on standard
     /// output. A skipped candidate is named on standard error with the reason; the closing line counts both.
     /// </summary>
-    private static int WriteSmtLib(QueryResult rows, string? directory, TextWriter output, TextWriter error)
+    private static int WriteSmtLib(IReadOnlyList<ExportRow> rows, string? directory, TextWriter output, TextWriter error)
     {
         if (directory is not null) Directory.CreateDirectory(directory);
         else output.WriteLine($"; idq export --format smtlib: one (push 1) ... (pop 1) block per candidate\n(set-logic {SmtLibWriter.Logic})");
@@ -160,24 +147,23 @@ internal static class ExportCommand
         return label.Length == 0 ? $"{candidate.Id}.smt2" : $"{candidate.Id}-{label}.smt2";
     }
 
-    private static readonly HashSet<string> JsonColumns = ["params", "witness_polynomial", "witness_point"];
-
-    private static void WriteJsonLines(TextWriter output, QueryResult rows)
+    private static void WriteJsonLines(TextWriter output, IReadOnlyList<ExportRow> rows)
     {
-        foreach (var row in rows.Rows)
+        foreach (var row in rows)
         {
             using var stream = new MemoryStream();
             using (var w = new Utf8JsonWriter(stream))
             {
                 w.WriteStartObject();
-                for (var i = 0; i < row.Length; i++)
+                var values = row.Values();
+                for (var i = 0; i < values.Length; i++)
                 {
-                    var name = rows.Columns[i];
-                    switch (row[i])
+                    var name = ExportRows.Columns[i];
+                    switch (values[i])
                     {
-                        case string s when JsonColumns.Contains(name): w.WritePropertyName(name); w.WriteRawValue(s); break;
+                        case string s when ExportRows.JsonColumns.Contains(name): w.WritePropertyName(name); w.WriteRawValue(s); break;
                         case long l when name == "certified": w.WriteBoolean(name, l != 0); break;
-                        default: QueryCommands.WriteValue(w, name, row[i]); break;
+                        default: QueryCommands.WriteValue(w, name, values[i]); break;
                     }
                 }
                 w.WriteEndObject();

@@ -60,11 +60,12 @@ public static class ImportCommand
         foreach (var path in paths)
         {
             var result = importer.Import(path, options with { RejectionsListed = RejectionsShown });
-            if (result.Summary is not { } s)
+            if (!result.Success)
             {
-                error.WriteLine($"idq import: {result.Refusal}");
+                error.WriteLine($"idq import: {result.Error.Message}");
                 return ExitCodes.BadInput;
             }
+            var s = result.Value;
             var rate = s.Elapsed.TotalSeconds > 0 ? $", {s.Lines / s.Elapsed.TotalSeconds:F0} lines/s" : "";
             output.WriteLine($"{path}: catalogue '{s.Catalogue}' (id {s.CatalogueId}, seed {s.Seed}): " +
                 $"{Count(s.Entries, "entry", "entries")}, {Count(s.Instances, "instance", "instances")}, " +

@@ -58,7 +58,7 @@ public static class InitCommand
             error.WriteLine($"idq init: {e.Message}");
             return ExitCodes.BadInput;
         }
-        catch (Npgsql.NpgsqlException e)
+        catch (System.Data.Common.DbException e) when (location.IsPostgreSql)
         {
             error.WriteLine($"idq init: the PostgreSQL store {path} could not be initialised: {e.Message}");
             return ExitCodes.BadInput;

@@ -18,7 +18,7 @@ internal static class JsonReport
         using (var w = new Utf8JsonWriter(stream, Options))
         {
             w.WriteStartObject();
-            w.WriteString("verdict", "invalid");
+            w.WriteString("verdict", Verdict.Invalid.ToString().ToLowerInvariant());
             w.WriteNull("degreeBound");
             w.WriteNull("errorBoundLog2");
             w.WriteNumber("trials", 0);

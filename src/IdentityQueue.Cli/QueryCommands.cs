@@ -2,6 +2,8 @@ using System.CommandLine;
 using System.Globalization;
 using System.Text.Json;
 using IdentityQueue.Store;
+using IdentityQueue.Store.Read;
+using IdentityQueue.Store.Schema;
 using IdentityQueue.Store.Work;
 using IdentityQueue.Worker;
 
@@ -42,7 +44,7 @@ internal static class QueryCommands
             {
                 result = ReadOnlyQuery.Run(location, sql);
             }
-            catch (System.Data.Common.DbException e) when (IsReadOnlyRefusal(e))
+            catch (System.Data.Common.DbException e) when (ReadOnlyQuery.IsReadOnlyRefusal(e))
             {
                 error.WriteLine($"idq sql: {ReadOnlyMessage(null, location)} ({e.Message})");
                 return ExitCodes.BadInput;
@@ -84,10 +86,6 @@ internal static class QueryCommands
         var word = sql[start..i].ToUpperInvariant();
         return WriteKeywords.Contains(word) ? word : null;
     }
-
-    /// <summary>SQLite's SQLITE_READONLY (8) or PostgreSQL's read_only_sql_transaction (25006).</summary>
-    private static bool IsReadOnlyRefusal(System.Data.Common.DbException e) =>
-        e is Microsoft.Data.Sqlite.SqliteException { SqliteErrorCode: 8 } || e.SqlState == "25006";
 
     /// <summary>What to say to a statement that would write: idq sql is read-only, and how rows are added instead.</summary>
     internal static string ReadOnlyMessage(string? keyword, StoreLocation location)
@@ -171,31 +169,21 @@ internal static class QueryCommands
         {
             using var store = db.OpenCurrent(parse, "status", error);
             if (store is null) return ExitCodes.BadInput;
-            var path = store.Location;
             try
             {
-                var perCatalogue = ReadOnlyQuery.Run(path, """
-                    SELECT k.name AS catalogue, r.state AS state, count(*) AS n
-                    FROM result r JOIN candidate c ON c.id = r.candidate_id JOIN catalogue k ON k.id = c.catalogue_id
-                    GROUP BY k.name, r.state ORDER BY k.name, r.state
-                    """);
-                var recent = ReadOnlyQuery.Run(path, $"""
-                    SELECT count(*) FROM result
-                    WHERE state IN ('refuted','survived','undecided','invalid','failed') AND updated_at >= {store.SecondsAgo(60)}
-                    """);
+                var counts = StatusCounts.Read(store);
                 // "alive" in the listing: a heartbeat within three beats; recovery waits longer (DeadAfter) before it takes work back.
                 var workers = new WorkerRegistry(store).List(3 * new WorkerSettings().HeartbeatInterval);
-                var rate = Convert.ToDouble(recent.Rows[0][0], CultureInfo.InvariantCulture) / 60.0;
-                var byCatalogue = perCatalogue.Rows.GroupBy(r => (string)r[0]!)
-                    .ToDictionary(g => g.Key, g => g.ToDictionary(r => (string)r[1]!, r => Convert.ToInt64(r[2], CultureInfo.InvariantCulture)));
-                var open = byCatalogue.Values.SelectMany(d => d).Where(kv => kv.Key is "pending" or "queued" or "screening").Sum(kv => kv.Value);
+                var rate = counts.SettledLastMinute / 60.0;
+                var byCatalogue = counts.ByCatalogue();
+                var open = counts.Open;
                 var eta = rate > 0 && open > 0 ? TimeSpan.FromSeconds(open / rate) : (TimeSpan?)null;
                 if (parse.GetValue(json)) WriteStatusJson(output, byCatalogue, rate, open, eta, workers);
                 else
                 {
-                    var states = new[] { "pending", "queued", "screening", "refuted", "survived", "undecided", "invalid", "failed" };
-                    var rows = byCatalogue.Select(kv => new object?[] { kv.Key }.Concat(states.Select(s => (object?)(kv.Value.TryGetValue(s, out var n) ? n : 0))).ToArray()).ToList();
-                    WriteTable(output, new QueryResult(["catalogue", .. states], rows));
+                    var rows = byCatalogue.Select(c => new object?[] { c.Catalogue }
+                        .Concat(ResultStates.Values.Select(s => (object?)(c.States.TryGetValue(s, out var n) ? n : 0))).ToArray()).ToList();
+                    WriteTable(output, new QueryResult(["catalogue", .. ResultStates.All], rows));
                     output.WriteLine($"throughput {rate * 60:F0} candidates settled in the last minute; {open} open" + (eta is { } e ? $", ETA {e:hh\\:mm\\:ss}" : ""));
                     WriteWorkers(output, workers);
                 }
@@ -243,7 +231,8 @@ internal static class QueryCommands
         _ => DateTime.SpecifyKind(t, DateTimeKind.Utc),
     };
 
-    private static void WriteStatusJson(TextWriter output, Dictionary<string, Dictionary<string, long>> byCatalogue, double rate, long open, TimeSpan? eta,
+    private static void WriteStatusJson(TextWriter output, IReadOnlyList<(string Catalogue, IReadOnlyDictionary<ResultState, long> States)> byCatalogue,
+        double rate, long open, TimeSpan? eta,
         IReadOnlyList<WorkerInfo> workers)
     {
         using var stream = new MemoryStream();
@@ -254,12 +243,12 @@ internal static class QueryCommands
             foreach (var (name, states) in byCatalogue)
             {
                 w.WriteStartObject(name);
-                foreach (var (state, n) in states) w.WriteNumber(state, n);
+                foreach (var (state, n) in states) w.WriteNumber(state.Text(), n);
                 w.WriteEndObject();
             }
             w.WriteEndObject();
             w.WriteStartObject("total");
-            foreach (var g in byCatalogue.Values.SelectMany(d => d).GroupBy(kv => kv.Key)) w.WriteNumber(g.Key, g.Sum(kv => kv.Value));
+            foreach (var g in byCatalogue.SelectMany(c => c.States).GroupBy(kv => kv.Key)) w.WriteNumber(g.Key.Text(), g.Sum(kv => kv.Value));
             w.WriteEndObject();
             w.WriteNumber("open", open);
             w.WriteNumber("settledPerSecond", Math.Round(rate, 3));

@@ -4,6 +4,8 @@ using System.Text.Json;
 using IdentityQueue.Algebra.Compile;
 using IdentityQueue.Screening;
 using IdentityQueue.Store;
+using IdentityQueue.Store.Read;
+using IdentityQueue.Store.Schema;
 using IdentityQueue.Store.Work;
 
 namespace IdentityQueue.Cli;
@@ -22,46 +24,33 @@ internal static class ShowCommands
         {
             using var connection = store.OpenCurrent(parse, "show", error);
             if (connection is null) return ExitCodes.BadInput;
-            var path = store.Location(parse);
             var text = parse.GetValue(key)!;
-            var idQuery = long.TryParse(text, NumberStyles.None, CultureInfo.InvariantCulture, out var id)
-                ? $"SELECT id FROM candidate WHERE id = {id}"
-                : $"SELECT id FROM candidate WHERE label = '{text.Replace("'", "''")}' ORDER BY id";
-            var ids = ReadOnlyQuery.Run(path, idQuery).Rows.Select(r => Convert.ToInt64(r[0], CultureInfo.InvariantCulture)).ToList();
-            if (ids.Count == 0)
+            if (new CandidateReads(connection).Detail(text) is not { } detail)
             {
                 error.WriteLine($"idq show: no candidate with id or label '{text}'");
                 return ExitCodes.BadInput;
             }
-            var candidates = new CandidateStore(connection);
-            var stored = candidates.LoadCandidate(ids[0])!;
-            var trials = candidates.LoadTrials(ids[0]);
-            var result = ReadOnlyQuery.Run(path, $"""
-                SELECT state, degree_bound, height_bound_log2, trials_zero, error_bound_log2, witness_trial_id, certified, message, updated_at
-                FROM result WHERE candidate_id = {ids[0]}
-                """);
-            var row = result.Rows.Count > 0 ? result.Rows[0] : null;
-            var state = row?[0] as string ?? "pending";
-            if (parse.GetValue(json)) WriteJson(output, stored, row, result.Columns, trials);
-            else WriteText(output, stored, state, row, trials, ids.Count);
+            if (parse.GetValue(json)) WriteJson(output, detail);
+            else WriteText(output, detail);
             return ExitCodes.Success;
         });
         return command;
     }
 
-    private static void WriteText(TextWriter o, StoredCandidate c, string state, object?[]? row, IReadOnlyList<TrialRecord> trials, int matches)
+    private static void WriteText(TextWriter o, CandidateDetail detail)
     {
+        var (c, result, trials, state) = (detail.Candidate, detail.Result, detail.Trials, detail.State);
         o.WriteLine($"candidate {c.Id}  {c.Label}" + (c.Family is null ? "" : $"  (family {c.Family}, {c.Params})") + $"  catalogue {c.Catalogue}");
         o.WriteLine($"  {c.Text}");
-        var exact = row?[7] is string text && text.StartsWith(ExactDecision.Prefix, StringComparison.Ordinal);
-        o.WriteLine($"  state          {state}" + (exact ? " (decided exactly: the identity has no variables)"
-            : state == "survived" ? " (very likely true; screening is evidence, not proof)" : ""));
-        if (row is not null)
+        var exact = result?.Message is { } text && text.StartsWith(ExactDecision.Prefix, StringComparison.Ordinal);
+        o.WriteLine($"  state          {state.Text()}" + (exact ? " (decided exactly: the identity has no variables)"
+            : state == ResultState.Survived ? " (very likely true; screening is evidence, not proof)" : ""));
+        if (result is not null)
         {
-            if (row[1] is not null) o.WriteLine($"  degree bound   {row[1]}");
-            if (row[4] is double e) o.WriteLine($"  error bound    2^{e:F1} (valid as far as the degree bound holds)");
-            if (row[7] is string m) o.WriteLine($"  message        {m}");
-            if (row[6] is long certified && certified != 0 && !exact) o.WriteLine("  certified      the witness was confirmed exactly");
+            if (result.DegreeBound is not null) o.WriteLine($"  degree bound   {result.DegreeBound}");
+            if (result.ErrorBoundLog2 is double e) o.WriteLine($"  error bound    2^{e:F1} (valid as far as the degree bound holds)");
+            if (result.Message is string m) o.WriteLine($"  message        {m}");
+            if (result.Certified && !exact) o.WriteLine("  certified      the witness was confirmed exactly");
         }
         o.WriteLine($"  trials         {trials.Count}");
         foreach (var t in trials)
@@ -75,13 +64,14 @@ internal static class ShowCommands
                 if (t.Field.DefiningPolynomial is { } f) o.WriteLine($"          field GF(p)[t]/({TextReport.Polynomial(f)})");
             }
         }
-        if (matches > 1) o.WriteLine($"  ({matches - 1} more candidates have this label; use the id)");
+        if (detail.Matches > 1) o.WriteLine($"  ({detail.Matches - 1} more candidates have this label; use the id)");
     }
 
     private static string Residue(System.Numerics.BigInteger[] c) => c.Length == 1 ? c[0].ToString() : TextReport.Polynomial(c);
 
-    private static void WriteJson(TextWriter output, StoredCandidate c, object?[]? row, IReadOnlyList<string> columns, IReadOnlyList<TrialRecord> trials)
+    private static void WriteJson(TextWriter output, CandidateDetail detail)
     {
+        var (c, trials) = (detail.Candidate, detail.Trials);
         using var stream = new MemoryStream();
         using (var w = new Utf8JsonWriter(stream, new JsonWriterOptions { Indented = true }))
         {
@@ -95,8 +85,7 @@ internal static class ShowCommands
             w.WriteString("rhs", c.Rhs);
             w.WriteString("field", c.Field);
             w.WriteStartObject("result");
-            if (row is not null)
-                for (var i = 0; i < columns.Count; i++) QueryCommands.WriteValue(w, columns[i], row[i]);
+            if (detail.Result is { } r) WriteResult(w, r);
             w.WriteEndObject();
             w.WriteStartArray("trials");
             foreach (var t in trials)
@@ -131,6 +120,20 @@ internal static class ShowCommands
         output.WriteLine(System.Text.Encoding.UTF8.GetString(stream.ToArray()));
     }
 
+    /// <summary>The result row's columns under their SQL names, as <c>idq sql</c> would give them (certified as 1/0).</summary>
+    private static void WriteResult(Utf8JsonWriter w, ResultDetail r)
+    {
+        w.WriteString("state", r.State.Text());
+        if (r.DegreeBound is null) w.WriteNull("degree_bound"); else w.WriteString("degree_bound", r.DegreeBound);
+        if (r.HeightBoundLog2 is double h) w.WriteNumber("height_bound_log2", h); else w.WriteNull("height_bound_log2");
+        w.WriteNumber("trials_zero", r.TrialsZero);
+        if (r.ErrorBoundLog2 is double e) w.WriteNumber("error_bound_log2", e); else w.WriteNull("error_bound_log2");
+        if (r.WitnessTrialId is long t) w.WriteNumber("witness_trial_id", t); else w.WriteNull("witness_trial_id");
+        w.WriteNumber("certified", r.Certified ? 1 : 0);
+        if (r.Message is null) w.WriteNull("message"); else w.WriteString("message", r.Message);
+        w.WriteString("updated_at", r.UpdatedAt);
+    }
+
     public static Command Recheck(TextWriter output, TextWriter error)
     {
         var ids = new Argument<long[]>("id") { Description = "Candidate ids to re-check.", Arity = ArgumentArity.ZeroOrMore };
@@ -148,10 +151,7 @@ internal static class ShowCommands
                 error.WriteLine("idq recheck: give candidate ids or --all");
                 return ExitCodes.BadInput;
             }
-            var path = store.Location(parse);
-            var targets = given.Length > 0 ? given.ToList()
-                : ReadOnlyQuery.Run(path, "SELECT candidate_id FROM result WHERE state = 'refuted' ORDER BY candidate_id")
-                    .Rows.Select(r => Convert.ToInt64(r[0], CultureInfo.InvariantCulture)).ToList();
+            var targets = given.Length > 0 ? given.ToList() : [.. new CandidateReads(connection).InState(ResultState.Refuted)];
             var candidates = new CandidateStore(connection);
             int confirmed = 0, failed = 0;
             foreach (var id in targets)

@@ -39,6 +39,12 @@ public static class ReadOnlyQuery
         return Read(connection, null, sql, maxRows);
     }
 
+    /// <summary>
+    /// Whether a database error is the store refusing a write on the read-only connection: SQLite's SQLITE_READONLY (8)
+    /// or PostgreSQL's read_only_sql_transaction (25006).
+    /// </summary>
+    public static bool IsReadOnlyRefusal(DbException e) => e is SqliteException { SqliteErrorCode: 8 } || e.SqlState == "25006";
+
     private static QueryResult Read(DbConnection connection, DbTransaction? transaction, string sql, int maxRows)
     {
         using var command = connection.CreateCommand();

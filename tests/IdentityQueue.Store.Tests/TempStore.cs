@@ -39,8 +39,8 @@ internal sealed class TempStore : IDisposable
     public ImportSummary Import(string path, ImportOptions? options = null)
     {
         var result = new CatalogueImporter(Connection).Import(path, options);
-        Assert.True(result.Imported, result.Refusal);
-        return result.Summary!;
+        Assert.True(result.Success, result.Error?.Message);
+        return result.Value!;
     }
 
     public int Execute(string sql)

@@ -157,3 +157,18 @@ internal static class CharClass
     /// <summary>A char of a line label: letters, digits, '_', '-' and '.'.</summary>
     public static bool IsLabelChar(char c) => IsIdentifierPart(c) || c is '-' or '.';
 }
+
+/// <summary>
+/// The lexer's rules for names, for readers that take a name from elsewhere than a catalogue line (a <c>.jsonl</c> key,
+/// a <c>.csv</c> field): an identifier is what <see cref="Lexer"/> reads as one name; a label is what may stand before
+/// the colon of a catalogue line. Stateless.
+/// </summary>
+public static class Identifiers
+{
+    /// <summary>An ASCII or Greek letter or '_', then letters, digits and '_' (a variable or parameter name).</summary>
+    public static bool IsIdentifier(string text) =>
+        text.Length > 0 && CharClass.IsIdentifierStart(text[0]) && text.All(CharClass.IsIdentifierPart);
+
+    /// <summary>Letters, digits, '_', '-' and '.', at least one.</summary>
+    public static bool IsLabel(string text) => text.Length > 0 && text.All(CharClass.IsLabelChar);
+}

@@ -1,6 +1,7 @@
 using System.CommandLine;
 using System.Reflection;
 using IdentityQueue.Store;
+using IdentityQueue.Store.Read;
 
 namespace IdentityQueue.Cli.Report;
 
@@ -25,20 +26,21 @@ internal static class ReportCommand
         store.AddTo(command);
         command.SetAction(parse =>
         {
-            using (var connection = store.OpenCurrent(parse, "report", error)) if (connection is null) return ExitCodes.BadInput;
+            using var connection = store.OpenCurrent(parse, "report", error);
+            if (connection is null) return ExitCodes.BadInput;
             var location = store.Location(parse);
             var path = location.Display;
             var names = parse.GetValue(catalogue) ?? [];
             if (names.Length > 0)
             {
-                var known = ReadOnlyQuery.Run(location, "SELECT name FROM catalogue ORDER BY name").Rows.Select(r => QueryCommands.Text(r[0])).ToList();
+                var known = ReportReads.CatalogueNames(connection);
                 if (names.FirstOrDefault(n => !known.Contains(n)) is { } missing)
                 {
                     error.WriteLine($"idq report: there is no catalogue named '{missing}'; the store has {(known.Count == 0 ? "none" : string.Join(", ", known))}");
                     return ExitCodes.BadInput;
                 }
             }
-            var data = ReportData.Load(sql => ReadOnlyQuery.Run(location, sql), names);
+            var data = ReportData.Load(connection, names);
             var html = ReportPage.Render(data, path, Version, DateTime.UtcNow);
             var folder = parse.GetValue(outDir)!;
             Directory.CreateDirectory(folder);

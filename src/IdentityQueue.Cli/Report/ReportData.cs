@@ -2,6 +2,8 @@ using System.Globalization;
 using System.Text;
 using System.Text.Json;
 using IdentityQueue.Store;
+using IdentityQueue.Store.Read;
+using IdentityQueue.Store.Schema;
 
 namespace IdentityQueue.Cli.Report;
 
@@ -16,13 +18,8 @@ internal sealed class Bins(IReadOnlyList<double> edges, Func<double, string> for
 
     public int Count => Edges.Count + 1;
 
-    /// <summary><c>CASE WHEN x &lt; e0 THEN 0 WHEN x &lt; e1 THEN 1 … ELSE n END</c>, standard SQL.</summary>
-    public string CaseExpression(string x)
-    {
-        var sql = new StringBuilder("CASE");
-        for (var i = 0; i < Edges.Count; i++) sql.Append($" WHEN {x} < {Edges[i].ToString("R", CultureInfo.InvariantCulture)} THEN {i}");
-        return sql.Append($" ELSE {Edges.Count} END").ToString();
-    }
+    /// <summary><c>CASE WHEN x &lt; e0 THEN 0 WHEN x &lt; e1 THEN 1 … ELSE n END</c>, standard SQL (the store's <see cref="ReportReads.BinCase"/>).</summary>
+    public string CaseExpression(string x) => ReportReads.BinCase(x, Edges);
 
     /// <summary>The bin of a value, as <see cref="CaseExpression"/> computes it.</summary>
     public int IndexOf(double value)
@@ -90,14 +87,13 @@ internal sealed record FamilyInfo(string Catalogue, string Family, long Instance
 internal sealed record RejectionInfo(string Catalogue, string Source, long Line, string Raw, string Reason);
 
 /// <summary>
-/// Everything <c>idq report</c> shows, read from a store through plain SQL over the public tables and views of SPEC §4.
-/// The queries are portable (standard SQL that SQLite and PostgreSQL both run: CASE, COALESCE, CAST, standard
-/// aggregates, LIMIT); JSON parameters are parsed here, not in SQL. Immutable once loaded.
+/// Everything <c>idq report</c> shows, read from a store through its read model (<see cref="ReportReads"/>: portable SQL
+/// over the public tables and views of SPEC §4); JSON parameters are parsed here, not in SQL. Immutable once loaded.
 /// </summary>
 internal sealed class ReportData
 {
     /// <summary>The states in display order: the ones in flight, then the final ones.</summary>
-    public static readonly string[] States = ["pending", "queued", "screening", "refuted", "survived", "undecided", "invalid", "failed"];
+    public static readonly IReadOnlyList<string> States = ResultStates.All;
 
     /// <summary>Family instances read at most (the strips of the families table); the rest are counted only.</summary>
     public const int MaxInstances = 100_000;
@@ -124,119 +120,44 @@ internal sealed class ReportData
 
     public long Total(string state) => StateCounts.Where(s => s.State == state).Sum(s => s.Count);
 
+    public long Total(ResultState state) => Total(state.Text());
+
     public long Candidates => StateCounts.Sum(s => s.Count);
 
-    /// <summary><c>AND k.name IN ('a', 'b''c')</c> for a catalogue filter, else empty: standard SQL string literals.</summary>
-    internal static string CatalogueCondition(IReadOnlyList<string> names, string column = "k.name") =>
-        names.Count == 0 ? "" : $" AND {column} IN ({string.Join(", ", names.Select(n => "'" + n.Replace("'", "''", StringComparison.Ordinal) + "'"))})";
-
-    internal static string CataloguesQuery(string where) =>
-        $"SELECT k.name, k.source, k.imported_at, k.seed FROM catalogue k WHERE 1 = 1{where} ORDER BY k.name";
-
-    internal static string StatesQuery(string where) => $"""
-        SELECT k.name, COALESCE(r.state, 'pending') AS state, COUNT(*) AS n
-        FROM candidate c JOIN catalogue k ON k.id = c.catalogue_id LEFT JOIN result r ON r.candidate_id = c.id
-        WHERE 1 = 1{where}
-        GROUP BY k.name, COALESCE(r.state, 'pending')
-        ORDER BY k.name
-        """;
-
-    internal static string StagesQuery(string where) => $"""
-        SELECT t.seq, t.field_bits, COUNT(*) AS n
-        FROM result r JOIN trial t ON t.id = r.witness_trial_id
-             JOIN candidate c ON c.id = r.candidate_id JOIN catalogue k ON k.id = c.catalogue_id
-        WHERE r.state = 'refuted'{where}
-        GROUP BY t.seq, t.field_bits
-        ORDER BY t.seq, t.field_bits
-        """;
-
-    internal static string EvidenceQuery(string where) => $"""
-        SELECT b.bin, COUNT(*) AS n
-        FROM (SELECT {Bins.EvidenceBits.CaseExpression("(0 - r.error_bound_log2)")} AS bin
-              FROM result r JOIN candidate c ON c.id = r.candidate_id JOIN catalogue k ON k.id = c.catalogue_id
-              WHERE r.state = 'survived' AND r.error_bound_log2 IS NOT NULL{where}) b
-        GROUP BY b.bin
-        """;
-
-    internal static string ExactSurvivorsQuery(string where) => $"""
-        SELECT COUNT(*) FROM result r JOIN candidate c ON c.id = r.candidate_id JOIN catalogue k ON k.id = c.catalogue_id
-        WHERE r.state = 'survived' AND r.error_bound_log2 IS NULL{where}
-        """;
-
-    internal static string TimeQuery(string where) => $"""
-        SELECT b.bin, COUNT(*) AS n, SUM(b.us) AS us
-        FROM (SELECT {Bins.Microseconds.CaseExpression("p.us")} AS bin, p.us AS us
-              FROM (SELECT t.candidate_id, SUM(t.elapsed_us) AS us
-                    FROM trial t JOIN candidate c ON c.id = t.candidate_id JOIN catalogue k ON k.id = c.catalogue_id
-                    WHERE 1 = 1{where}
-                    GROUP BY t.candidate_id) p) b
-        GROUP BY b.bin
-        """;
-
-    internal static string FamiliesQuery(IReadOnlyList<string> names) => $"""
-        SELECT f.catalogue, f.family, f.instances, f.survived, f.refuted, f.other, f.first_refuted
-        FROM families f
-        WHERE 1 = 1{CatalogueCondition(names, "f.catalogue")}
-        ORDER BY f.catalogue, f.family
-        """;
-
-    internal static string InstancesQuery(string where) => $"""
-        SELECT k.name, c.family, c.params, COALESCE(r.state, 'pending') AS state
-        FROM candidate c JOIN catalogue k ON k.id = c.catalogue_id LEFT JOIN result r ON r.candidate_id = c.id
-        WHERE c.family IS NOT NULL{where}
-        ORDER BY k.name, c.family, c.position, c.id
-        LIMIT {MaxInstances + 1}
-        """;
-
-    internal static string RejectionsQuery(string where) => $"""
-        SELECT k.name, j.source, j.line, j.raw, j.reason
-        FROM rejection j JOIN catalogue k ON k.id = j.catalogue_id
-        WHERE 1 = 1{where}
-        ORDER BY k.name, j.source, j.line, j.id
-        LIMIT {MaxRejections}
-        """;
-
-    internal static string RejectionsCountQuery(string where) =>
-        $"SELECT COUNT(*) FROM rejection j JOIN catalogue k ON k.id = j.catalogue_id WHERE 1 = 1{where}";
-
-    /// <summary>Reads the report's data with <paramref name="query"/> (one SQL statement → its rows), for the named catalogues or all.</summary>
-    public static ReportData Load(Func<string, QueryResult> query, IReadOnlyList<string> catalogues)
+    /// <summary>Reads the report's data through the store's read model, for the named catalogues or all.</summary>
+    public static ReportData Load(StoreConnection store, IReadOnlyList<string> catalogues)
     {
-        var where = CatalogueCondition(catalogues);
+        var reads = new ReportReads(store, catalogues);
         var evidence = new long[Bins.EvidenceBits.Count];
-        foreach (var row in query(EvidenceQuery(where)).Rows) evidence[Int(row[0])] += Long(row[1]);
+        foreach (var bin in reads.EvidenceBins(Bins.EvidenceBits.Edges)) evidence[bin.Bin] += bin.Count;
         var time = new long[Bins.Microseconds.Count];
         long timed = 0, totalUs = 0;
-        foreach (var row in query(TimeQuery(where)).Rows)
+        foreach (var bin in reads.TimeBins(Bins.Microseconds.Edges))
         {
-            time[Int(row[0])] += Long(row[1]);
-            timed += Long(row[1]);
-            totalUs += Long(row[2]);
+            time[bin.Bin] += bin.Count;
+            timed += bin.Count;
+            totalUs += bin.Sum;
         }
-        var instanceRows = query(InstancesQuery(where)).Rows;
-        var members = instanceRows.Take(MaxInstances)
-            .GroupBy(r => (Text(r[0]), Text(r[1])))
-            .ToDictionary(g => g.Key, g => (IReadOnlyList<Instance>)[.. g.Select(r => new Instance(FormatParams(r[2] as string), Text(r[3])))]);
+        var instances = reads.Instances(MaxInstances + 1);
+        var members = instances.Take(MaxInstances)
+            .GroupBy(i => (i.Catalogue, i.Family))
+            .ToDictionary(g => g.Key, g => (IReadOnlyList<Instance>)[.. g.Select(i => new Instance(FormatParams(i.Params), i.State.Text()))]);
         return new ReportData
         {
             Filter = catalogues,
-            Catalogues = [.. query(CataloguesQuery(where)).Rows.Select(r => new CatalogueInfo(Text(r[0]), r[1] as string, Text(r[2]), Text(r[3])))],
-            StateCounts = [.. query(StatesQuery(where)).Rows.Select(r => new StateCount(Text(r[0]), Text(r[1]), Long(r[2])))],
-            Stages = [.. query(StagesQuery(where)).Rows.Select(r => new StageCount(Int(r[0]), Int(r[1]), Long(r[2])))],
+            Catalogues = [.. reads.Catalogues().Select(c => new CatalogueInfo(c.Name, c.Source, c.ImportedAt, c.Seed.ToString(CultureInfo.InvariantCulture)))],
+            StateCounts = [.. reads.StateCounts().Select(c => new StateCount(c.Catalogue, c.State.Text(), c.Count))],
+            Stages = [.. reads.Stages().Select(s => new StageCount(s.Seq, s.FieldBits, s.Count))],
             EvidenceBins = evidence,
-            ExactSurvivors = Long(query(ExactSurvivorsQuery(where)).Rows[0][0]),
+            ExactSurvivors = reads.ExactSurvivors(),
             TimeBins = time,
             TimedCandidates = timed,
             TotalMicroseconds = totalUs,
-            Families = [.. query(FamiliesQuery(catalogues)).Rows.Select(r =>
-            {
-                var key = (Text(r[0]), Text(r[1]));
-                return new FamilyInfo(key.Item1, key.Item2, Long(r[2]), Long(r[3]), Long(r[4]), Long(r[5]),
-                    r[6] is string first ? FormatParams(first) : null, members.TryGetValue(key, out var m) ? m : []);
-            })],
-            InstancesTruncated = instanceRows.Count > MaxInstances,
-            Rejections = [.. query(RejectionsQuery(where)).Rows.Select(r => new RejectionInfo(Text(r[0]), Text(r[1]), Long(r[2]), Text(r[3]), Text(r[4])))],
-            RejectionsTotal = Long(query(RejectionsCountQuery(where)).Rows[0][0]),
+            Families = [.. reads.Families().Select(f => new FamilyInfo(f.Catalogue, f.Family, f.Instances, f.Survived, f.Refuted, f.Other,
+                f.FirstRefuted is { } first ? FormatParams(first) : null, members.TryGetValue((f.Catalogue, f.Family), out var m) ? m : []))],
+            InstancesTruncated = instances.Count > MaxInstances,
+            Rejections = [.. reads.Rejections(MaxRejections).Select(r => new RejectionInfo(r.Catalogue, r.Source, r.Line, r.Raw, r.Reason))],
+            RejectionsTotal = reads.RejectionsTotal(),
         };
     }
 
@@ -270,10 +191,4 @@ internal sealed class ReportData
 
     private static string Limit(IReadOnlyList<string> items, int max) =>
         items.Count <= max ? string.Join(", ", items) : string.Join(", ", items.Take(max)) + $", … ({items.Count - max} more)";
-
-    private static string Text(object? value) => QueryCommands.Text(value);
-
-    private static long Long(object? value) => value is null ? 0 : Convert.ToInt64(value, CultureInfo.InvariantCulture);
-
-    private static int Int(object? value) => (int)Long(value);
 }

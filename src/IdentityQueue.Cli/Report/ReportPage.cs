@@ -1,5 +1,6 @@
 using System.Globalization;
 using System.Text;
+using IdentityQueue.Store.Schema;
 using static IdentityQueue.Cli.Report.SvgCharts;
 
 namespace IdentityQueue.Cli.Report;
@@ -65,12 +66,12 @@ internal static class ReportPage
 
     private static void Tiles(StringBuilder html, ReportData data)
     {
-        var other = data.Candidates - data.Total("refuted") - data.Total("survived");
+        var other = data.Candidates - data.Total(ResultState.Refuted) - data.Total(ResultState.Survived);
         html.Append("<section class=\"tiles\">");
         Tile(html, "catalogues", data.Catalogues.Count, "catalogues");
         Tile(html, "candidates", data.Candidates, "candidates");
-        Tile(html, "survived", data.Total("survived"), "survived (very likely true)");
-        Tile(html, "refuted", data.Total("refuted"), "refuted, with witness");
+        Tile(html, ResultStates.Survived, data.Total(ResultState.Survived), "survived (very likely true)");
+        Tile(html, ResultStates.Refuted, data.Total(ResultState.Refuted), "refuted, with witness");
         Tile(html, "other", other, "undecided, invalid, failed or open");
         Tile(html, "rejections", data.RejectionsTotal, "rejected at import");
         html.Append("</section>\n");
@@ -126,7 +127,7 @@ internal static class ReportPage
         }
         else
         {
-            var bars = data.Stages.Select(s => new Bar($"trial {s.Seq} · {s.FieldBits}-bit field", s.Count, ColorOf("refuted"))).ToList();
+            var bars = data.Stages.Select(s => new Bar($"trial {s.Seq} · {s.FieldBits}-bit field", s.Count, ColorOf(ResultState.Refuted))).ToList();
             html.Append("<div class=\"figure\">").Append(HorizontalBars("stages", "Refutations by escalation stage", bars)).Append("</div>\n");
             var first = data.Stages.Where(s => s.Seq == 1).Sum(s => s.Count);
             var all = data.Stages.Sum(s => s.Count);
@@ -148,7 +149,7 @@ internal static class ReportPage
         if (survivors == 0) Empty(html, data.ExactSurvivors > 0 ? "No survivors with an error bound." : "No survivors.");
         else
         {
-            var bins = Trimmed(data.EvidenceBins, Bins.EvidenceBits, ColorOf("survived"));
+            var bins = Trimmed(data.EvidenceBins, Bins.EvidenceBits, ColorOf(ResultState.Survived));
             html.Append("<div class=\"figure\">")
                 .Append(Columns("bounds", "Error bounds of the survivors", bins, "bits of evidence b (error bound 2^-b); weakest on the left"))
                 .Append("</div>\n");
@@ -185,10 +186,10 @@ internal static class ReportPage
     {
         Section(html, "families", "Families and where they fail",
             "One row per family line (from the <code>families</code> view), its instances in parameter order: " +
-            $"<span class=\"dot\" style=\"background:{ColorOf("survived")}\"></span>survived, " +
-            $"<span class=\"dot\" style=\"background:{ColorOf("refuted")}\"></span>refuted, " +
-            $"<span class=\"dot\" style=\"background:{ColorOf("invalid")}\"></span>invalid, " +
-            $"<span class=\"dot\" style=\"background:{ColorOf("undecided")}\"></span>undecided. " +
+            $"<span class=\"dot\" style=\"background:{ColorOf(ResultState.Survived)}\"></span>survived, " +
+            $"<span class=\"dot\" style=\"background:{ColorOf(ResultState.Refuted)}\"></span>refuted, " +
+            $"<span class=\"dot\" style=\"background:{ColorOf(ResultState.Invalid)}\"></span>invalid, " +
+            $"<span class=\"dot\" style=\"background:{ColorOf(ResultState.Undecided)}\"></span>undecided. " +
             "A family that holds for some parameters and fails for others is marked <span class=\"tag\">fails for some</span>.");
         if (data.Families.Count == 0)
         {
@@ -215,7 +216,7 @@ internal static class ReportPage
                 : "<span class=\"empty\">not listed</span>");
             html.Append("</td>");
             html.Append($"<td><code>{Encode(f.FirstRefuted ?? "")}</code></td>");
-            var failing = f.Members.Where(m => m.State == "refuted").Select(m => m.Params).ToList();
+            var failing = f.Members.Where(m => m.State == ResultStates.Refuted).Select(m => m.Params).ToList();
             html.Append($"<td class=\"fails\">{Encode(ReportData.Compress(failing, max: 12))}</td></tr>");
         }
         html.Append("</tbody></table>\n");

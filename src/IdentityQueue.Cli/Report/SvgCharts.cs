@@ -1,6 +1,7 @@
 using System.Globalization;
 using System.Net;
 using System.Text;
+using IdentityQueue.Store.Schema;
 
 namespace IdentityQueue.Cli.Report;
 
@@ -20,15 +21,17 @@ internal static class SvgCharts
     /// <summary>Fill colours per result state: final states saturated, states in flight pale.</summary>
     public static readonly IReadOnlyDictionary<string, string> StateColors = new Dictionary<string, string>
     {
-        ["pending"] = "#b9c3cf",
-        ["queued"] = "#9aaec4",
-        ["screening"] = "#6f93bb",
-        ["refuted"] = "#c8553d",
-        ["survived"] = "#2f8f6b",
-        ["undecided"] = "#d9a21b",
-        ["invalid"] = "#7d6b91",
-        ["failed"] = "#7a1f14",
+        [ResultStates.Pending] = "#b9c3cf",
+        [ResultStates.Queued] = "#9aaec4",
+        [ResultStates.Screening] = "#6f93bb",
+        [ResultStates.Refuted] = "#c8553d",
+        [ResultStates.Survived] = "#2f8f6b",
+        [ResultStates.Undecided] = "#d9a21b",
+        [ResultStates.Invalid] = "#7d6b91",
+        [ResultStates.Failed] = "#7a1f14",
     };
+
+    public static string ColorOf(ResultState state) => ColorOf(state.Text());
 
     public static string ColorOf(string state) => StateColors.TryGetValue(state, out var c) ? c : "#999999";
 

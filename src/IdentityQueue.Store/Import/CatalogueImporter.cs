@@ -1,11 +1,9 @@
 using System.Data.Common;
 using System.Diagnostics;
 using System.Globalization;
-using System.Numerics;
-using System.Text;
-using IdentityQueue.Algebra.Compile;
-using IdentityQueue.Algebra.Syntax;
+using IdentityQueue.Algebra;
 using IdentityQueue.Screening;
+using IdentityQueue.Screening.Catalogues;
 using IdentityQueue.Store.Schema;
 using IdentityQueue.Store.Work;
 
@@ -21,7 +19,7 @@ namespace IdentityQueue.Store.Import;
 /// </summary>
 public sealed class CatalogueImporter(StoreConnection store)
 {
-    public static readonly IReadOnlyList<string> Extensions = [".idq", ".jsonl", ".csv"];
+    public static readonly IReadOnlyList<string> Extensions = CatalogueReader.Extensions;
 
     private readonly DbConnection _db = store.Connection;
 
@@ -67,11 +65,11 @@ public sealed class CatalogueImporter(StoreConnection store)
         return Convert.ToInt64(command.ExecuteScalar(), CultureInfo.InvariantCulture) > 0;
     }
 
-    /// <summary>Imports one file; refused (nothing stored) for the reasons of <see cref="Check"/>.</summary>
-    public ImportResult Import(string path, ImportOptions? options = null)
+    /// <summary>Imports one file: its summary, or why it was refused (nothing stored) for the reasons of <see cref="Check"/>.</summary>
+    public Result<ImportSummary> Import(string path, ImportOptions? options = null)
     {
         options ??= new ImportOptions();
-        if (Check(path, options) is { } refusal) return ImportResult.Refused(refusal);
+        if (Check(path, options) is { } refusal) return Result<ImportSummary>.Fail(refusal);
         var name = options.CatalogueName ?? DefaultName(path);
         var seed = options.Seed ?? RunSeed.Random().Stored;
         var clock = Stopwatch.StartNew();
@@ -88,18 +86,18 @@ public sealed class CatalogueImporter(StoreConnection store)
         catch (DbException) when (NameTaken(name))
         {
             // The unique index on catalogue.name: another import took the name between the check and this insert.
-            return ImportResult.Refused($"{path}: the store already has a catalogue named '{name}'; import it under another name with --catalogue NAME");
+            return Result<ImportSummary>.Fail($"{path}: the store already has a catalogue named '{name}'; import it under another name with --catalogue NAME");
         }
 
         try
         {
             var summary = Load(path, catalogueId, name, seed, options, clock);
-            if (summary.Entries > 0 || summary.Rejections > 0) return new ImportResult(summary, null);
+            if (summary.Entries > 0 || summary.Rejections > 0) return Result<ImportSummary>.Ok(summary);
             // Only blank lines, comments or a CSV header: no catalogue is left behind for it.
             using var delete = _db.Command("DELETE FROM catalogue WHERE id = @id");
             delete.Parameter("@id", catalogueId);
             delete.ExecuteNonQuery();
-            return ImportResult.Refused($"{path}: the file has no entries ({summary.Lines} lines, all blank, comments or a header); nothing was imported");
+            return Result<ImportSummary>.Fail($"{path}: the file has no entries ({summary.Lines} lines, all blank, comments or a header); nothing was imported");
         }
         catch
         {
@@ -113,48 +111,30 @@ public sealed class CatalogueImporter(StoreConnection store)
 
     private ImportSummary Load(string path, long catalogueId, string name, long seed, ImportOptions options, Stopwatch clock)
     {
-        var limits = options.Limits;
-        IEntryReader reader = Path.GetExtension(path).ToLowerInvariant() switch
-        {
-            ".jsonl" => new JsonlEntryReader(limits),
-            ".csv" => new CsvEntryReader(limits),
-            _ => new IdqEntryReader(limits),
-        };
-        var fileName = Path.GetFileName(path);
+        var reader = new CatalogueReader(path, options.Limits);
         using var rows = new Rows(_db, catalogueId, path);
         int lines = 0, entries = 0, instances = 0, rejections = 0;
         var first = new List<Rejection>();
-        var labels = new Dictionary<string, int>(StringComparer.Ordinal); // a label given in the file → the line it is on
-
-        void Reject(int line, string raw, string reason)
-        {
-            rows.Rejection(line, raw, reason);
-            rejections++;
-            if (first.Count < options.RejectionsListed) first.Add(new Rejection(path, line, raw, reason));
-        }
-
         using (var stream = new FileStream(path, FileMode.Open, FileAccess.Read, FileShare.Read, 1, FileOptions.SequentialScan))
         {
-            foreach (var line in SourceLines.Read(stream, limits.MaxLineLength))
+            foreach (var line in reader.Read(stream))
             {
                 lines++;
-                if (line.Text is null)
+                if (!line.Read.Success)
                 {
-                    Reject(line.Number, line.Raw, $"line {line.Number}: {line.Problem}");
+                    var reason = line.Read.Error.ToString();
+                    rows.Rejection(line.Number, line.Raw, reason);
+                    rejections++;
+                    if (first.Count < options.RejectionsListed) first.Add(new Rejection(path, line.Number, line.Raw, reason));
                 }
-                else if (Interpret(reader, line, fileName, options) is var (made, reason))
+                else if (line.Read.Value is { } made)
                 {
-                    if (reason is null && made?.Label is { } label && !labels.TryAdd(label, line.Number))
-                        reason = $"line {line.Number}: the label '{label}' is already used on line {labels[label]}; labels must be unique in a catalogue";
-                    if (reason is not null) Reject(line.Number, SourceLines.Truncate(line.Text), reason);
-                    else if (made is not null)
+                    entries++;
+                    foreach (var c in made.Instances)
                     {
-                        entries++;
-                        foreach (var c in made.Instances)
-                        {
-                            rows.Candidate(c.Label, made.Family, c.Params, made.Sides, c.Field ?? made.Field, line.Number);
-                            instances++;
-                        }
+                        rows.Candidate(c.Label, made.Family, made.Family is null ? null : ParamsText.Write(c.Parameters),
+                            made.Sides, c.Field ?? made.Field, line.Number);
+                        instances++;
                     }
                 }
                 if (rows.Pending >= options.BatchSize) rows.Commit();
@@ -186,77 +166,6 @@ public sealed class CatalogueImporter(StoreConnection store)
         {
             Warnings = reader.Warnings.ToList(),
         };
-    }
-
-    /// <summary>An instance whose field GF(p) has a p that is not prime (or too large): the entry's rejection.</summary>
-    private sealed class FieldBindingException(string message) : Exception(message);
-
-    /// <summary>
-    /// An entry's candidates: the label given in the file (or null), the sides and field as stored, and one label, params
-    /// and own field (GF(p) of a family parameter p, overriding the entry's) per instance.
-    /// </summary>
-    /// <summary>
-    /// The stored sides: the text as written when the line uses no definition (with the columns where each starts in an
-    /// <c>.idq</c> line, so a screening-time message can point there), else the printed tree with its uses written out.
-    /// </summary>
-    private readonly record struct Sides(string Lhs, string Rhs, int? LhsColumn, int? RhsColumn)
-    {
-        public static Sides Of(IdentityEntry entry, bool idqLine) =>
-            !entry.UsesDefinitions && entry.LeftSpan is { } l && entry.RightSpan is { } r
-                ? new Sides(l.Of(entry.Text), r.Of(entry.Text), idqLine ? l.Column : null, idqLine ? r.Column : null)
-                : new Sides(ExprPrinter.Print(entry.Left), ExprPrinter.Print(entry.Right), null, null);
-    }
-
-    private sealed record Made(string? Label, string? Family, Sides Sides, string Field, IReadOnlyList<(string Label, string? Params, string? Field)> Instances);
-
-    /// <summary>
-    /// One line to its candidates, or the reason it is rejected; (null, null) for a line with no entry. A failure in
-    /// reading one line is that line's rejection (fatal errors such as running out of memory are not caught).
-    /// </summary>
-    private static (Made?, string?) Interpret(IEntryReader reader, SourceLine line, string fileName, ImportOptions options)
-    {
-        try
-        {
-            var read = reader.Read(line.Text!, line.Number);
-            if (read.Rejection is not null) return (null, read.Rejection);
-            if (read.Entry is not { } entry) return (null, null);
-            var expansion = FamilyExpander.Expand(entry, options.Limits);
-            if (!expansion.Success) return (null, read.Describe(expansion.Error!));
-            var sides = Sides.Of(entry, read.Built is null);
-            var field = entry.Field.ToString();
-            var ownLabel = entry.Label ?? $"{fileName}:{line.Number}";
-            if (!entry.IsFamily) return (new Made(entry.Label, null, sides, field, [(ownLabel, null, null)]), null);
-            var names = entry.Parameters.Select(p => p.Name).ToList();
-            var instances = new List<(string, string?, string?)>(expansion.Instances.Count);
-            var label = new StringBuilder();
-            foreach (var assignment in expansion.Instances)
-            {
-                var ordered = names.Select(n => new KeyValuePair<string, BigInteger>(n, assignment[n])).ToList();
-                label.Clear().Append(ownLabel).Append('[');
-                for (var i = 0; i < ordered.Count; i++)
-                {
-                    if (i > 0) label.Append(',');
-                    label.Append(ordered[i].Key).Append('=').Append(ordered[i].Value.ToString(CultureInfo.InvariantCulture));
-                }
-                // GF(p) of a family parameter: each instance stores its own field; one that is not prime is refused here.
-                string? own = null;
-                if (entry.Field.CharacteristicParameter is not null)
-                {
-                    var bound = entry.Field.Bind(assignment, options.Limits.MaxFieldBits);
-                    own = bound.Success ? bound.Value.ToString() : throw new FieldBindingException(read.Describe(bound.Error));
-                }
-                instances.Add((label.Append(']').ToString(), ParamsText.Write(ordered), own));
-            }
-            return (new Made(entry.Label, ownLabel, sides, field, instances), null);
-        }
-        catch (FieldBindingException e)
-        {
-            return (null, e.Message);
-        }
-        catch (Exception e) when (e is not OutOfMemoryException)
-        {
-            return (null, $"line {line.Number}: could not be imported: {e.GetType().Name}: {e.Message}");
-        }
     }
 
     /// <summary>The prepared inserts of one import and its open transaction, committed every batch.</summary>
@@ -302,7 +211,7 @@ public sealed class CatalogueImporter(StoreConnection store)
         /// <summary>Rows written since the last commit.</summary>
         public int Pending { get; private set; }
 
-        public void Candidate(string label, string? family, string? parameters, Sides sides, string field, int position)
+        public void Candidate(string label, string? family, string? parameters, CatalogueSides sides, string field, int position)
         {
             var (lhs, rhs, lhsColumn, rhsColumn) = sides;
             _label.Set(label);

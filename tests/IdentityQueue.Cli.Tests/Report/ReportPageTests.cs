@@ -118,11 +118,4 @@ public class ReportPageTests
     {
         Assert.Equal(expected, ReportData.FormatParams(json));
     }
-
-    [Fact]
-    public void CatalogueCondition_DoublesQuotes()
-    {
-        Assert.Equal("", ReportData.CatalogueCondition([]));
-        Assert.Equal(" AND k.name IN ('a', 'o''brien')", ReportData.CatalogueCondition(["a", "o'brien"]));
-    }
 }

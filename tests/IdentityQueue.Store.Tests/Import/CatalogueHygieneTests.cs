@@ -48,8 +48,8 @@ public sealed class CatalogueHygieneTests
         using var store = TempStore.Create();
         var path = store.File(name, bytes);
         var result = new CatalogueImporter(store.Connection).Import(path);
-        Assert.False(result.Imported);
-        Assert.Equal($"{path}: {reason}", result.Refusal);
+        Assert.False(result.Success);
+        Assert.Equal($"{path}: {reason}", result.Error?.Message);
         Assert.Equal(0, store.Count("SELECT COUNT(*) FROM catalogue"));
     }
 
@@ -62,9 +62,9 @@ public sealed class CatalogueHygieneTests
         using var store = TempStore.Create();
         var path = store.File(name, Encoding.UTF8.GetBytes(text));
         var result = new CatalogueImporter(store.Connection).Import(path);
-        Assert.False(result.Imported);
-        Assert.StartsWith($"{path}: the file has no entries (", result.Refusal);
-        Assert.EndsWith("all blank, comments or a header); nothing was imported", result.Refusal);
+        Assert.False(result.Success);
+        Assert.StartsWith($"{path}: the file has no entries (", result.Error?.Message);
+        Assert.EndsWith("all blank, comments or a header); nothing was imported", result.Error?.Message);
         Assert.Equal(0, store.Count("SELECT COUNT(*) FROM catalogue"));
     }
 }

@@ -1,3 +1,4 @@
+using IdentityQueue.Screening.Catalogues;
 using IdentityQueue.Store.Import;
 
 namespace IdentityQueue.Store.Tests.Import;
@@ -175,9 +176,9 @@ public sealed class CatalogueImporterTests
         var path = store.File("c.idq", Idq);
         store.Import(path);
         var again = new CatalogueImporter(store.Connection).Import(path);
-        Assert.False(again.Imported);
-        Assert.Contains("already has a catalogue named 'c'", again.Refusal);
-        Assert.Contains("--catalogue", again.Refusal);
+        Assert.False(again.Success);
+        Assert.Contains("already has a catalogue named 'c'", again.Error?.Message);
+        Assert.Contains("--catalogue", again.Error?.Message);
         Assert.Equal(1, store.Count("SELECT COUNT(*) FROM catalogue"));
         Assert.Equal(8, store.Count("SELECT COUNT(*) FROM candidate"));
     }
@@ -212,8 +213,8 @@ public sealed class CatalogueImporterTests
         using var store = TempStore.Create();
         if (name.EndsWith(".txt", StringComparison.Ordinal)) store.File(name, "x = x\n");
         var result = new CatalogueImporter(store.Connection).Import(Path.Combine(store.Folder, name));
-        Assert.False(result.Imported);
-        Assert.Contains(message, result.Refusal);
+        Assert.False(result.Success);
+        Assert.Contains(message, result.Error?.Message);
         Assert.Equal(0, store.Count("SELECT COUNT(*) FROM catalogue"));
     }
 

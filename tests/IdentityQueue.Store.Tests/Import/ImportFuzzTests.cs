@@ -1,3 +1,4 @@
+using IdentityQueue.Screening.Catalogues;
 using System.Text;
 using IdentityQueue.Algebra;
 using IdentityQueue.Algebra.Compile;

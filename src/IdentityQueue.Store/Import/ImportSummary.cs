@@ -43,11 +43,3 @@ public sealed record ImportSummary(
     /// <summary>What was accepted but deserves a word (an unknown CSV column, ignored), each once; empty for most imports.</summary>
     public IReadOnlyList<string> Warnings { get; init; } = [];
 }
-
-/// <summary>The outcome of importing one file: a summary, or why the import was refused before anything was stored.</summary>
-public sealed record ImportResult(ImportSummary? Summary, string? Refusal)
-{
-    public bool Imported => Summary is not null;
-
-    public static ImportResult Refused(string reason) => new(null, reason);
-}

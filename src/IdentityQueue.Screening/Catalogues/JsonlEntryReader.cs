@@ -1,7 +1,7 @@
 using System.Text.Json;
 using IdentityQueue.Algebra;
 
-namespace IdentityQueue.Store.Import;
+namespace IdentityQueue.Screening.Catalogues;
 
 /// <summary>
 /// The <c>.jsonl</c> format (SPEC §3): one JSON object per line, <c>{"label": …, "lhs": …, "rhs": …, "over": "Q",
@@ -9,16 +9,16 @@ namespace IdentityQueue.Store.Import;
 /// string holding an expression in earlier parameters; <c>"for"</c> may also be a string, <c>"n in 2..12"</c>.
 /// Blank lines are skipped; unknown keys are rejected, so a misspelt key is not silently ignored.
 /// </summary>
-internal sealed class JsonlEntryReader(Limits limits) : IEntryReader
+public sealed class JsonlEntryReader(Limits limits) : IEntryReader
 {
     private static readonly string[] Keys = ["label", "lhs", "rhs", "identity", "over", "for"];
 
     // Deep enough for any entry; deeper input is rejected by the JSON reader, not by the stack.
     private static readonly JsonDocumentOptions Options = new() { MaxDepth = 16 };
 
-    public LineResult Read(string text, int line)
+    public Result<ReadEntry?> Read(string text, int line)
     {
-        if (string.IsNullOrWhiteSpace(text)) return LineResult.Skip;
+        if (string.IsNullOrWhiteSpace(text)) return Skip;
         JsonDocument document;
         try
         {
@@ -29,20 +29,20 @@ internal sealed class JsonlEntryReader(Limits limits) : IEntryReader
             var message = e.Message;
             var cut = message.IndexOf(" LineNumber:", StringComparison.Ordinal);
             if (cut > 0) message = message[..cut];
-            return LineResult.Reject($"line {line}, byte {(e.BytePositionInLine ?? 0) + 1}: not valid JSON: {message}");
+            return Reject($"line {line}, byte {(e.BytePositionInLine ?? 0) + 1}: not valid JSON: {message}");
         }
         using (document)
         {
             var root = document.RootElement;
             if (root.ValueKind != JsonValueKind.Object)
-                return LineResult.Reject($"line {line}: expected a JSON object {{\"label\": …, \"lhs\": …, \"rhs\": …}}, found {Kind(root)}");
+                return Reject($"line {line}: expected a JSON object {{\"label\": …, \"lhs\": …, \"rhs\": …}}, found {Kind(root)}");
             var values = new Dictionary<string, JsonElement>(StringComparer.Ordinal);
             foreach (var property in root.EnumerateObject())
             {
                 if (!Keys.Contains(property.Name))
-                    return LineResult.Reject($"line {line}: unknown key \"{property.Name}\" (the keys are {string.Join(", ", Keys)})");
+                    return Reject($"line {line}: unknown key \"{property.Name}\" (the keys are {string.Join(", ", Keys)})");
                 if (!values.TryAdd(property.Name, property.Value))
-                    return LineResult.Reject($"line {line}: the key \"{property.Name}\" is given twice");
+                    return Reject($"line {line}: the key \"{property.Name}\" is given twice");
             }
             string? error = null;
             var label = String(values, "label", line, ref error);
@@ -50,7 +50,7 @@ internal sealed class JsonlEntryReader(Limits limits) : IEntryReader
             var rhs = String(values, "rhs", line, ref error);
             var identity = String(values, "identity", line, ref error);
             var over = String(values, "over", line, ref error);
-            if (error is not null) return LineResult.Reject(error);
+            if (error is not null) return Reject(error);
             List<(string, string, string)>? ranges = null;
             string? forText = null;
             if (values.TryGetValue("for", out var @for))
@@ -64,16 +64,16 @@ internal sealed class JsonlEntryReader(Limits limits) : IEntryReader
                         foreach (var range in @for.EnumerateObject())
                         {
                             if (range.Value.ValueKind != JsonValueKind.Array || range.Value.GetArrayLength() != 2)
-                                return LineResult.Reject($"line {line}: \"for\": \"{range.Name}\" must be a range [FROM, TO], found {Kind(range.Value)}");
+                                return Reject($"line {line}: \"for\": \"{range.Name}\" must be a range [FROM, TO], found {Kind(range.Value)}");
                             var from = End(range.Value[0]);
                             var to = End(range.Value[1]);
                             if (from is null || to is null)
-                                return LineResult.Reject($"line {line}: \"for\": the ends of \"{range.Name}\" must be integers or expression strings");
+                                return Reject($"line {line}: \"for\": the ends of \"{range.Name}\" must be integers or expression strings");
                             ranges.Add((range.Name, from, to));
                         }
                         break;
                     default:
-                        return LineResult.Reject($"line {line}: \"for\" must be an object such as {{\"n\": [2, 12]}} or a string \"n in 2..12\", found {Kind(@for)}");
+                        return Reject($"line {line}: \"for\" must be an object such as {{\"n\": [2, 12]}} or a string \"n in 2..12\", found {Kind(@for)}");
                 }
             }
             return new FieldEntry(label, lhs, rhs, identity, over, ranges, forText).Parse(line, limits);
@@ -104,4 +104,8 @@ internal sealed class JsonlEntryReader(Limits limits) : IEntryReader
         JsonValueKind.True or JsonValueKind.False => "a boolean",
         _ => "null",
     };
+
+    private static readonly Result<ReadEntry?> Skip = Result<ReadEntry?>.Ok(null);
+
+    private static Result<ReadEntry?> Reject(string reason) => Result<ReadEntry?>.Fail(reason);
 }

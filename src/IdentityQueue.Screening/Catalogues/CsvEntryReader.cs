@@ -1,7 +1,7 @@
 using CsvHelper;
 using IdentityQueue.Algebra;
 
-namespace IdentityQueue.Store.Import;
+namespace IdentityQueue.Screening.Catalogues;
 
 /// <summary>
 /// The <c>.csv</c> format (SPEC §3): a header naming the columns — <c>label,lhs,rhs,over,for</c>, in any order, with
@@ -10,7 +10,7 @@ namespace IdentityQueue.Store.Import;
 /// one line, so that a bad row is one rejection at a known line. Missing trailing fields count as empty. A column the
 /// format does not know (a note, a source) is ignored, with one warning naming it, instead of failing every row.
 /// </summary>
-internal sealed class CsvEntryReader(Limits limits) : IEntryReader
+public sealed class CsvEntryReader(Limits limits) : IEntryReader
 {
     private static readonly string[] Columns = ["label", "lhs", "rhs", "identity", "over", "for"];
 
@@ -31,13 +31,13 @@ internal sealed class CsvEntryReader(Limits limits) : IEntryReader
     public IReadOnlyList<string> Warnings => _warnings;
     private string? _headerProblem;
 
-    public LineResult Read(string text, int line)
+    public Result<ReadEntry?> Read(string text, int line)
     {
-        if (string.IsNullOrWhiteSpace(text)) return LineResult.Skip;
+        if (string.IsNullOrWhiteSpace(text)) return Skip;
         if (text.Count(c => c == '"') % 2 != 0)
             return _header is null && _headerProblem is null
                 ? HeaderFailed(line, $"line {line}: the header has an unterminated quoted field")
-                : LineResult.Reject($"line {line}: an unterminated quoted field (a record must be on one line)");
+                : Reject($"line {line}: an unterminated quoted field (a record must be on one line)");
         string[] fields;
         try
         {
@@ -46,19 +46,19 @@ internal sealed class CsvEntryReader(Limits limits) : IEntryReader
         catch (CsvFormatException e)
         {
             var reason = $"line {line}: not a valid CSV record: {e.Message.Split('\n')[0].Trim()}";
-            return _header is null && _headerProblem is null ? HeaderFailed(line, reason) : LineResult.Reject(reason);
+            return _header is null && _headerProblem is null ? HeaderFailed(line, reason) : Reject(reason);
         }
         if (_headerProblem is not null)
-            return LineResult.Reject($"line {line}: not read, because the header on line {_headerLine} is not valid: {_headerProblem}");
+            return Reject($"line {line}: not read, because the header on line {_headerLine} is not valid: {_headerProblem}");
         if (_header is null) return ReadHeader(fields, line);
         if (fields.Length > _headerColumns)
-            return LineResult.Reject($"line {line}: {fields.Length} fields, but the header on line {_headerLine} names {_headerColumns}");
+            return Reject($"line {line}: {fields.Length} fields, but the header on line {_headerLine} names {_headerColumns}");
         string? Get(string column) =>
             _header.TryGetValue(column, out var i) && i < fields.Length && fields[i].Length > 0 ? fields[i] : null;
         return new FieldEntry(Get("label"), Get("lhs"), Get("rhs"), Get("identity"), Get("over"), null, Get("for")).Parse(line, limits);
     }
 
-    private LineResult ReadHeader(string[] fields, int line)
+    private Result<ReadEntry?> ReadHeader(string[] fields, int line)
     {
         var header = new Dictionary<string, int>(StringComparer.Ordinal);
         var ignored = new List<string>();
@@ -80,14 +80,14 @@ internal sealed class CsvEntryReader(Limits limits) : IEntryReader
         _header = header;
         _headerColumns = fields.Length;
         _headerLine = line;
-        return LineResult.Skip;
+        return Skip;
     }
 
-    private LineResult HeaderFailed(int line, string reason)
+    private Result<ReadEntry?> HeaderFailed(int line, string reason)
     {
         _headerProblem = reason;
         _headerLine = line;
-        return LineResult.Reject(reason);
+        return Reject(reason);
     }
 
     private static string[] Split(string text)
@@ -95,4 +95,8 @@ internal sealed class CsvEntryReader(Limits limits) : IEntryReader
         using var csv = CsvReader.FromText(text, Options);
         return csv.Read() ? csv.Current.ToArray() : [];
     }
+
+    private static readonly Result<ReadEntry?> Skip = Result<ReadEntry?>.Ok(null);
+
+    private static Result<ReadEntry?> Reject(string reason) => Result<ReadEntry?>.Fail(reason);
 }

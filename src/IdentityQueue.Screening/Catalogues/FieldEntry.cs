@@ -1,28 +1,28 @@
 using IdentityQueue.Algebra;
 using IdentityQueue.Algebra.Syntax;
 
-namespace IdentityQueue.Store.Import;
+namespace IdentityQueue.Screening.Catalogues;
 
 /// <summary>The fields of a structured entry (a <c>.jsonl</c> object or a <c>.csv</c> row), before they become a catalogue line.</summary>
-internal sealed record FieldEntry(string? Label, string? Lhs, string? Rhs, string? Identity, string? Over, IReadOnlyList<(string Name, string From, string To)>? Ranges, string? For)
+public sealed record FieldEntry(string? Label, string? Lhs, string? Rhs, string? Identity, string? Over, IReadOnlyList<(string Name, string From, string To)>? Ranges, string? For)
 {
     /// <summary>
     /// Builds the catalogue line and parses it. A field may not carry what belongs to another (a '#' that would comment
     /// out the rest, a label that is not one, an 'over' or a range hidden inside a side), so each is checked against
     /// what the parser made of it.
     /// </summary>
-    public LineResult Parse(int line, Limits limits)
+    public Result<ReadEntry?> Parse(int line, Limits limits)
     {
         if (Identity is not null && (Lhs is not null || Rhs is not null))
-            return LineResult.Reject($"line {line}: give either \"identity\" or \"lhs\" and \"rhs\", not both");
+            return Reject($"line {line}: give either \"identity\" or \"lhs\" and \"rhs\", not both");
         if (Identity is null && (Lhs is null || Rhs is null))
-            return LineResult.Reject($"line {line}: \"{(Lhs is null ? "lhs" : "rhs")}\" is missing (or give \"identity\": \"LHS = RHS\")");
+            return Reject($"line {line}: \"{(Lhs is null ? "lhs" : "rhs")}\" is missing (or give \"identity\": \"LHS = RHS\")");
         foreach (var (name, value) in Fields())
             if (value.Contains('#'))
-                return LineResult.Reject($"line {line}, column {value.IndexOf('#') + 1} of \"{name}\": '#' is not allowed here (it starts a comment)");
+                return Reject($"line {line}, column {value.IndexOf('#') + 1} of \"{name}\": '#' is not allowed here (it starts a comment)");
         var label = string.IsNullOrWhiteSpace(Label) ? null : Label.Trim();
-        if (label is not null && !label.All(IsLabelChar))
-            return LineResult.Reject($"line {line}: the label \"{label}\" may contain only letters, digits, '_', '-' and '.'");
+        if (label is not null && !Identifiers.IsLabel(label))
+            return Reject($"line {line}: the label \"{label}\" may contain only letters, digits, '_', '-' and '.'");
 
         var built = new EntryLine();
         if (label is not null) built.Field("label", label).Literal(": ");
@@ -35,25 +35,25 @@ internal sealed record FieldEntry(string? Label, string? Lhs, string? Rhs, strin
             for (var i = 0; i < Ranges.Count; i++)
             {
                 var (name, from, to) = Ranges[i];
-                if (name.Length == 0 || !IsIdentifierStart(name[0]) || !name.All(IsIdentifierPart))
-                    return LineResult.Reject($"line {line}: \"{name}\" in \"for\" is not a parameter name");
+                if (!Identifiers.IsIdentifier(name))
+                    return Reject($"line {line}: \"{name}\" in \"for\" is not a parameter name");
                 built.Literal(i == 0 ? " for " : ", ").Literal(name).Literal(" in ").Field($"for.{name}", from).Literal("..").Field($"for.{name}", to);
             }
         }
         else if (!string.IsNullOrWhiteSpace(For)) built.Literal(" for ").Field("for", For);
 
         var parsed = CatalogueParser.ParseLine(built.Text, line, limits);
-        if (!parsed.Success) return new LineResult(null, SideError(line, limits) ?? built.Describe(parsed.Error!), built);
-        if (parsed.Value is not { } entry) return LineResult.Reject($"line {line}: the entry is empty");
+        if (!parsed.Success) return Reject(SideError(line, limits) ?? built.Describe(parsed.Error));
+        if (parsed.Value is not { } entry) return Reject($"line {line}: the entry is empty");
         if (entry.Label != label)
-            return LineResult.Reject($"line {line}: the {(Identity is null ? "\"lhs\"" : "\"identity\"")} field must not start with a label; use \"label\"");
+            return Reject($"line {line}: the {(Identity is null ? "\"lhs\"" : "\"identity\"")} field must not start with a label; use \"label\"");
         if (over is null && Identity is null && !entry.Field.IsRationals)
-            return LineResult.Reject($"line {line}: the field goes in \"over\", not inside \"rhs\"");
+            return Reject($"line {line}: the field goes in \"over\", not inside \"rhs\"");
         if (Identity is null && Ranges is not { Count: > 0 } && string.IsNullOrWhiteSpace(For) && entry.IsFamily)
-            return LineResult.Reject($"line {line}: the ranges go in \"for\", not inside \"rhs\"");
+            return Reject($"line {line}: the ranges go in \"for\", not inside \"rhs\"");
         if (Ranges is { Count: > 0 } && (entry.Parameters.Count != Ranges.Count || entry.Parameters.Select(p => p.Name).Where((n, i) => n != Ranges[i].Name).Any()))
-            return LineResult.Reject($"line {line}: a range end in \"for\" must be one expression (it added or changed parameters)");
-        return new LineResult(entry, null, built);
+            return Reject($"line {line}: a range end in \"for\" must be one expression (it added or changed parameters)");
+        return Result<ReadEntry?>.Ok(new ReadEntry(entry, built));
     }
 
     /// <summary>
@@ -87,10 +87,5 @@ internal sealed record FieldEntry(string? Label, string? Lhs, string? Rhs, strin
             }
     }
 
-    // The parser's rules for labels and names (CatalogueParser.FindLabel, CharClass): ASCII letters, Greek letters, digits, '_'.
-    private static bool IsIdentifierStart(char c) => char.IsAsciiLetter(c) || c == '_' || (c >= '\u0391' && c <= '\u03A9' && c != '\u03A2') || (c >= '\u03B1' && c <= '\u03C9');
-
-    private static bool IsIdentifierPart(char c) => IsIdentifierStart(c) || char.IsAsciiDigit(c);
-
-    private static bool IsLabelChar(char c) => IsIdentifierPart(c) || c is '-' or '.';
+    private static Result<ReadEntry?> Reject(string reason) => Result<ReadEntry?>.Fail(reason);
 }

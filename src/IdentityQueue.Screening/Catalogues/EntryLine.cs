@@ -1,13 +1,14 @@
 using System.Text;
+using IdentityQueue.Algebra;
 using IdentityQueue.Algebra.Syntax;
 
-namespace IdentityQueue.Store.Import;
+namespace IdentityQueue.Screening.Catalogues;
 
 /// <summary>
 /// The catalogue line built from the fields of a <c>.jsonl</c> object or a <c>.csv</c> row, so that one parser checks
 /// every format. It remembers where each field went, so a diagnostic can name the field and the column inside it.
 /// </summary>
-internal sealed class EntryLine
+public sealed class EntryLine
 {
     private readonly StringBuilder _text = new();
     private readonly List<(string Field, int Start, int Length)> _fields = [];
@@ -43,20 +44,23 @@ internal sealed class EntryLine
     }
 }
 
-/// <summary>What one line of a catalogue file gives: nothing (blank, comment, header), an entry, or a rejection.</summary>
-internal readonly record struct LineResult(IdentityEntry? Entry, string? Rejection, EntryLine? Built)
+/// <summary>
+/// An entry read from one line of a catalogue file, with the line built from a structured entry's fields (null for
+/// <c>.idq</c>), so that a later diagnostic (a family's range, a field) names the field. Immutable.
+/// </summary>
+public sealed record ReadEntry(IdentityEntry Entry, EntryLine? Built)
 {
-    public static readonly LineResult Skip = default;
-
-    public static LineResult Reject(string reason) => new(null, reason, null);
-
     public string Describe(Diagnostic diagnostic) => Built?.Describe(diagnostic) ?? diagnostic.ToString();
 }
 
-/// <summary>Turns the lines of one file, in order, into entries; one instance per file, as a format may keep state (a CSV header).</summary>
-internal interface IEntryReader
+/// <summary>
+/// Turns the lines of one file, in order, into entries: <c>Ok(entry)</c>, <c>Ok(null)</c> for a line with none (blank,
+/// comment, header, definition), or the line's rejection. One instance per file, as a format may keep state (a CSV
+/// header, <c>let</c> definitions).
+/// </summary>
+public interface IEntryReader
 {
-    LineResult Read(string text, int line);
+    Result<ReadEntry?> Read(string text, int line);
 
     /// <summary>What the format accepted but the user should hear about, each once (an ignored CSV column).</summary>
     IReadOnlyList<string> Warnings => [];

@@ -2,10 +2,10 @@ using System.Buffers;
 using System.Text;
 using IdentityQueue.Algebra.Syntax;
 
-namespace IdentityQueue.Store.Import;
+namespace IdentityQueue.Screening.Catalogues;
 
 /// <summary>One physical line of a catalogue file: its text, or why it cannot be read (and as much of it as can be shown).</summary>
-internal readonly record struct SourceLine(int Number, string? Text, string? Problem, string Raw);
+public readonly record struct SourceLine(int Number, string? Text, string? Problem, string Raw);
 
 /// <summary>
 /// Reads a file line by line from bytes, so that a bad line is one rejection and the rest still import: each line is
@@ -14,7 +14,7 @@ internal readonly record struct SourceLine(int Number, string? Text, string? Pro
 /// Lines end at '\n', with an optional '\r' before it. Memory stays bounded by the line limit whatever the file holds:
 /// a line within the limit is held as its bytes (in a buffer reused from line to line) and its string, nothing more.
 /// </summary>
-internal static class SourceLines
+public static class SourceLines
 {
     /// <summary>Raw text kept for a rejection (the store's <c>rejection.raw</c>), in characters.</summary>
     public const int RawLimit = 2_000;
