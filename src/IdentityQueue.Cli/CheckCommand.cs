@@ -4,6 +4,7 @@ using IdentityQueue.Algebra;
 using IdentityQueue.Algebra.Compile;
 using IdentityQueue.Algebra.Syntax;
 using IdentityQueue.Screening;
+using IdentityQueue.Screening.Counterexamples;
 
 namespace IdentityQueue.Cli;
 
@@ -25,6 +26,7 @@ public static class CheckCommand
         var seed = new Option<ulong?>("--seed") { Description = "Seed for the random primes and points (default: a fresh random seed, printed)." };
         var json = new Option<bool>("--json") { Description = "Print one JSON object instead of text." };
         var time = TimeOption();
+        var noDetails = NoDetailsOption();
         var definitions = new Option<FileInfo?>("--definitions")
         {
             Description = "A catalogue file whose 'let' lines (definitions) the identity may use; its other lines are not read as identities.",
@@ -37,7 +39,7 @@ public static class CheckCommand
             "  idq check \"fib(n-1)*fib(n+1) - fib(n)^2 = (-1)^n for n in 1..30\"\n" +
             "  idq check \"det(matrix(i in 1..3, j in 1..3: h(i-j+1, x))) = s(x)\" --definitions schur.idq")
         {
-            identity, over, target, seed, json, time, definitions,
+            identity, over, target, seed, json, time, noDetails, definitions,
         };
         command.SetAction(parse =>
         {
@@ -65,6 +67,7 @@ public static class CheckCommand
                 return ExitCodes.BadInput;
             }
             var options = new ScreeningOptions { Target = evidence.Value, Seed = runSeed.Value, Budget = budget.Value };
+            if (parse.GetValue(noDetails)) options = options with { Policy = options.Policy with { RefutationDetails = false } };
             DefinitionScope? scope = null;
             if (parse.GetValue(definitions) is { } file)
             {
@@ -91,7 +94,16 @@ public static class CheckCommand
         public string? Invalid => Screen.Success ? null : Screen.Error.ToString();
 
         public Verdict Verdict => Result?.Verdict ?? Verdict.Invalid;
+
+        /// <summary>For a refuted instance: its smallest counterexample and recovered difference, when found.</summary>
+        public RefutationDetails? Details { get; init; }
     }
+
+    /// <summary>The <c>--no-refutation-details</c> option of <c>check</c>, <c>run</c> and <c>worker</c>.</summary>
+    internal static Option<bool> NoDetailsOption() => new("--no-refutation-details")
+    {
+        Description = "After a refutation, skip the search for the smallest integer counterexample and the recovery of lhs - rhs (each refuted candidate then costs only its trials).",
+    };
 
     /// <summary>The <c>--time-per-candidate</c> option of <c>check</c>, <c>run</c> and <c>worker</c>.</summary>
     internal static Option<double> TimeOption() => new("--time-per-candidate")
@@ -163,7 +175,11 @@ public static class CheckCommand
                     Verdict = Verdict.Undecided,
                     Message = $"stopped by a signal after {result.TrialCount} trials, at 2^{result.ErrorBoundLog2 ?? 0:F1} of the target {options.Target}",
                 };
-            outcomes.Add(new InstanceOutcome(parameters, Result<ScreenResult>.Ok(result)));
+            // Where and how a refuted identity fails: the smallest integer counterexample and lhs - rhs itself.
+            var details = result.Verdict == Verdict.Refuted && options.Policy.RefutationDetails
+                ? RefutationDetails.Find(compiled.Value!, options.Policy, key, options.Clock, cancellation)
+                : null;
+            outcomes.Add(new InstanceOutcome(parameters, Result<ScreenResult>.Ok(result)) { Details = details });
         }
         if (json) JsonReport.Write(output, entry, options, outcomes);
         else TextReport.Write(output, entry, options, outcomes);

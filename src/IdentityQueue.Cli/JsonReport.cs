@@ -77,6 +77,7 @@ internal static class JsonReport
         w.WriteNumber("trials", r?.TrialCount ?? 0);
         if (r?.Witness is { } witness) WriteWitness(w, witness, r.Certified);
         else w.WriteNull("witness");
+        WriteDetails(w, o.Details);
         if (o.Invalid is not null) w.WriteString("message", o.Invalid);
         else if (r?.Message is not null) w.WriteString("message", r.Message);
         else w.WriteNull("message");
@@ -135,5 +136,37 @@ internal static class JsonReport
         w.WriteStartArray(name);
         foreach (var c in coefficients) w.WriteStringValue(c.ToString());
         w.WriteEndArray();
+    }
+
+    /// <summary>A refuted instance's smallest counterexample and recovered difference (null when none was found).</summary>
+    private static void WriteDetails(Utf8JsonWriter w, Screening.Counterexamples.RefutationDetails? details)
+    {
+        if (details?.Counterexample is { } c)
+        {
+            w.WriteStartObject("counterexample");
+            w.WriteStartObject("point");
+            foreach (var (variable, value) in c.Point) w.WriteString(variable, value.ToString());
+            w.WriteEndObject();
+            w.WriteString("lhsValue", c.LhsValue);
+            w.WriteString("rhsValue", c.RhsValue);
+            if (c.Entry is null) w.WriteNull("entry"); else w.WriteString("entry", c.Entry);
+            w.WriteString("maxAbs", c.MaxAbs.ToString());
+            w.WriteBoolean("exhaustive", c.Exhaustive);
+            w.WriteString("text", c.Describe());
+            w.WriteEndObject();
+        }
+        else w.WriteNull("counterexample");
+        if (details?.Difference is { } d)
+        {
+            w.WriteStartObject("difference");
+            if (d.Text is null) w.WriteNull("text");
+            else w.WriteString("text", d.DenominatorText is null ? d.Text : $"({d.Text})/({d.DenominatorText})");
+            if (d.Terms is { } terms) w.WriteNumber("terms", terms); else w.WriteNull("terms");
+            if (d.EstimatedTerms is { } estimate) w.WriteNumber("estimatedTerms", estimate); else w.WriteNull("estimatedTerms");
+            if (d.TotalDegree >= 0) w.WriteNumber("totalDegree", d.TotalDegree); else w.WriteNull("totalDegree");
+            w.WriteBoolean("verified", d.Verified);
+            w.WriteEndObject();
+        }
+        else w.WriteNull("difference");
     }
 }

@@ -16,7 +16,7 @@ namespace IdentityQueue.Cli;
 internal static class RunCommands
 {
     private sealed record RunArgs(StoreOptions Db, Option<int?> Workers, Option<int?> Target, Option<int> Chunk, Option<int?> Invisibility, Option<bool> TwoPass,
-        Option<double> Time);
+        Option<double> Time, Option<bool> NoDetails);
 
     private static RunArgs Arguments(Command command, bool target, bool screens = true)
     {
@@ -34,7 +34,8 @@ internal static class RunCommands
             {
                 Description = "First give every candidate its cheap stage of trials, then the survivors the rest: a partial run holds nearly all refutations, but the whole run is slower.",
             },
-            CheckCommand.TimeOption());
+            CheckCommand.TimeOption(),
+            CheckCommand.NoDetailsOption());
         args.Db.AddTo(command);
         command.Options.Add(args.Workers);
         if (target) command.Options.Add(args.Target);
@@ -42,6 +43,7 @@ internal static class RunCommands
         command.Options.Add(args.Invisibility);
         command.Options.Add(args.TwoPass);
         if (screens) command.Options.Add(args.Time);
+        if (screens) command.Options.Add(args.NoDetails);
         return args;
     }
 
@@ -89,6 +91,7 @@ internal static class RunCommands
             ChunkSize = parse.GetValue(a.Chunk),
             TwoPass = parse.GetValue(a.TwoPass),
         };
+        if (parse.GetValue(a.NoDetails)) settings = settings with { Policy = settings.Policy with { RefutationDetails = false } };
         if (parse.GetValue(a.Invisibility) is int seconds) settings = settings with { InvisibilityTimeout = TimeSpan.FromSeconds(seconds) };
         var problems = settings.Validate();
         if (mode != RunMode.EnqueueOnly)

@@ -52,6 +52,12 @@ internal static class ShowCommands
             if (result.Message is string m) o.WriteLine($"  message        {m}");
             if (result.Certified && !exact) o.WriteLine("  certified      the witness was confirmed exactly");
         }
+        if (detail.Counterexample is { } x)
+        {
+            o.WriteLine($"  counterexample {x.Describe()}");
+            o.WriteLine($"                 {x.Smallness}");
+        }
+        if (detail.Difference is { } d) o.WriteLine($"  difference     {d.Describe()}");
         o.WriteLine($"  trials         {trials.Count}");
         foreach (var t in trials)
         {
@@ -87,6 +93,7 @@ internal static class ShowCommands
             w.WriteStartObject("result");
             if (detail.Result is { } r) WriteResult(w, r);
             w.WriteEndObject();
+            WriteDetails(w, detail);
             w.WriteStartArray("trials");
             foreach (var t in trials)
             {
@@ -118,6 +125,35 @@ internal static class ShowCommands
             w.WriteEndObject();
         }
         output.WriteLine(System.Text.Encoding.UTF8.GetString(stream.ToArray()));
+    }
+
+    /// <summary>The refutation's counterexample and difference under the columns of their views (null when none was found).</summary>
+    private static void WriteDetails(Utf8JsonWriter w, CandidateDetail detail)
+    {
+        if (detail.Counterexample is { } x)
+        {
+            w.WriteStartObject("counterexample");
+            w.WritePropertyName("point");
+            w.WriteRawValue(x.Point);
+            w.WriteString("lhs_value", x.LhsValue);
+            w.WriteString("rhs_value", x.RhsValue);
+            if (x.Entry is null) w.WriteNull("entry"); else w.WriteString("entry", x.Entry);
+            w.WriteNumber("max_abs", x.MaxAbs);
+            w.WriteNumber("exhaustive", x.Exhaustive ? 1 : 0);
+            w.WriteString("text", x.Describe());
+            w.WriteEndObject();
+        }
+        else w.WriteNull("counterexample");
+        if (detail.Difference is { } d)
+        {
+            w.WriteStartObject("difference");
+            if (d.Text is null) w.WriteNull("difference"); else w.WriteString("difference", d.Text);
+            if (d.Terms is { } terms) w.WriteNumber("terms", terms); else w.WriteNull("terms");
+            if (d.TotalDegree is { } degree) w.WriteNumber("total_degree", degree); else w.WriteNull("total_degree");
+            w.WriteNumber("terms_estimated", d.TermsEstimated ? 1 : 0);
+            w.WriteEndObject();
+        }
+        else w.WriteNull("difference");
     }
 
     /// <summary>The result row's columns under their SQL names, as <c>idq sql</c> would give them (certified as 1/0).</summary>

@@ -67,6 +67,9 @@ internal static class TextReport
                 ? "                 confirmed exactly over Q at this integer point"
                 : "                 confirmed by an independent re-evaluation");
         }
+        if (x.Details?.Counterexample is { } c)
+            o.WriteLine($"  counterexample {c.Describe()}" + (c.Exhaustive ? " (the least: every smaller point was tried)" : ""));
+        if (x.Details?.Difference is { } d) o.WriteLine($"  difference     {d.Describe()}");
     }
 
     private static string Undefined(IGrouping<int, TrialRecord> g)

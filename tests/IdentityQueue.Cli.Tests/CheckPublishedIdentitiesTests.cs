@@ -149,4 +149,21 @@ public class CheckPublishedIdentitiesTests
         Assert.Contains("jacobi-trudi-wrong,refuted", states);
         Assert.Contains("cassini[n=5],survived", states);
     }
+
+    // A refutation says where and how the identity fails: (x+y)^2 = x^2 + 2xy + y^2 (the binomial theorem), so
+    // "(x+y)^2 = x^2 + y^2" misses 2xy; its least counterexample is x = 1, y = 1 (lhs 4, rhs 2).
+    [Fact]
+    public void Refuted_NamesTheSmallestCounterexampleAndTheDifference()
+    {
+        var (code, text, _) = Run("check", "(x+y)^2 = x^2 + y^2");
+        Assert.Equal(1, code);
+        Assert.Contains("counterexample fails at x = 1, y = 1: lhs = 4, rhs = 2 (the least: every smaller point was tried)", text);
+        Assert.Contains("difference     lhs - rhs = 2*x*y (1 term, total degree 2)", text);
+        var (_, json, _) = Run("check", "(x+y)^2 = x^2 + y^2", "--json");
+        using var doc = System.Text.Json.JsonDocument.Parse(json);
+        var counterexample = doc.RootElement.GetProperty("counterexample");
+        Assert.Equal("fails at x = 1, y = 1: lhs = 4, rhs = 2", counterexample.GetProperty("text").GetString());
+        Assert.True(counterexample.GetProperty("exhaustive").GetBoolean());
+        Assert.Equal("2*x*y", doc.RootElement.GetProperty("difference").GetProperty("text").GetString());
+    }
 }

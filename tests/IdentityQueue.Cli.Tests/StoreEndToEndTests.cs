@@ -276,6 +276,33 @@ public sealed class StoreEndToEndTests : IDisposable
         Assert.Equal("line 1, column 23 of the stored lhs, at n=2, j=1: division by zero", rows[0][1]);
     }
 
+    // Where and how a refuted identity fails. (x+y)^2 = x^2 + 2xy + y^2 (the binomial theorem), so "(x+y)^2 = x^2 + y^2"
+    // differs by 2xy: its least counterexample by max-norm, then sum of absolute values, then the variables' order
+    // (0, 1, -1, …) is x = 1, y = 1, where lhs = 4 and rhs = 2. Moser's circle count at n = 6 is 31, not 2^5 = 32
+    // (R. K. Guy, "The strong law of small numbers", Amer. Math. Monthly 95 (1988)): a constant identity fails with no point.
+    [Fact]
+    public void RefutedCandidates_GetTheirSmallestCounterexampleAndTheirDifference()
+    {
+        var file = Path.Combine(_dir, "r.idq");
+        File.WriteAllText(file, "wrong: (x+y)^2 = x^2 + y^2\nright: (x+y)^2 = x^2 + 2*x*y + y^2\nmoser6: sum(k in 0..4: binom(5, k)) = 2^5\n");
+        Idq("init", "--db", Db);
+        Idq("import", file, "--db", Db);
+        Assert.Equal(0, Idq("run", "--db", Db).Code);
+        var rows = Query(Db, "SELECT label, point, lhs_value, rhs_value, max_abs, exhaustive FROM counterexamples ORDER BY label");
+        Assert.Equal(2, rows.Count);
+        Assert.Equal(["moser6", "{}", "31", "32", 0L, 1L], rows[0]);
+        Assert.Equal(["wrong", "{\"x\":\"1\",\"y\":\"1\"}", "4", "2", 1L, 1L], rows[1]);
+        var difference = Query(Db, "SELECT difference, terms, total_degree FROM differences WHERE label = 'wrong'").Single();
+        Assert.Equal(["2*x*y", 1L, 2L], difference);
+        var show = Idq("show", "wrong", "--db", Db);
+        Assert.Contains("counterexample fails at x = 1, y = 1: lhs = 4, rhs = 2", show.Out);
+        Assert.Contains("difference     lhs - rhs = 2*x*y (1 term, total degree 2)", show.Out);
+        var json = Idq("show", "wrong", "--db", Db, "--json").Out;
+        Assert.Contains("\"lhs_value\": \"4\"", json);
+        Assert.Contains("\"difference\": \"2*x*y\"", json);
+        Assert.DoesNotContain("counterexample fails", Idq("show", "right", "--db", Db).Out);
+    }
+
     [Fact]
     public void SqlStatusShowAndExport_Work()
     {

@@ -25,6 +25,12 @@ public sealed record ResultDetail(
 /// </summary>
 public sealed record CandidateDetail(StoredCandidate Candidate, ResultDetail? Result, IReadOnlyList<TrialRecord> Trials, int Matches)
 {
+    /// <summary>For a refuted candidate: the smallest counterexample found, when one was.</summary>
+    public StoredCounterexample? Counterexample { get; init; }
+
+    /// <summary>For a refuted candidate: lhs − rhs recovered, when it was.</summary>
+    public StoredDifference? Difference { get; init; }
+
     /// <summary>The candidate's state; a candidate without a result row is pending.</summary>
     public ResultState State => Result?.State ?? ResultState.Pending;
 }
@@ -52,7 +58,11 @@ public sealed class CandidateReads(StoreConnection store)
                 ResultStates.Parse(r.Text("state")), r.NullableText("degree_bound"), r.NullableDouble("height_bound_log2"), r.Long("trials_zero"),
                 r.NullableDouble("error_bound_log2"), r.NullableLong("witness_trial_id"), r.Long("certified") != 0, r.NullableText("message"),
                 r.Text("updated_at")));
-        return new CandidateDetail(stored, result.FirstOrDefault(), candidates.LoadTrials(ids[0]), ids.Count);
+        return new CandidateDetail(stored, result.FirstOrDefault(), candidates.LoadTrials(ids[0]), ids.Count)
+        {
+            Counterexample = RefutationDetailReads.Counterexample(store, ids[0]),
+            Difference = RefutationDetailReads.Difference(store, ids[0]),
+        };
     }
 
     /// <summary>The ids of the candidates in a state, ascending.</summary>

@@ -216,6 +216,7 @@ public sealed class CandidateStore(StoreConnection store)
                 state = excluded.state, message = excluded.message, updated_at = excluded.updated_at, claimed_by = NULL, claimed_at = NULL
             """, transaction);
         var u = new { Candidate = unscreened.Parameter("@candidate"), State = unscreened.Parameter("@state"), Message = unscreened.Parameter("@message") };
+        using var details = new DetailInsert(_db, transaction);
 
         var written = 0;
         foreach (var outcome in outcomes)
@@ -241,6 +242,9 @@ public sealed class CandidateStore(StoreConnection store)
             p.Message.Set(result.Message);
             p.Trials.Set(result.Trials.Count);
             written += Run(screened, isResult: true);
+            if (outcome.Details?.Counterexample is { } found) Run(details.Counterexample(outcome.CandidateId, found), isResult: false);
+            if (outcome.Details?.Difference is { } difference && details.Difference(outcome.CandidateId, difference) is { } insert)
+                Run(insert, isResult: false);
         }
         if (batch is { BatchCommands.Count: > 0 })
         {
@@ -265,6 +269,78 @@ public sealed class CandidateStore(StoreConnection store)
         OutcomeKind.Invalid => ResultStates.Invalid,
         _ => ResultStates.Failed,
     };
+
+    /// <summary>
+    /// The prepared inserts of a refuted candidate's details (<c>counterexample</c>, <c>recovered_difference</c>); a row
+    /// already stored is kept (a job that runs twice changes nothing).
+    /// </summary>
+    private sealed class DetailInsert : IDisposable
+    {
+        private readonly DbCommand _counterexample, _difference;
+        private readonly DbParameter _cCandidate, _point, _lhs, _rhs, _entry, _maxAbs, _exhaustive, _tried;
+        private readonly DbParameter _dCandidate, _text, _terms, _degree, _estimated;
+
+        public DetailInsert(DbConnection db, DbTransaction transaction)
+        {
+            _counterexample = db.Command("""
+                INSERT INTO counterexample (candidate_id, point, lhs_value, rhs_value, entry, max_abs, exhaustive, points_tried, created_at)
+                VALUES (@candidate, @point, @lhs, @rhs, @entry, @max_abs, @exhaustive, @tried, CURRENT_TIMESTAMP)
+                ON CONFLICT (candidate_id) DO NOTHING
+                """, transaction);
+            _cCandidate = _counterexample.Parameter("@candidate");
+            _point = _counterexample.Parameter("@point");
+            _lhs = _counterexample.Parameter("@lhs");
+            _rhs = _counterexample.Parameter("@rhs");
+            _entry = _counterexample.Parameter("@entry");
+            _maxAbs = _counterexample.Parameter("@max_abs");
+            _exhaustive = _counterexample.Parameter("@exhaustive");
+            _tried = _counterexample.Parameter("@tried");
+            _difference = db.Command("""
+                INSERT INTO recovered_difference (candidate_id, difference, terms, total_degree, terms_estimated, created_at)
+                VALUES (@candidate, @text, @terms, @degree, @estimated, CURRENT_TIMESTAMP)
+                ON CONFLICT (candidate_id) DO NOTHING
+                """, transaction);
+            _dCandidate = _difference.Parameter("@candidate");
+            _text = _difference.Parameter("@text");
+            _terms = _difference.Parameter("@terms");
+            _degree = _difference.Parameter("@degree");
+            _estimated = _difference.Parameter("@estimated");
+        }
+
+        public DbCommand Counterexample(long candidateId, Screening.Counterexamples.Counterexample found)
+        {
+            _cCandidate.Set(candidateId);
+            _point.Set(Screening.Counterexamples.RefutationDetails.PointJson(found));
+            _lhs.Set(found.LhsValue);
+            _rhs.Set(found.RhsValue);
+            _entry.Set(found.Entry);
+            _maxAbs.Set(found.MaxAbs > long.MaxValue ? long.MaxValue : (long)found.MaxAbs);
+            _exhaustive.Set(found.Exhaustive);
+            _tried.Set((long)found.PointsTried);
+            return _counterexample;
+        }
+
+        /// <summary>The insert for a recovered difference, or null when nothing about it is known (no text, no estimate, no degree).</summary>
+        public DbCommand? Difference(long candidateId, Screening.Counterexamples.RecoveredDifference d)
+        {
+            var text = d.Text is null ? null : d.DenominatorText is null ? d.Text : $"({d.Text})/({d.DenominatorText})";
+            long? terms = d.Terms ?? d.EstimatedTerms;
+            int? degree = d.TotalDegree >= 0 ? d.TotalDegree : null;
+            if (text is null && terms is null && degree is null) return null;
+            _dCandidate.Set(candidateId);
+            _text.Set(text);
+            _terms.Set(terms);
+            _degree.Set(degree);
+            _estimated.Set(text is null && terms is not null);
+            return _difference;
+        }
+
+        public void Dispose()
+        {
+            _counterexample.Dispose();
+            _difference.Dispose();
+        }
+    }
 
     /// <summary>The prepared insert of one trial row, ignoring a (candidate_id, seq) already stored.</summary>
     private sealed class TrialInsert : IDisposable

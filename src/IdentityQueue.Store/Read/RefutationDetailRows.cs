@@ -1,0 +1,66 @@
+using System.Globalization;
+using System.Text.Json;
+
+namespace IdentityQueue.Store.Read;
+
+/// <summary>A stored smallest counterexample (a row of the <c>counterexamples</c> view). Immutable.</summary>
+/// <param name="Point">A JSON object, variable → integer as text, in the variables' order.</param>
+public sealed record StoredCounterexample(string Point, string LhsValue, string RhsValue, string? Entry, long MaxAbs, bool Exhaustive)
+{
+    /// <summary>The point as (variable, value) pairs in the stored order; empty when the text is not a JSON object.</summary>
+    public IReadOnlyList<(string Variable, string Value)> Coordinates()
+    {
+        try
+        {
+            using var json = JsonDocument.Parse(Point);
+            if (json.RootElement.ValueKind != JsonValueKind.Object) return [];
+            return json.RootElement.EnumerateObject().Select(p => (p.Name, p.Value.ToString())).ToList();
+        }
+        catch (JsonException)
+        {
+            return [];
+        }
+    }
+
+    /// <summary>"fails at a = 1, b = 0: lhs = 4, rhs = 2", with "at entry [2,1]" for a matrix identity.</summary>
+    public string Describe()
+    {
+        var point = Coordinates();
+        var at = point.Count == 0 ? "fails" : "fails at " + string.Join(", ", point.Select(v => $"{v.Variable} = {v.Value}"));
+        var entry = Entry is null ? "" : $" at entry {Entry}";
+        return $"{at}{entry}: lhs = {LhsValue}, rhs = {RhsValue}";
+    }
+
+    /// <summary>How sure the smallness is: "the smallest (every point of smaller norm was tried)" or "small, not proved smallest".</summary>
+    public string Smallness => Exhaustive
+        ? "the least counterexample (every point before it, by max-norm then sum of absolute values, was tried)"
+        : $"a small counterexample (max-norm {MaxAbs.ToString(CultureInfo.InvariantCulture)}; not every smaller point was tried)";
+}
+
+/// <summary>A stored recovered difference (a row of the <c>differences</c> view). Immutable.</summary>
+public sealed record StoredDifference(string? Text, long? Terms, int? TotalDegree, bool TermsEstimated)
+{
+    /// <summary>"lhs - rhs = 2*x*y (1 term, total degree 2)", or what is known when it was too large to write out.</summary>
+    public string Describe()
+    {
+        var degree = TotalDegree is { } d ? $"total degree {d.ToString(CultureInfo.InvariantCulture)}" : "total degree unknown";
+        var terms = Terms is { } t ? $"{(TermsEstimated ? "at least " : "")}{t.ToString(CultureInfo.InvariantCulture)} term{(t == 1 ? "" : "s")}" : "terms unknown";
+        return Text is null ? $"lhs - rhs: {terms}, {degree} (too large to write out)" : $"lhs - rhs = {Text} ({terms}, {degree})";
+    }
+}
+
+/// <summary>Reads a refuted candidate's details, every value a parameter.</summary>
+public static class RefutationDetailReads
+{
+    public static StoredCounterexample? Counterexample(StoreConnection store, long candidateId) =>
+        ReadSql.Rows(store, """
+            SELECT point, lhs_value, rhs_value, entry, max_abs, exhaustive FROM counterexamples WHERE candidate_id = @id
+            """, [("@id", candidateId)], r => new StoredCounterexample(r.Text("point"), r.Text("lhs_value"), r.Text("rhs_value"),
+            r.NullableText("entry"), r.Long("max_abs"), r.Long("exhaustive") != 0)).FirstOrDefault();
+
+    public static StoredDifference? Difference(StoreConnection store, long candidateId) =>
+        ReadSql.Rows(store, """
+            SELECT difference, terms, total_degree, terms_estimated FROM differences WHERE candidate_id = @id
+            """, [("@id", candidateId)], r => new StoredDifference(r.NullableText("difference"), r.NullableLong("terms"),
+            r.NullableLong("total_degree") is { } d ? (int)d : null, r.Long("terms_estimated") != 0)).FirstOrDefault();
+}
