@@ -95,11 +95,7 @@ public readonly record struct Fingerprint(string Field, string Shape, UInt128 Le
         if (field.IsRationals)
         {
             var fields = new PrimeField62[Fields];
-            for (var f = 0; f < Fields; f++)
-            {
-                var random = new Xoshiro256(Hash(seed, "prime", f));
-                fields[f] = PrimeField62.CreateRandom(ref random);
-            }
+            for (var f = 0; f < Fields; f++) fields[f] = RationalsField(seed, f);
             return Make<PrimeField62, Residue62>(fields, left, right, seed, name, shape, true);
         }
         var p = field.Characteristic;
@@ -165,7 +161,7 @@ public readonly record struct Fingerprint(string Field, string Shape, UInt128 Le
             {
                 for (var i = 0; i < point.Length; i++)
                 {
-                    var random = new Xoshiro256(Hash(seed, "point", f, k, program.Variables[i]));
+                    var random = PointRandom(seed, f, k, program.Variables[i]);
                     point[i] = field.Sample(ref random);
                 }
                 if (!Evaluator.Evaluate<TField, T>(field, program, constants, point, registers, CancellationToken.None)) continue;
@@ -180,6 +176,16 @@ public readonly record struct Fingerprint(string Field, string Shape, UInt128 Le
         var bytes = hash.GetHashAndReset();
         return new UInt128(BinaryPrimitives.ReadUInt64LittleEndian(bytes), BinaryPrimitives.ReadUInt64LittleEndian(bytes.AsSpan(8)));
     }
+
+    /// <summary>Fingerprint field <paramref name="f"/> of an identity over Q: a 62-bit prime drawn from the seed.</summary>
+    internal static PrimeField62 RationalsField(RunSeed seed, int f)
+    {
+        var random = new Xoshiro256(Hash(seed, "prime", f));
+        return PrimeField62.CreateRandom(ref random);
+    }
+
+    /// <summary>The generator that samples variable <paramref name="name"/> at point <paramref name="k"/> of field <paramref name="f"/>.</summary>
+    internal static Xoshiro256 PointRandom(RunSeed seed, int f, int k, string name) => new(Hash(seed, "point", f, k, name));
 
     private static void Append(IncrementalHash hash, int field, int point, BigInteger[] coefficients)
     {

@@ -158,6 +158,44 @@ public class FingerprintTests
         Assert.Empty(EquivalenceGroups.Build([(1, null), (2, null), (3, Print("x = x")), (4, null)]));
     }
 
+    /// <summary>x's value at point <paramref name="k"/> of the first field over Q, as an integer.</summary>
+    private static ulong XAt(int k)
+    {
+        var field = Fingerprint.RationalsField(Seed, 0);
+        var random = Fingerprint.PointRandom(Seed, 0, k, "x");
+        return field.ToUInt64(field.Sample(ref random));
+    }
+
+    [Fact]
+    public void A_side_undefined_at_a_fingerprint_point_moves_to_the_next_point()
+    {
+        // 1/(x - c0) with c0 the value of x at the first point of the first field: undefined there, so points 1 and 2
+        // are used. 1/(x - c0) + 1 = (1 + x - c0)/(x - c0) (worked by hand), so the two entries below are one, swapped.
+        var c = Enumerable.Range(0, 4).Select(XAt).ToArray();
+        var rows = Groups($"1/(x-{c[0]}) + 1 = y", $"y = (1 + x - {c[0]})/(x - {c[0]})");
+        Assert.Equal([new EquivalentEntry(2, 1, true)], rows);
+        // undefined at three points of five: still two left; at four: no fingerprint
+        Assert.NotNull(Print($"1/((x-{c[0]})*(x-{c[1]})*(x-{c[2]})) = y"));
+        Assert.Null(Print($"1/((x-{c[0]})*(x-{c[1]})*(x-{c[2]})*(x-{c[3]})) = y"));
+    }
+
+    [Fact]
+    public void Instances_of_families_group_instance_by_instance()
+    {
+        // The binomial theorem (1+x)^n = sum_k C(n,k) x^k (any algebra text), written twice; the instance n of one line
+        // groups with the instance n of the other and with no other n.
+        var first = Some.Entry("(1+x)^n = sum(k in 0..n: binom(n, k)*x^k) for n in 1..4");
+        var second = Some.Entry("sum(k in 0..n: binom(n, k)*x^(n-k)) = (x+1)^n for n in 1..4");
+        var entries = new List<(long, Fingerprint?)>();
+        foreach (var entry in new[] { first, second })
+        {
+            var family = FamilyExpander.Expand(entry);
+            Assert.True(family.Success);
+            foreach (var parameters in family.Instances) entries.Add((entries.Count + 1, Fingerprint.Of(entry, parameters, Seed)));
+        }
+        Assert.Equal([new(5, 1, false), new(6, 2, false), new(7, 3, false), new EquivalentEntry(8, 4, false)], EquivalenceGroups.Build(entries));
+    }
+
     [Fact]
     public void The_fingerprint_depends_on_the_seed_alone()
     {
