@@ -73,6 +73,34 @@ public readonly record struct Fingerprint(string Field, string Shape, UInt128 Le
         return Math.Min(0, 1 + Log2Add(sides, -128));
     }
 
+    /// <summary>
+    /// <see cref="FalseMatchLog2(double, double)"/> for entry <paramref name="b"/> grouped with entry <paramref name="a"/>
+    /// (whose fingerprint is this one), with the degree and height taken from the compiler's bounds on the differences of
+    /// the paired sides: a's left side against b's left (b's right when <paramref name="swapped"/>), and a's right against
+    /// b's other side, each compiled as an identity of its own. Null when a pair does not compile, or when the two
+    /// instances give one parameter name different values (their sides cannot be compiled together).
+    /// </summary>
+    public double? FalseMatchLog2(IdentityEntry a, IReadOnlyDictionary<string, BigInteger> aParameters,
+        IdentityEntry b, IReadOnlyDictionary<string, BigInteger> bParameters, bool swapped, Limits? limits = null)
+    {
+        var parameters = new Dictionary<string, BigInteger>(aParameters, StringComparer.Ordinal);
+        foreach (var (name, value) in bParameters)
+        {
+            if (parameters.TryGetValue(name, out var other) && other != value) return null;
+            parameters[name] = value;
+        }
+        var degree = 0.0;
+        var height = 0.0;
+        foreach (var (mine, theirs) in new[] { (a.Left, swapped ? b.Right : b.Left), (a.Right, swapped ? b.Left : b.Right) })
+        {
+            var pair = IdentityCompiler.Compile(a with { Left = mine, Right = theirs }, parameters, limits);
+            if (!pair.Success) return null;
+            degree = Math.Max(degree, (double)pair.Value.Bounds.Degree);
+            height = Math.Max(height, pair.Value.Bounds.HeightLog2);
+        }
+        return FalseMatchLog2(degree, height);
+    }
+
     private static double Log2Add(double a, double b)
     {
         var (hi, lo) = a >= b ? (a, b) : (b, a);
@@ -203,3 +231,4 @@ public readonly record struct Fingerprint(string Field, string Shape, UInt128 Le
 
     private static ulong Hash(RunSeed seed, string purpose, int field, string name) => Hash(seed, purpose, field, 0, name);
 }
+

@@ -233,6 +233,32 @@ public class FingerprintTests
     }
 
     [Fact]
+    public void The_bound_for_two_grouped_entries_comes_from_the_differences_of_their_sides()
+    {
+        // (x+y)^2 = x^2+2xy+y^2 and its sides swapped: the paired differences have degree 2 and small coefficients (worked
+        // by hand; the compiler's bound may be larger, not smaller), so the content term 2^-55 per prime dominates:
+        // about 2·(2^-55)^2 = 2^-109.
+        var a = Some.Entry("(x+y)^2 = x^2+2*x*y+y^2");
+        var b = Some.Entry("x^2+2*x*y+y^2 = (y+x)*(x+y)");
+        var print = PrintOf("(x+y)^2 = x^2+2*x*y+y^2");
+        var bound = print.FalseMatchLog2(a, None, b, None, swapped: true);
+        Assert.NotNull(bound);
+        Assert.InRange(bound.Value, -110, -100);
+        // a rational side over GF(5): no content term, so below the digest's 2^-127
+        var r = Some.Entry("(x^2-y^2)/(x-y) = x+y over GF(5)");
+        var s = Some.Entry("x+y = (x^2-y^2)/(x-y) over GF(5)");
+        var overGf5 = PrintOf("(x^2-y^2)/(x-y) = x+y over GF(5)").FalseMatchLog2(r, None, s, None, swapped: true);
+        Assert.NotNull(overGf5);
+        Assert.InRange(overGf5.Value, -128, -120);
+        // two instances giving n different values cannot be compiled together: no bound
+        var family = Some.Entry("(1+x)^n = sum(k in 0..n: binom(n, k)*x^k) for n in 1..4");
+        var three = new Dictionary<string, BigInteger> { ["n"] = 3 };
+        var four = new Dictionary<string, BigInteger> { ["n"] = 4 };
+        Assert.Null(print.FalseMatchLog2(family, three, family, four, swapped: false));
+        Assert.NotNull(print.FalseMatchLog2(family, three, family, three, swapped: false));
+    }
+
+    [Fact]
     public void Side_prints_agree_exactly_when_sympy_says_the_polynomials_are_equal()
     {
         // tests/fixtures/equivalence-pairs.jsonl: random products of sparse factors against their expansion, their
