@@ -1,4 +1,5 @@
 using System.Buffers.Binary;
+using System.Collections.Concurrent;
 using System.Numerics;
 using System.Security.Cryptography;
 using System.Text;
@@ -122,8 +123,12 @@ public readonly record struct Fingerprint(string Field, string Shape, UInt128 Le
         var name = field.ToString();
         if (field.IsRationals)
         {
-            var fields = new PrimeField62[Fields];
-            for (var f = 0; f < Fields; f++) fields[f] = RationalsField(seed, f);
+            var fields = (PrimeField62[])Cached(seed, BigInteger.Zero, () =>
+            {
+                var drawn = new PrimeField62[Fields];
+                for (var f = 0; f < Fields; f++) drawn[f] = RationalsField(seed, f);
+                return drawn;
+            });
             return Make<PrimeField62, Residue62>(fields, left, right, seed, name, shape, true);
         }
         var p = field.Characteristic;
@@ -135,12 +140,16 @@ public readonly record struct Fingerprint(string Field, string Shape, UInt128 Le
             return Make<BigPrimeField, BigResidue>([BigPrimeField.Create(p), BigPrimeField.Create(p)], left, right, seed, name, shape, false);
         }
         var m = (int)Math.Ceiling(60 / bits);
-        var extensions = new ExtensionField<SmallPrimeField, SmallResidue>[Fields];
-        for (var f = 0; f < Fields; f++)
+        var extensions = (ExtensionField<SmallPrimeField, SmallResidue>[])Cached(seed, p, () =>
         {
-            var random = new Xoshiro256(Hash(seed, "extension", f));
-            extensions[f] = ExtensionField<SmallPrimeField, SmallResidue>.Create(SmallPrimeField.Create((ulong)p), m, ref random);
-        }
+            var drawn = new ExtensionField<SmallPrimeField, SmallResidue>[Fields];
+            for (var f = 0; f < Fields; f++)
+            {
+                var random = new Xoshiro256(Hash(seed, "extension", f));
+                drawn[f] = ExtensionField<SmallPrimeField, SmallResidue>.Create(SmallPrimeField.Create((ulong)p), m, ref random);
+            }
+            return drawn;
+        });
         return Make<ExtensionField<SmallPrimeField, SmallResidue>, ExtElement<SmallResidue>>(extensions, left, right, seed, name, shape, false);
     }
 
@@ -205,6 +214,16 @@ public readonly record struct Fingerprint(string Field, string Shape, UInt128 Le
         return new UInt128(BinaryPrimitives.ReadUInt64LittleEndian(bytes), BinaryPrimitives.ReadUInt64LittleEndian(bytes.AsSpan(8)));
     }
 
+    /// <summary>Fingerprint fields drawn so far, by (seed, characteristic; 0 for Q): drawing a prime or an irreducible polynomial costs more than a print. Cleared past 64.</summary>
+    private static readonly ConcurrentDictionary<(ulong Seed, BigInteger Characteristic), Array> FieldCache = new();
+
+    private static Array Cached(RunSeed seed, BigInteger characteristic, Func<Array> draw)
+    {
+        if (FieldCache.TryGetValue((seed.Value, characteristic), out var fields)) return fields;
+        if (FieldCache.Count >= 64) FieldCache.Clear();
+        return FieldCache.GetOrAdd((seed.Value, characteristic), _ => draw());
+    }
+
     /// <summary>Fingerprint field <paramref name="f"/> of an identity over Q: a 62-bit prime drawn from the seed.</summary>
     internal static PrimeField62 RationalsField(RunSeed seed, int f)
     {
@@ -217,9 +236,18 @@ public readonly record struct Fingerprint(string Field, string Shape, UInt128 Le
 
     private static void Append(IncrementalHash hash, int field, int point, BigInteger[] coefficients)
     {
-        hash.AppendData(Encoding.UTF8.GetBytes($"{field}:{point}:"));
-        foreach (var c in coefficients) hash.AppendData(Encoding.UTF8.GetBytes(c.ToString(System.Globalization.CultureInfo.InvariantCulture) + ","));
-        hash.AppendData(";"u8);
+        Span<byte> buffer = stackalloc byte[12];
+        BinaryPrimitives.WriteInt32LittleEndian(buffer, field);
+        BinaryPrimitives.WriteInt32LittleEndian(buffer[4..], point);
+        BinaryPrimitives.WriteInt32LittleEndian(buffer[8..], coefficients.Length);
+        hash.AppendData(buffer);
+        foreach (var c in coefficients)
+        {
+            var bytes = c.ToByteArray(); // two's complement, little-endian; prefixed by its length so that the encoding is unambiguous
+            BinaryPrimitives.WriteInt32LittleEndian(buffer, bytes.Length);
+            hash.AppendData(buffer[..4]);
+            hash.AppendData(bytes);
+        }
     }
 
     /// <summary>A 64-bit seed from the catalogue seed and a purpose, field number, point number and name.</summary>
