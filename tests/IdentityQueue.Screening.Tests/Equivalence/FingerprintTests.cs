@@ -113,6 +113,22 @@ public class FingerprintTests
     }
 
     [Fact]
+    public void Pfaffians_group_and_their_side_conditions_are_not_part_of_a_side()
+    {
+        // The Pfaffian of a 4×4 skew-symmetric matrix is af − be + cd (any text on Pfaffians, e.g. Wikipedia "Pfaffian").
+        var rows = Groups(
+            "pf([[0,a,b,c],[-a,0,d,e],[-b,-d,0,f],[-c,-e,-f,0]]) = a*f - b*e + c*d",
+            "c*d + a*f - b*e = pf([[0,a,b,c],[-a,0,d,e],[-b,-d,0,f],[-c,-e,-f,0]])",
+            "pf([[0,a,b,c],[-a,0,d,e],[-b,-d,0,f],[-c,-e,-f,0]]) = a*f + b*e + c*d");
+        Assert.Equal([new EquivalentEntry(2, 1, false)], rows);
+        // [[0, a], [b, 0]] is not written skew: its compiled side carries the condition a + b = 0 as an output before the
+        // Pfaffian; the print is of the Pfaffian alone, the [1,2] entry a (the 2×2 Pfaffian, worked by hand).
+        Assert.NotEmpty(Some.Compiled("pf([[0,a],[b,0]]) = 0").Program.ConditionNames);
+        var print = PrintOf("pf([[0,a],[b,0]]) = a");
+        Assert.Equal(print.Left, print.Right);
+    }
+
+    [Fact]
     public void Binomials_written_with_binom_and_with_factorials_group()
     {
         // Pascal's formula C(x+1, 2) = C(x, 1) + C(x, 2) (any combinatorics text), with binom and written out; and
