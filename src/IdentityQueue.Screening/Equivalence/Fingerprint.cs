@@ -44,8 +44,9 @@ public readonly record struct Fingerprint(string Field, string Shape, UInt128 Le
     /// <summary>Points tried beyond <see cref="Points"/> per field when a side is undefined at some; then no fingerprint.</summary>
     public const int MaxSkipped = 3;
 
-    /// <summary>log2 of the number of 62-bit primes, from below: π(2^62) − π(2^61) ≈ 2^61/ln 2^62 ≈ 2^55.6 (prime number theorem).</summary>
-    private const double PrimesLog2 = 55.0;
+    /// <summary>log2 of the number of 62-bit primes, from below (Rosser–Schoenfeld, <see cref="Primality.PrimeCountInRangeLog2"/>); the
+    /// fingerprint primes are uniform among them (rejection sampling in <see cref="Primality.RandomPrime"/>).</summary>
+    private static readonly double PrimesLog2 = Primality.PrimeCountInRangeLog2(62);
 
     /// <summary>
     /// A log2 bound on the chance that two entries get the same unordered pair of side prints (and are grouped) although
@@ -59,8 +60,8 @@ public readonly record struct Fingerprint(string Field, string Shape, UInt128 Le
     /// independent (the hash modelled as random) and drawn without looking at the entries, so by the Schwartz–Zippel lemma
     /// N vanishes at all of them with chance ≤ (d/q)^K. Over Q, N mod p may vanish identically: p divides every
     /// coefficient, at most h/61 of the 62-bit primes when the coefficients have at most h bits
-    /// (<paramref name="heightBitsBound"/>), of about 2^55 such primes. The two fields are drawn independently, so the
-    /// chances multiply; a 128-bit digest collision adds 2^−128.
+    /// (<paramref name="heightBitsBound"/>), of at least 2^55 such primes (a proven count), the fingerprint primes uniform
+    /// among them. The two fields are drawn independently, so the chances multiply; a 128-bit digest collision adds 2^−128.
     /// </para>
     /// </summary>
     public double FalseMatchLog2(double degreeBound, double heightBitsBound = 0)
