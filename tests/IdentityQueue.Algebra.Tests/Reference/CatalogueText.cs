@@ -210,7 +210,8 @@ public static class CatalogueText
             BoundExpr s => s with { From = S(s.From), To = S(s.To), Body = s.Variable == name ? s.Body : S(s.Body) },
             MatrixComprehension m => m with
             {
-                RowFrom = S(m.RowFrom), RowTo = S(m.RowTo),
+                RowFrom = S(m.RowFrom),
+                RowTo = S(m.RowTo),
                 ColumnFrom = m.RowVariable == name ? m.ColumnFrom : S(m.ColumnFrom),
                 ColumnTo = m.RowVariable == name ? m.ColumnTo : S(m.ColumnTo),
                 Body = m.RowVariable == name || m.ColumnVariable == name ? m.Body : S(m.Body),
