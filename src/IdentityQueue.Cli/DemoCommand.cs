@@ -7,6 +7,9 @@ namespace IdentityQueue.Cli;
 /// <summary><c>idq demo</c>: a fresh store from <c>seeds-demo/</c>, screened, with a summary and example SQL.</summary>
 internal static class DemoCommand
 {
+    /// <summary>The demo store's file and its SQLite and queue companions, removed before a fresh demo.</summary>
+    private static readonly string[] StoreFileSuffixes = ["", "-wal", "-shm", ".queue", ".queue-wal", ".queue-shm"];
+
     internal static readonly (string Title, string Sql)[] Examples =
     [
         ("survivors by family (very likely true; evidence, not proof)",
@@ -33,7 +36,7 @@ internal static class DemoCommand
                 return ExitCodes.BadInput;
             }
             var path = parse.GetValue(db)!;
-            foreach (var suffix in new[] { "", "-wal", "-shm", ".queue", ".queue-wal", ".queue-shm" })
+            foreach (var suffix in StoreFileSuffixes)
                 if (File.Exists(path + suffix)) File.Delete(path + suffix);
             var files = CatalogueImporter.Extensions.SelectMany(e => Directory.GetFiles(folder, "*" + e)).OrderBy(f => f, StringComparer.Ordinal).ToList();
             output.WriteLine($"demo store {path} from {folder}: {files.Count} catalogues");

@@ -176,7 +176,7 @@ internal static class RunCommands
 
         var clock = Stopwatch.StartNew();
         using var stop = new StopSignals();
-        var final = interactive ? RunWithProgressBar(session, stop.Token, clock) : session.RunToCompletion(
+        var final = interactive ? RunWithProgressBar(session, clock, stop.Token) : session.RunToCompletion(
             c => output.WriteLine($"{clock.Elapsed:hh\\:mm\\:ss}  {Progress(c, clock, session)}"), TimeSpan.FromSeconds(10), stop.Token);
         output.WriteLine();
         output.WriteLine(stop.Stopping ? "stopped; the rest stays pending for the next run" : "done");
@@ -204,7 +204,7 @@ internal static class RunCommands
         return line;
     }
 
-    private static StateCounts RunWithProgressBar(WorkerSession session, CancellationToken cancellation, Stopwatch clock)
+    private static StateCounts RunWithProgressBar(WorkerSession session, Stopwatch clock, CancellationToken cancellation)
     {
         StateCounts final = null!;
         AnsiConsole.Progress()

@@ -45,7 +45,7 @@ internal sealed class StoreOptions
         return StoreLocation.Sqlite(string.IsNullOrEmpty(fromEnvironment) ? DefaultPath : fromEnvironment);
     }
 
-    /// <summary>Null, after writing the problem to <paramref name="error"/>, when both --db and --postgres are given.</summary>
+    /// <summary>The problem when both --db and --postgres are given, else null.</summary>
     public string? Conflict(ParseResult parse) =>
         parse.GetValue(Postgres) is { Length: > 0 } && parse.GetValue(Db) is { Length: > 0 } ? "give either --db or --postgres, not both" : null;
 

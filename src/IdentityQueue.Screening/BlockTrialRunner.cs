@@ -28,6 +28,11 @@ public static class BlockTrialRunner
     public static int MaxLanes(Rung rung) => rung.PrimeBits == 31 ? 16 : 8;
 
     /// <summary>Trials firstSeq, firstSeq + 1, … with the seeds <paramref name="seeds"/>, all on <paramref name="rung"/>.</summary>
+    /// <param name="identity">The candidate.</param>
+    /// <param name="program">Its program compiled for blocks.</param>
+    /// <param name="rung">The field size every trial of the block uses.</param>
+    /// <param name="firstSeq">The sequence number of the first trial.</param>
+    /// <param name="seeds">One seed per trial, which fixes its field and point.</param>
     /// <param name="cancellation">Observed inside the block's kernels; a cancelled block throws <see cref="OperationCanceledException"/> and records nothing.</param>
     public static TrialRecord[] Run(CompiledIdentity identity, BlockProgram program, Rung rung, int firstSeq, ReadOnlySpan<ulong> seeds,
         CancellationToken cancellation = default)

@@ -18,6 +18,8 @@ public static class Evidence
     public const double FloorLog2 = -4096;
 
     /// <summary>log2 of the per-trial bound, or null when the trial is worth nothing (bound ≥ 1/2).</summary>
+    /// <param name="bounds">The identity's degree and height bounds.</param>
+    /// <param name="fieldSizeLog2">log2 of the size of the trial's field.</param>
     /// <param name="primeBits">b for a trial over Q mod a random prime of b bits; null in characteristic p.</param>
     public static double? TrialBoundLog2(IdentityBounds bounds, double fieldSizeLog2, int? primeBits)
     {

@@ -57,7 +57,7 @@ public sealed record ScreeningPolicy
     /// <paramref name="stage"/>: in two passes, a first-stage candidate gets one (its cheap stage) and comes back later; else
     /// a candidate goes on to its final state.
     /// </summary>
-    public int? NewStagesFor(WorkStage stage, bool twoPass) => twoPass && stage == WorkStage.FirstTrial ? 1 : null;
+    public static int? NewStagesFor(WorkStage stage, bool twoPass) => twoPass && stage == WorkStage.FirstTrial ? 1 : null;
 }
 
 /// <summary>

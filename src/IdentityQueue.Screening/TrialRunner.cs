@@ -12,6 +12,10 @@ namespace IdentityQueue.Screening;
 /// </summary>
 public static class TrialRunner
 {
+    /// <param name="identity">The candidate.</param>
+    /// <param name="rung">The field size of the trial.</param>
+    /// <param name="seq">The trial's sequence number, recorded with it.</param>
+    /// <param name="pointSeed">Fixes the trial's field and point.</param>
     /// <param name="cancellation">Observed inside the evaluation (see <see cref="Evaluator.Evaluate{TField, T}(TField, StraightLineProgram, ReadOnlySpan{T}, ReadOnlySpan{T}, Span{T}, CancellationToken)"/>).</param>
     public static TrialRecord Run(CompiledIdentity identity, Rung rung, int seq, ulong pointSeed, CancellationToken cancellation = default)
     {

@@ -51,6 +51,9 @@ public static class WitnessChecker
     /// read as integers) is nonzero, when the estimated size of that evaluation fits <see cref="ScreeningPolicy.MaxCertifyBits"/>.
     /// In characteristic p the field arithmetic is already exact; the witness is confirmed by the independent re-check.
     /// </summary>
+    /// <param name="identity">The refuted candidate.</param>
+    /// <param name="witness">The trial that refuted it.</param>
+    /// <param name="policy">Gives the size limit of the exact evaluation.</param>
     /// <param name="cancellation">Observed inside the exact evaluation; a cancelled certification leaves the refutation uncertified (false).</param>
     public static bool Certify(CompiledIdentity identity, TrialRecord witness, ScreeningPolicy policy, CancellationToken cancellation = default)
     {

@@ -118,7 +118,7 @@ public sealed class ScreeningJob(IWorkSource source, IOutcomeSink sink, WorkerSe
                 Budget = settings.Budget,
                 Clock = clock,
                 Costs = settings.Costs,
-                MaxNewStages = settings.Policy.NewStagesFor(stage, settings.TwoPass),
+                MaxNewStages = ScreeningPolicy.NewStagesFor(stage, settings.TwoPass),
             };
             var estimate = work.Trials.Count == 0 ? Screener.Estimate(compiled.Value, options).OneTrial : TimeSpan.Zero;
             return new Prepared(work, null, compiled.Value, options, estimate);

@@ -36,6 +36,8 @@ public sealed record HostPlan(QueueStorage Queue, string LogPath, LogEventLevel 
 /// </summary>
 public static class WorkerHost
 {
+    /// <param name="settings">The worker's settings.</param>
+    /// <param name="plan">What the host runs.</param>
     /// <param name="addStore">
     /// Registers the store's implementations of the ports (<see cref="IWorkSource"/>, <see cref="IOutcomeSink"/>,
     /// <see cref="IWorkerRegistry"/>, <see cref="IRecovery"/>); the command line wires them.

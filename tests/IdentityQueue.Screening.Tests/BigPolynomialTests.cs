@@ -17,7 +17,7 @@ public sealed class BigPolynomialTests
 
     private static readonly Lazy<IReadOnlyList<Case>> Cases = new(Generate);
 
-    private static IReadOnlyList<Case> Generate()
+    private static List<Case> Generate()
     {
         var script = Path.Combine(AppContext.BaseDirectory, "fixtures", "make_big_polynomials.py");
         var output = Path.Combine(Path.GetTempPath(), $"idq-big-polynomials-{Environment.ProcessId}.jsonl");

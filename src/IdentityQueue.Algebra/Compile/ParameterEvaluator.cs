@@ -204,7 +204,7 @@ internal sealed class ParameterEvaluator(IReadOnlyDictionary<string, BigInteger>
                     return NumberFunctions.Multinomial(a.Select((e, i) => Integer(e, $"multinomial's argument {i + 1}")).ToArray(), limits);
             }
         }
-        catch (NumberFunctionError e)
+        catch (NumberFunctionException e)
         {
             throw new CompileError(node.Position, e.Message);
         }

@@ -158,6 +158,9 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
     /// <paramref name="defined"/>[l] is false where a division by zero made lane l undefined (its outputs are then
     /// meaningless). Returns the number of defined lanes.
     /// </summary>
+    /// <param name="points">The variables of every lane, variable-major.</param>
+    /// <param name="outputs">Receives the outputs of every lane, output-major.</param>
+    /// <param name="defined">Receives, per lane, whether the point was defined.</param>
     /// <param name="cancellation">
     /// Looked at before each matrix function and inside its kernel (a block's plain instructions take milliseconds even for
     /// the largest programs allowed); a cancelled evaluation throws <see cref="OperationCanceledException"/>.
@@ -177,7 +180,7 @@ public sealed class BlockEvaluator<TField, T> where TField : struct, IField<T> w
         if (Array.IndexOf(s.ConstantUndefined, false) < 0)
         {
             outputs[..(source.Outputs.Length * b)].Fill(s.Fields[0].Zero);
-            defined[..b].Fill(false);
+            defined[..b].Clear();
             return 0;
         }
         s.ConstantUndefined.CopyTo(s.Undefined, 0);

@@ -95,7 +95,7 @@ internal static class BlockFunctions
     /// <summary>
     /// Permanents on all lanes together: the sign patterns of Glynn's formula (odd characteristic) or the subsets of Ryser's
     /// formula, in Gray-code order, are the same for every lane, so each step updates the sums of every lane by one row or
-    /// column and multiplies them lane by lane (see <see cref="MatrixKernels.Permanent{TField, T}(TField, ReadOnlySpan{T}, int)"/>).
+    /// column and multiplies them lane by lane (see <see cref="MatrixKernels.Permanent{TField, T}(TField, ReadOnlySpan{T}, int, CancellationToken)"/>).
     /// The sign alternates along the Gray code, so the terms go to two accumulators.
     /// </summary>
     public static void Permanent<TField, T, TLanes>(BlockState<TField, T> s, TLanes lanes, BlockInstruction ins)

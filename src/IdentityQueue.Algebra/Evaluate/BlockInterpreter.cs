@@ -226,8 +226,8 @@ internal readonly struct KernelLanes<TField, T, TKernel, TLane, TModulus>(TModul
 }
 
 /// <summary>
-/// A block's values as the kernel's lanes: the same memory, no copy (<typeparamref name="TLane"/> is <typeparamref name="T"/>
-/// itself on the generic kernel, or the raw representatives of <typeparamref name="T"/>, one or a vector of them).
+/// A block's values as the kernel's lanes: the same memory, no copy (the lane type is the element type T itself on the
+/// generic kernel, or the raw representatives of T, one or a vector of them).
 /// </summary>
 internal static class LaneCast
 {

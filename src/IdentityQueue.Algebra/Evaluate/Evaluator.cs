@@ -42,6 +42,11 @@ public static class Evaluator
     /// Evaluates every register at <paramref name="point"/> (indexed like <see cref="StraightLineProgram.Variables"/>);
     /// false when a division by zero made the point undefined. <paramref name="registers"/> needs <see cref="StraightLineProgram.Length"/> slots.
     /// </summary>
+    /// <param name="field">The field the program is evaluated in.</param>
+    /// <param name="program">The program.</param>
+    /// <param name="constants">The program's constants in the field (see <see cref="TryPrepareConstants{TField, T}"/>).</param>
+    /// <param name="point">The variables' values.</param>
+    /// <param name="registers">Receives every register's value.</param>
     /// <param name="cancellation">
     /// Looked at every <see cref="CancellationInterval"/> instructions and inside the matrix kernels; a cancelled evaluation
     /// throws <see cref="OperationCanceledException"/>.

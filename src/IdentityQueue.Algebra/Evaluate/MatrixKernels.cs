@@ -36,6 +36,9 @@ public static class MatrixKernels
     /// <paramref name="a"/>. The last <see cref="DivisionFreeOrder"/> columns are eliminated division-free. On the 62-bit
     /// Montgomery rung, larger matrices are eliminated by panels with delayed reduction (see <see cref="MatrixKernels62.Determinant"/>).
     /// </summary>
+    /// <param name="f">The field.</param>
+    /// <param name="a">The n×n matrix, row-major. Overwritten.</param>
+    /// <param name="n">The order.</param>
     /// <param name="cancellation">Looked at once per pivot column; a cancelled elimination throws <see cref="OperationCanceledException"/>.</param>
     public static T Determinant<TField, T>(TField f, Span<T> a, int n, CancellationToken cancellation = default)
         where TField : struct, IField<T> where T : struct
@@ -129,6 +132,9 @@ public static class MatrixKernels
     /// overwriting <paramref name="a"/>. While at most <see cref="DivisionFreeOrder"/> rows remain, the complement is formed
     /// times a (no inversion): pf(a·S) = a^(m/2) pf(S) for S of order m, divided out once at the end.
     /// </summary>
+    /// <param name="f">The field.</param>
+    /// <param name="a">The n×n matrix, row-major. Overwritten.</param>
+    /// <param name="n">The order.</param>
     /// <param name="cancellation">Looked at once per eliminated pair of rows.</param>
     public static T Pfaffian<TField, T>(TField f, Span<T> a, int n, CancellationToken cancellation = default)
         where TField : struct, IField<T> where T : struct
@@ -215,6 +221,9 @@ public static class MatrixKernels
     /// column. No allocation for n ≤ 32 (larger orders are far beyond any time budget anyway). On the 62-bit rung with
     /// AVX-512, Glynn's sign patterns run 8 at a time in vector lanes (see <see cref="MatrixKernels62.GlynnAvx512"/>).
     /// </summary>
+    /// <param name="f">The field.</param>
+    /// <param name="a">The n×n matrix, row-major. Left unchanged.</param>
+    /// <param name="n">The order.</param>
     /// <param name="cancellation">Looked at every <see cref="CancellationInterval"/> Gray-code steps.</param>
     public static T Permanent<TField, T>(TField f, ReadOnlySpan<T> a, int n, CancellationToken cancellation = default)
         where TField : struct, IField<T> where T : struct
@@ -224,7 +233,7 @@ public static class MatrixKernels
         return Permanent(f, a, n, sums[..Math.Max(n, 0)], cancellation);
     }
 
-    /// <summary>As <see cref="Permanent{TField, T}(TField, ReadOnlySpan{T}, int)"/>, with the caller's scratch of at least n elements.</summary>
+    /// <summary>As <see cref="Permanent{TField, T}(TField, ReadOnlySpan{T}, int, CancellationToken)"/>, with the caller's scratch of at least n elements.</summary>
     public static T Permanent<TField, T>(TField f, ReadOnlySpan<T> a, int n, Span<T> scratch, CancellationToken cancellation = default)
         where TField : struct, IField<T> where T : struct
     {

@@ -6,7 +6,7 @@ namespace IdentityQueue.Algebra.Exact;
 /// Exact combinatorial numbers of integer arguments: Fibonacci and Lucas numbers, Stirling numbers of both kinds, harmonic
 /// and Bernoulli numbers, Catalan numbers and multinomial coefficients. Each checks its cost before doing the work: the
 /// steps against <see cref="Limits.MaxNumberFunctionWork"/> and the size of the value (estimated first where it is cheap to
-/// estimate) against <see cref="Limits.MaxParameterBits"/>. A problem is a <see cref="NumberFunctionError"/> whose message
+/// estimate) against <see cref="Limits.MaxParameterBits"/>. A problem is a <see cref="NumberFunctionException"/> whose message
 /// names the function and the limit. Stateless; thread-safe.
 /// </summary>
 public static class NumberFunctions
@@ -60,7 +60,7 @@ public static class NumberFunctions
 
     private static BigInteger Stirling(string name, BigInteger nValue, BigInteger kValue, Limits limits, bool firstKind)
     {
-        if (nValue.Sign < 0) throw new NumberFunctionError($"{name}'s first argument must be non-negative, but it is {nValue}");
+        if (nValue.Sign < 0) throw new NumberFunctionException($"{name}'s first argument must be non-negative, but it is {nValue}");
         if (kValue.Sign < 0 || kValue > nValue) return BigInteger.Zero;
         if (kValue.IsZero) return nValue.IsZero ? BigInteger.One : BigInteger.Zero;
         if (kValue == nValue) return BigInteger.One; // [n, n] = {n, n} = 1
@@ -97,7 +97,7 @@ public static class NumberFunctions
     /// <summary>H(n) = 1 + 1/2 + … + 1/n, and H(0) = 0; n must be non-negative.</summary>
     public static Rational Harmonic(BigInteger n, Limits limits)
     {
-        if (n.Sign < 0) throw new NumberFunctionError($"harmonic's argument must be non-negative, but it is {n}");
+        if (n.Sign < 0) throw new NumberFunctionException($"harmonic's argument must be non-negative, but it is {n}");
         CheckWork("harmonic", n, limits);
         // Σ 1/i = p/q with q = lcm(1..i) (about 1.44·i bits) and p < q·(1 + ln i).
         BigInteger p = 0, q = 1;
@@ -118,7 +118,7 @@ public static class NumberFunctions
     /// </summary>
     public static Rational Bernoulli(BigInteger nValue, Limits limits)
     {
-        if (nValue.Sign < 0) throw new NumberFunctionError($"bernoulli's argument must be non-negative, but it is {nValue}");
+        if (nValue.Sign < 0) throw new NumberFunctionException($"bernoulli's argument must be non-negative, but it is {nValue}");
         if (nValue.IsZero) return Rational.One;
         if (nValue.IsOne) return Rational.Create(-1, 2);
         if (!nValue.IsEven) return Rational.Zero;
@@ -142,7 +142,7 @@ public static class NumberFunctions
     /// <summary>C(n) = binom(2n, n)/(n + 1); n must be non-negative.</summary>
     public static BigInteger Catalan(BigInteger n, Limits limits)
     {
-        if (n.Sign < 0) throw new NumberFunctionError($"catalan's argument must be non-negative, but it is {n}");
+        if (n.Sign < 0) throw new NumberFunctionException($"catalan's argument must be non-negative, but it is {n}");
         CheckWork("catalan", n, limits);
         var c = BigInteger.One; // C(i+1) = C(i)·2(2i+1)/(i+2), an integer at every step and increasing from i = 1
         for (var i = 0; i < (int)n; i++)
@@ -179,18 +179,18 @@ public static class NumberFunctions
     private static void CheckWork(string name, BigInteger steps, Limits limits)
     {
         if (steps > limits.MaxNumberFunctionWork)
-            throw new NumberFunctionError($"{name} would take {steps} steps here; the limit MaxNumberFunctionWork is {limits.MaxNumberFunctionWork}");
+            throw new NumberFunctionException($"{name} would take {steps} steps here; the limit MaxNumberFunctionWork is {limits.MaxNumberFunctionWork}");
     }
 
     private static void CheckBits(string name, BigInteger argument, double bits, Limits limits, double slack = 0)
     {
         if (bits > limits.MaxParameterBits + slack)
-            throw new NumberFunctionError($"{name}({argument}) has more than {limits.MaxParameterBits} bits (the limit MaxParameterBits)");
+            throw new NumberFunctionException($"{name}({argument}) has more than {limits.MaxParameterBits} bits (the limit MaxParameterBits)");
     }
 
-    private static NumberFunctionError TooLarge(string name, Limits limits) =>
+    private static NumberFunctionException TooLarge(string name, Limits limits) =>
         new($"{name}'s value has more than {limits.MaxParameterBits} bits (the limit MaxParameterBits)");
 }
 
 /// <summary>A number function refused its arguments or a limit; the caller adds the position.</summary>
-public sealed class NumberFunctionError(string message) : Exception(message);
+public sealed class NumberFunctionException(string message) : Exception(message);

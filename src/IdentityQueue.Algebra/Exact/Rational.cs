@@ -13,9 +13,9 @@ public readonly struct Rational : IEquatable<Rational>, IComparable<Rational>
     public static readonly Rational Zero = new(BigInteger.Zero);
     public static readonly Rational One = new(BigInteger.One);
 
-    public Rational(BigInteger integer)
+    public Rational(BigInteger value)
     {
-        Numerator = integer;
+        Numerator = value;
         _denominatorMinusOne = BigInteger.Zero;
     }
 

@@ -13,7 +13,7 @@ public enum ElementLayout
 
 /// <summary>
 /// Names a field type's <see cref="ElementLayout"/> as a static member, so that generic code picks a kernel for raw
-/// representatives once, from the type parameter, without testing types. <see cref="Generic"/> unless a field says otherwise.
+/// representatives once, from the type parameter, without testing types. <see cref="ElementLayout.Generic"/> unless a field says otherwise.
 /// </summary>
 public interface IElementLayout
 {

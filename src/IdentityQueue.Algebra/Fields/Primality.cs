@@ -114,7 +114,7 @@ public static class Primality
     /// <summary>A uniformly random prime in [2^(bits-1), 2^bits): uniform over the primes of that range.</summary>
     public static BigInteger RandomPrime(int bits, ref Xoshiro256 random)
     {
-        if (bits < 3) throw new ArgumentOutOfRangeException(nameof(bits));
+        ArgumentOutOfRangeException.ThrowIfLessThan(bits, 3);
         if (bits <= 63)
         {
             // The same draws as below (NextBelow of a 64-bit bound is the 64-bit draw), without BigInteger arithmetic.
@@ -140,7 +140,7 @@ public static class Primality
     /// </summary>
     public static double PrimeCountInRangeLog2(int bits)
     {
-        if (bits < 8) throw new ArgumentOutOfRangeException(nameof(bits));
+        ArgumentOutOfRangeException.ThrowIfLessThan(bits, 8);
         // count ≥ 2^b/(b ln 2) − 1.25506·2^(b−1)/((b−1) ln 2) = 2^(b−1)/ln 2 · (2/b − 1.25506/(b−1))
         var factor = (2.0 / bits - 1.25506 / (bits - 1)) / Math.Log(2);
         return bits - 1 + Math.Log2(factor) - 1e-9;

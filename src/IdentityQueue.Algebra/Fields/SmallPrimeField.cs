@@ -99,6 +99,7 @@ public readonly struct SmallPrimeField : IField<SmallResidue>
     public SmallResidue FromUInt64(ulong v) => new(v % _p);
 
     /// <summary>The standard representative in [0, p).</summary>
+    [System.Diagnostics.CodeAnalysis.SuppressMessage("Performance", "CA1822", Justification = "A field operation, called on the field like PrimeField62.ToUInt64, which needs its instance.")]
     public ulong ToUInt64(SmallResidue a) => a.Value;
 
     public SmallResidue FromInteger(BigInteger value) => new((ulong)ModularHelpers.Reduce(value, _p));

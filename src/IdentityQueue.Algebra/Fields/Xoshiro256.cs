@@ -58,7 +58,7 @@ public struct Xoshiro256
     /// <summary>Uniform in [0, bound) by rejection (no modulo bias); bound must be positive.</summary>
     public ulong NextBelow(ulong bound)
     {
-        if (bound == 0) throw new ArgumentOutOfRangeException(nameof(bound));
+        ArgumentOutOfRangeException.ThrowIfZero(bound);
         var threshold = unchecked((0 - bound) % bound);
         while (true)
         {

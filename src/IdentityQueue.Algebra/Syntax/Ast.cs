@@ -6,7 +6,7 @@ namespace IdentityQueue.Algebra.Syntax;
 public readonly record struct SourcePosition(int Line, int Column)
 {
     /// <summary>No place in a text (line 0): a problem with an option value or a whole file.</summary>
-    public static readonly SourcePosition None = default;
+    public static readonly SourcePosition None;
 
     public bool IsNone => Line == 0;
 

@@ -29,7 +29,7 @@ public sealed record FieldSpec
     /// <summary>k for GF(p^k); 1 for Q.</summary>
     public int Degree { get; }
 
-    /// <summary>GF(p^k): fails unless p is a prime (<see cref="Fields.Primality.IsPrime"/>) and k ≥ 1.</summary>
+    /// <summary>GF(p^k): fails unless p is a prime (<see cref="Fields.Primality.IsPrime(System.Numerics.BigInteger)"/>) and k ≥ 1.</summary>
     public static Result<FieldSpec> Finite(BigInteger p, int k = 1)
     {
         if (k < 1) return Result<FieldSpec>.Fail($"GF({p}^{k}) needs an exponent of at least 1");

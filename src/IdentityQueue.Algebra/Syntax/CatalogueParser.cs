@@ -2,7 +2,7 @@ namespace IdentityQueue.Algebra.Syntax;
 
 /// <summary>
 /// Parses catalogue text (SPEC §3): <c>[label:] LHS = RHS [over FIELD] [for NAME in A..B {, NAME in A..B}]</c>.
-/// Stateless and thread-safe. Bad input never throws: it gives a failed <see cref="ParseResult{T}"/> whose
+/// Stateless and thread-safe. Bad input never throws: it gives a failed <see cref="Result{T}"/> whose
 /// <see cref="Diagnostic"/> has a 1-based line and column (columns count the chars of the given text) and a message
 /// from <see cref="SyntaxMessages"/>. The limits of <see cref="Limits"/> are checked before the work they bound:
 /// a line longer than <see cref="Limits.MaxLineLength"/> is refused before it is read, and nesting deeper than

@@ -240,8 +240,13 @@ internal static class DefinitionExpander
             var (variables, body) = Bind([node.RowVariable, node.ColumnVariable], node.Body);
             return node with
             {
-                RowFrom = rowFrom, RowTo = rowTo, ColumnFrom = columnFrom, ColumnTo = columnTo,
-                RowVariable = variables[0], ColumnVariable = variables[1], Body = body,
+                RowFrom = rowFrom,
+                RowTo = rowTo,
+                ColumnFrom = columnFrom,
+                ColumnTo = columnTo,
+                RowVariable = variables[0],
+                ColumnVariable = variables[1],
+                Body = body,
             };
         }
 

@@ -159,7 +159,7 @@ internal sealed class ExpressionParser
         if (!ParseList(TokenKind.RightBracket, "the entry's index list", depth, indices, out var indexHeight,
                 static (after, found) => SyntaxMessages.ExpectedIndex(after, found), allowEmpty: false))
             return null;
-        if (indices.Count != 2) return _c.Fail<Expr>(start, SyntaxMessages.WrongArity("an entry [i, j] of a matrix", 2, indices.Count) .Replace("takes", "needs").Replace("argument", "index"));
+        if (indices.Count != 2) return _c.Fail<Expr>(start, SyntaxMessages.WrongArity("an entry [i, j] of a matrix", 2, indices.Count).Replace("takes", "needs").Replace("argument", "index"));
         height = Math.Max(height, indexHeight) + 1;
         if (height > _maxDepth) return _c.Fail<Expr>(start, SyntaxMessages.NestingTooDeep(_maxDepth));
         return new CallExpr(Builtins.Entry, [primary, indices[0], indices[1]], primary.Position);

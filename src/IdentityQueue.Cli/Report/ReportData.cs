@@ -189,6 +189,6 @@ internal sealed class ReportData
         return Limit([.. formatted.Select(f => $"({f})")], max);
     }
 
-    private static string Limit(IReadOnlyList<string> items, int max) =>
+    private static string Limit(List<string> items, int max) =>
         items.Count <= max ? string.Join(", ", items) : string.Join(", ", items.Take(max)) + $", … ({items.Count - max} more)";
 }

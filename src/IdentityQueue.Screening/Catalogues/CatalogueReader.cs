@@ -67,6 +67,7 @@ public sealed class CatalogueReader
     private readonly Limits _limits;
     private readonly Dictionary<string, int> _labels = new(StringComparer.Ordinal); // a label given in the file → the line it is on
 
+    /// <param name="limits">The limits every line is checked against.</param>
     /// <param name="path">The file's name decides the format (by extension) and the labels of unlabelled entries (<c>FILE:LINE</c>).</param>
     public CatalogueReader(string path, Limits limits)
     {

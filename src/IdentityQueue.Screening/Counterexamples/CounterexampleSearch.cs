@@ -29,9 +29,11 @@ public static class CounterexampleSearch
     /// The least counterexample found within <paramref name="budget"/>, or null when none was found (or the identity is a
     /// power series identity, or every point is undefined in its field).
     /// </summary>
-    /// <param name="cancellation">Observed inside each evaluation; a cancelled search throws <see cref="OperationCanceledException"/>.</param>
+    /// <param name="compiled">The identity whose difference is searched for a nonzero integer point.</param>
+    /// <param name="budget">Caps the points tried and the work spent.</param>
     /// <param name="seed">Seeds the random lines (the exhaustive stage does not depend on it).</param>
-    public static Counterexample? Find(CompiledIdentity compiled, CounterexampleBudget budget, CancellationToken cancellation = default, ulong seed = 0)
+    /// <param name="cancellation">Observed inside each evaluation; a cancelled search throws <see cref="OperationCanceledException"/>.</param>
+    public static Counterexample? Find(CompiledIdentity compiled, CounterexampleBudget budget, ulong seed = 0, CancellationToken cancellation = default)
     {
         ArgumentNullException.ThrowIfNull(compiled);
         ArgumentNullException.ThrowIfNull(budget);
@@ -42,14 +44,14 @@ public static class CounterexampleSearch
         {
             var q = new PointEvaluator<RationalField, Rational>(default, program, v => new Rational(v), v => v.ToString(),
                 maxAbs => BoundAnalysis.ExactEvaluationBits(program, Math.Max(1, Math.Log2(maxAbs + 1.0)), budget.MaxPointBits * 2));
-            return q.Ready ? new Search(q, program, budget, long.MaxValue, null, cancellation, seed).Run() : null;
+            return q.Ready ? new Search(q, program, budget, long.MaxValue, null, seed, cancellation).Run() : null;
         }
         var p = compiled.Field.Characteristic;
         var field = BigPrimeField.Create(p);
         var perPoint = (double)program.Length * Math.Max(1, (double)p.GetBitLength());
         var fp = new PointEvaluator<BigPrimeField, BigResidue>(field, program, v => field.FromInteger(v), v => v.Value.ToString(), _ => perPoint);
         var maxShell = p / 2 > long.MaxValue ? long.MaxValue : (long)(p / 2);
-        return fp.Ready ? new Search(fp, program, budget, maxShell, p, cancellation, seed).Run() : null;
+        return fp.Ready ? new Search(fp, program, budget, maxShell, p, seed, cancellation).Run() : null;
     }
 
     /// <summary>The position of <paramref name="v"/> in the order 0, 1, −1, 2, −2, ….</summary>
@@ -139,7 +141,7 @@ public static class CounterexampleSearch
 
     /// <summary>One search: the state shared by its stages.</summary>
     private sealed class Search(IPointEvaluator evaluator, StraightLineProgram program, CounterexampleBudget budget, long maxShell, BigInteger? modulus,
-        CancellationToken cancellation, ulong seed)
+        ulong seed, CancellationToken cancellation)
     {
         private readonly int _n = program.Variables.Length;
         private int _tried;

@@ -35,6 +35,9 @@ public static class DifferenceRecovery
     /// gives a reason, when no entry was nonzero at two random points (the candidate is not refuted), or when a constant's
     /// denominator vanishes in the field.
     /// </summary>
+    /// <param name="compiled">The refuted identity.</param>
+    /// <param name="budget">Caps the terms, degree and evaluations of the recovery.</param>
+    /// <param name="seed">Seeds the field, the anchors and the check points.</param>
     /// <param name="cancellation">Observed between evaluations and inside them; a cancelled recovery throws <see cref="OperationCanceledException"/>.</param>
     public static RecoveredDifference? Recover(CompiledIdentity compiled, DifferenceBudget budget, ulong seed, CancellationToken cancellation = default)
     {

@@ -25,7 +25,7 @@ public sealed record RefutationDetails(Counterexample? Counterexample, Recovered
         RecoveredDifference? difference = null;
         try
         {
-            counterexample = CounterexampleSearch.Find(compiled, policy.CounterexampleBudget, linked.Token, seed);
+            counterexample = CounterexampleSearch.Find(compiled, policy.CounterexampleBudget, seed, linked.Token);
             difference = DifferenceRecovery.Recover(compiled, policy.DifferenceBudget, seed, linked.Token);
         }
         catch (OperationCanceledException) when (!cancellation.IsCancellationRequested)

@@ -27,8 +27,16 @@ internal sealed record Interpolated<T>(IReadOnlyList<Term<T>>? Terms, Interpolat
 /// Probabilistic (a random anchor may hide a term, a stop after <c>earlyTermination</c> agreeing values may be early): the
 /// caller verifies the result at fresh points. Not thread-safe (holds its random state).
 /// </summary>
+/// <param name="field">The field of the black box.</param>
+/// <param name="variables">The number of variables.</param>
+/// <param name="blackBox">The polynomial's value at a point.</param>
+/// <param name="maxTerms">The most terms a result may have.</param>
 /// <param name="maxDegree">The degree cap of every univariate image.</param>
 /// <param name="degreeIsBound">True when <paramref name="maxDegree"/> is a proven bound (then maxDegree + 1 values are exact).</param>
+/// <param name="earlyTermination">How many agreeing values in a row end a univariate interpolation early.</param>
+/// <param name="maxEvaluations">The most black-box evaluations allowed.</param>
+/// <param name="seed">Seeds the anchors and values.</param>
+/// <param name="cancellation">Observed between evaluations; a cancelled interpolation throws <see cref="OperationCanceledException"/>.</param>
 internal sealed class SparseInterpolation<TField, T>(TField field, int variables, Func<T[], T> blackBox, int maxTerms, int maxDegree, bool degreeIsBound,
     int earlyTermination, long maxEvaluations, ulong seed, CancellationToken cancellation)
     where TField : struct, IField<T> where T : struct

@@ -25,9 +25,16 @@ public sealed record Rejection(string Source, int Line, string Raw, string Reaso
 }
 
 /// <summary>What an import stored. Immutable.</summary>
+/// <param name="CatalogueId">The catalogue's row id.</param>
+/// <param name="Catalogue">The catalogue's name.</param>
+/// <param name="Source">The file read.</param>
+/// <param name="Seed">The catalogue's seed, from which every trial seed derives.</param>
 /// <param name="Entries">Lines that gave an identity or a family.</param>
 /// <param name="Instances">Candidates stored (one per family instance).</param>
 /// <param name="Lines">Physical lines read.</param>
+/// <param name="Rejections">Lines rejected.</param>
+/// <param name="FirstRejections">The first rejections, for the summary.</param>
+/// <param name="Elapsed">How long the import took.</param>
 public sealed record ImportSummary(
     long CatalogueId,
     string Catalogue,

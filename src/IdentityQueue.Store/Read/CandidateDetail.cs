@@ -6,6 +6,13 @@ using IdentityQueue.Store.Work;
 namespace IdentityQueue.Store.Read;
 
 /// <summary>A candidate's <c>result</c> row as <c>idq show</c> gives it. Immutable.</summary>
+/// <param name="State">The result's state.</param>
+/// <param name="HeightBoundLog2">log2 of the height bound, when known.</param>
+/// <param name="TrialsZero">Trials that evaluated to zero.</param>
+/// <param name="ErrorBoundLog2">log2 of the bound on the chance that a false identity survived them.</param>
+/// <param name="WitnessTrialId">The refuting trial, if any.</param>
+/// <param name="Certified">Whether the refutation was confirmed exactly.</param>
+/// <param name="Message">Why screening stopped, when it says.</param>
 /// <param name="DegreeBound">Decimal text: a degree bound may exceed 64 bits.</param>
 /// <param name="UpdatedAt">UTC, 'YYYY-MM-DD HH:MM:SS', the same from both stores.</param>
 public sealed record ResultDetail(

@@ -28,6 +28,8 @@ public sealed class StoreRetry
     /// <param name="retryFor">How long to keep trying.</param>
     /// <param name="display">The store, as the log names it.</param>
     /// <param name="beforeRetry">Runs before each new attempt (dropping pooled connections that died with the server).</param>
+    /// <param name="log">Where the outage and the reconnection are logged; none when null.</param>
+    /// <param name="clock">The clock of the retry deadline; the system clock when null.</param>
     public StoreRetry(Func<Exception, bool> isTransient, TimeSpan retryFor, string display, Action? beforeRetry, ILogger? log, TimeProvider? clock)
     {
         _isTransient = isTransient;

@@ -48,6 +48,7 @@ public sealed record StoredCandidate(
     /// ranges: the parameters are already fixed) and the parameter values to compile it with, or why that failed.
     /// Each side is parsed on its own, so a hand-written side cannot smuggle in a label, an 'over' or a second '='.
     /// </summary>
+    /// <param name="limits">The limits the stored text is parsed under; the defaults when null.</param>
     /// <param name="sides">
     /// Parsed sides shared by several calls (one claim of a chunk): the instances of a family store the same sides and
     /// differ in their parameters only, so the sides are parsed once per family and chunk.

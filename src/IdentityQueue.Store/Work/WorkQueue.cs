@@ -11,6 +11,7 @@ public sealed record ClaimedCandidate(StoredCandidate Candidate, IReadOnlyList<S
 /// The queue side of the worker's store: taking pending work by stage (stages are Screening's), claims and recovery. Like <see cref="CandidateStore"/> it uses the connection it is given and is
 /// not thread-safe.
 /// </summary>
+[System.Diagnostics.CodeAnalysis.SuppressMessage("Naming", "CA1711", Justification = "The store's queue of work (its pending and queued rows), not a collection type; DEVELOPERS.md uses the name.")]
 public sealed class WorkQueue(StoreConnection store)
 {
     private readonly StoreConnection _store = store;
@@ -46,7 +47,7 @@ public sealed class WorkQueue(StoreConnection store)
     /// candidates being screened by a worker whose heartbeat is older than <paramref name="deadAfter"/> (or that has no
     /// worker row) go back to pending once their claim is older than <paramref name="deadAfter"/> too; and candidates
     /// queued longer than <paramref name="queuedStaleAfter"/> go back to pending (a safety net: planners enqueue the jobs
-    /// before the queued rows commit, see <see cref="TakePending"/>). A live worker's work is never touched. Work returned here while its
+    /// before the queued rows commit, see <see cref="TakePending(int, Action{WorkStage, IReadOnlyList{long}}?)"/>). A live worker's work is never touched. Work returned here while its
     /// queue job still exists is screened twice at worst, which the idempotent saves make harmless. Returns the
     /// candidates returned.
     /// </summary>
@@ -99,7 +100,7 @@ public sealed class WorkQueue(StoreConnection store)
     }
 
     /// <summary>
-    /// Takes up to <paramref name="max"/> pending candidates of the earliest of <paramref name="stages"/> that has any and
+    /// Takes up to <paramref name="max"/> pending candidates of the earliest of the policy's stages that has any and
     /// marks them queued, in one transaction. A stage is Screening's (<see cref="WorkStage"/>): a range of the stored count
     /// of zero trials (<c>result.trials_zero</c>), which this method only selects by. Returns the stage and the ids, lowest
     /// first; no ids when nothing is pending. <paramref name="beforeCommit"/> runs with the rows taken but not yet committed

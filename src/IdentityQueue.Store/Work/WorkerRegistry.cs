@@ -3,6 +3,15 @@ using System.Data.Common;
 namespace IdentityQueue.Store.Work;
 
 /// <summary>A worker process as <c>idq status</c> shows it.</summary>
+/// <param name="Name">The worker's name.</param>
+/// <param name="Host">The machine it runs on.</param>
+/// <param name="Pid">Its process id.</param>
+/// <param name="Threads">Its screening threads.</param>
+/// <param name="StartedAt">UTC, when it started.</param>
+/// <param name="HeartbeatAt">UTC, its last heartbeat.</param>
+/// <param name="ChunksDone">Chunks it finished.</param>
+/// <param name="CandidatesDone">Candidates it finished.</param>
+/// <param name="Live">Whether its heartbeat is recent.</param>
 /// <param name="CurrentCandidateId">The candidate it has been on the longest (as of its last heartbeat), null when idle.</param>
 /// <param name="CurrentLabel">That candidate's label.</param>
 /// <param name="CurrentSince">Since when it is on that candidate.</param>

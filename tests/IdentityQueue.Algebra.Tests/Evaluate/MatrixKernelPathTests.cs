@@ -12,7 +12,7 @@ namespace IdentityQueue.Algebra.Tests.Evaluate;
 public class MatrixKernelPathTests
 {
     /// <summary>Random matrices of a few kinds: dense, zero diagonal (every pivot needs a swap), a zero column or a repeated row (singular), values near p.</summary>
-    private static IEnumerable<(T[] Matrix, string Kind)> Matrices<TField, T>(TField f, int n, ref Xoshiro256 random)
+    private static List<(T[] Matrix, string Kind)> Matrices<TField, T>(TField f, int n, ref Xoshiro256 random)
         where TField : struct, IField<T> where T : struct
     {
         var result = new List<(T[], string)>();

@@ -174,7 +174,8 @@ public class PrimalityTests
         // (Jiang and Deng, Math. Comp. 83 (2014) [memory]); the product and the rounds are computed here.
         const ulong spsp = 3825123056546413051UL;
         Assert.Equal(spsp, 149491UL * 747451UL * 34233211UL);
-        Assert.All(new[] { 2, 3, 5, 7, 11, 13, 17, 19, 23 }, a => Assert.True(IsStrongProbablePrime(spsp, a)));
+        int[] witnesses = [2, 3, 5, 7, 11, 13, 17, 19, 23];
+        Assert.All(witnesses, a => Assert.True(IsStrongProbablePrime(spsp, a)));
         Assert.False(Primality.IsPrime(spsp));
         Assert.True(Primality.IsPrime(ulong.MaxValue - 58)); // 2^64 − 59, see above
     }

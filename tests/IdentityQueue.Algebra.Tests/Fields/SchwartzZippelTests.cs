@@ -25,7 +25,7 @@ public class SchwartzZippelTests
 
         public static int Pow(int b, int e) => e == 0 ? 1 : b * Pow(b, e - 1);
 
-        public int Exponent(int index, int variable) => index / Pow(MaxDegree + 1, variable) % (MaxDegree + 1);
+        public static int Exponent(int index, int variable) => index / Pow(MaxDegree + 1, variable) % (MaxDegree + 1);
 
         public int TotalDegreeOfMonomial(int index)
         {
@@ -71,7 +71,7 @@ public class SchwartzZippelTests
                     var index = 0;
                     for (var v = 0; v < Variables; v++)
                     {
-                        var e = Exponent(i, v) + other.Exponent(j, v);
+                        var e = Exponent(i, v) + Exponent(j, v);
                         Assert.True(e <= MaxDegree);
                         index += e * Pow(MaxDegree + 1, v);
                     }

@@ -239,7 +239,7 @@ public sealed class ReferencePolynomial : IEquatable<ReferencePolynomial>
     /// </summary>
     public ReferencePolynomial ReduceModulo(BigInteger p)
     {
-        if (p < 2) throw new ArgumentOutOfRangeException(nameof(p));
+        ArgumentOutOfRangeException.ThrowIfLessThan(p, 2);
         var result = new Dictionary<Monomial, Rational>();
         foreach (var (m, c) in _terms)
         {

@@ -77,7 +77,7 @@ public sealed class ReportBrowserTests : IDisposable
             var tr = Regex.Match(table, $"<tr data-key=\"{Regex.Escape((string)row[0]!)}\">(.*?)</tr>", RegexOptions.Singleline).Groups[1].Value;
             Assert.Contains($"data-state=\"{row[1]}\" data-count=\"{L(row[2])}\"", tr);
         }
-        Assert.Equal(L(Sql("SELECT count(*) FROM catalogue").Single()[0]), Regex.Matches(table, "<tr data-key=").Count);
+        Assert.Equal(L(Sql("SELECT count(*) FROM catalogue").Single()[0]), Regex.Count(table, "<tr data-key="));
 
         // refutations by stage, survivors' bounds and time per candidate: every candidate counted once
         Assert.Equal(L(Sql("SELECT count(*) FROM result WHERE state = 'refuted' AND witness_trial_id IS NOT NULL").Single()[0]), Marks(dom, "stages").Sum(m => m.Value));
@@ -91,19 +91,19 @@ public sealed class ReportBrowserTests : IDisposable
         // families: one row per row of the view, with its refuted count and one strip square per instance
         var families = Table(dom, "families");
         var view = Sql("SELECT catalogue, family, instances, refuted FROM families");
-        Assert.Equal(view.Count, Regex.Matches(families, "<tr data-key=").Count);
+        Assert.Equal(view.Count, Regex.Count(families, "<tr data-key="));
         foreach (var f in view)
         {
             var key = Regex.Escape(WebUtility.HtmlEncode($"{f[0]}/{f[1]}"));
             var tr = Regex.Match(families, $"<tr data-key=\"{key}\" data-instances=\"{L(f[2])}\" data-refuted=\"{L(f[3])}\"[^>]*>(.*?)</tr>", RegexOptions.Singleline);
             Assert.True(tr.Success, $"family {f[1]}");
-            Assert.Equal(L(f[2]), Regex.Matches(tr.Groups[1].Value, "<rect class=\"mark\" data-chart=\"family\"").Count);
-            Assert.Equal(L(f[3]), Regex.Matches(tr.Groups[1].Value, "<rect class=\"mark\" data-chart=\"family\" data-state=\"refuted\"").Count);
+            Assert.Equal(L(f[2]), Regex.Count(tr.Groups[1].Value, "<rect class=\"mark\" data-chart=\"family\""));
+            Assert.Equal(L(f[3]), Regex.Count(tr.Groups[1].Value, "<rect class=\"mark\" data-chart=\"family\" data-state=\"refuted\""));
         }
 
         // rejections, including the hand-inserted one, whose markup stayed text
         var rejections = Table(dom, "rejections");
-        Assert.Equal(L(Sql("SELECT count(*) FROM rejection").Single()[0]), Regex.Matches(rejections, "<tr data-key=").Count);
+        Assert.Equal(L(Sql("SELECT count(*) FROM rejection").Single()[0]), Regex.Count(rejections, "<tr data-key="));
         Assert.Contains(WebUtility.HtmlEncode(HostileRaw), rejections);
         Assert.DoesNotContain("<img", dom);
         Assert.DoesNotContain("<b>bold", dom);

@@ -83,8 +83,8 @@ public class SvgChartsTests
     {
         var cells = Enumerable.Range(1, 25).Select(n => new StripCell($"n={n}", n % 5 == 0 ? "refuted" : "survived")).ToList();
         var svg = SvgCharts.Strip("f", "family", cells, perRow: 10);
-        Assert.Equal(25, Regex.Matches(svg, "class=\"mark\"").Count);
-        Assert.Equal(5, Regex.Matches(svg, $"data-state=\"refuted\" [^>]*fill=\"{SvgCharts.ColorOf("refuted")}\"").Count);
+        Assert.Equal(25, Regex.Count(svg, "class=\"mark\""));
+        Assert.Equal(5, Regex.Count(svg, $"data-state=\"refuted\" [^>]*fill=\"{SvgCharts.ColorOf("refuted")}\""));
         Assert.Contains("width=\"120\" height=\"36\"", svg); // 10 columns and 3 rows of 10 + 2 pixels
     }
 }

@@ -116,7 +116,7 @@ public sealed class CounterexampleSearchTests
         using var cancelled = new CancellationTokenSource();
         cancelled.Cancel();
         Assert.ThrowsAny<OperationCanceledException>(() =>
-            CounterexampleSearch.Find(Some.Compiled("x = x + 1"), CounterexampleBudget.Default, cancelled.Token));
+            CounterexampleSearch.Find(Some.Compiled("x = x + 1"), CounterexampleBudget.Default, cancellation: cancelled.Token));
     }
 
     [Fact]

@@ -232,7 +232,7 @@ public sealed class DifferenceRecoveryTests
 
     private sealed record FixtureCase(string Lhs, string Rhs, string Over, string[] Variables, FixtureTerm[] Terms, int Degree);
 
-    private static IReadOnlyList<FixtureCase> Generate()
+    private static List<FixtureCase> Generate()
     {
         var script = Path.Combine(AppContext.BaseDirectory, "fixtures", "make_difference_fixture.py");
         var output = Path.Combine(Path.GetTempPath(), $"idq-differences-{Environment.ProcessId}.jsonl");

@@ -1,8 +1,8 @@
-using IdentityQueue.Screening.Catalogues;
 using System.Text;
 using IdentityQueue.Algebra;
 using IdentityQueue.Algebra.Compile;
 using IdentityQueue.Algebra.Syntax;
+using IdentityQueue.Screening.Catalogues;
 using IdentityQueue.Store.Import;
 
 namespace IdentityQueue.Store.Tests.Import;

@@ -1,5 +1,5 @@
-using IdentityQueue.Screening.Catalogues;
 using System.Text;
+using IdentityQueue.Screening.Catalogues;
 using IdentityQueue.Store.Import;
 
 namespace IdentityQueue.Store.Tests.Import;

@@ -1,5 +1,5 @@
-using Microsoft.EntityFrameworkCore.Infrastructure;
 using Microsoft.EntityFrameworkCore;
+using Microsoft.EntityFrameworkCore.Infrastructure;
 namespace IdentityQueue.Store.Tests.Schema;
 
 public sealed class MigrationTests

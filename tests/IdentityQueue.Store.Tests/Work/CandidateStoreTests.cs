@@ -1,6 +1,6 @@
 using System.Numerics;
-using IdentityQueue.Screening.Ports;
 using IdentityQueue.Screening;
+using IdentityQueue.Screening.Ports;
 using IdentityQueue.Store.Work;
 
 namespace IdentityQueue.Store.Tests.Work;

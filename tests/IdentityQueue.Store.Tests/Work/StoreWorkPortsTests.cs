@@ -24,7 +24,8 @@ public sealed class StoreWorkPortsTests
         var family = claimed.Where(c => c.Label!.StartsWith("squares", StringComparison.Ordinal)).ToList();
         Assert.Equal(4, family.Count);
         Assert.All(family, c => Assert.Same(family[0].Entry!.Left, c.Entry!.Left));
-        Assert.Equal(new[] { "0", "1", "2", "3" }, family.Select(c => c.Parameters["n"].ToString()));
+        string[] parameters = ["0", "1", "2", "3"];
+        Assert.Equal(parameters, family.Select(c => c.Parameters["n"].ToString()));
         Assert.Equal(4, family.Select(c => c.Key).Distinct().Count()); // each instance keeps its own trial key
 
         var sides = new StoredSides();
