@@ -1,7 +1,7 @@
 namespace IdentityQueue.Screening.Equivalence;
 
 /// <summary>
-/// An entry that is the same identity as an earlier one (up to the chance <see cref="Fingerprint.FalseMatchLog2"/> bounds):
+/// An entry that is the same identity as an earlier one (up to the chance <see cref="Fingerprint.FalseMatchLog2(double, double)"/> bounds):
 /// it shares the evidence of <paramref name="RepresentativeId"/>, the smallest id of its group; <paramref name="Swapped"/>
 /// when its left side is the representative's right side (and not its left).
 /// </summary>

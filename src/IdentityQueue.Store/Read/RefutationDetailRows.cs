@@ -5,6 +5,11 @@ namespace IdentityQueue.Store.Read;
 
 /// <summary>A stored smallest counterexample (a row of the <c>counterexamples</c> view). Immutable.</summary>
 /// <param name="Point">A JSON object, variable → integer as text, in the variables' order.</param>
+/// <param name="LhsValue">The left side's exact value there.</param>
+/// <param name="RhsValue">The right side's exact value there.</param>
+/// <param name="Entry">The differing entry of a matrix identity, or null.</param>
+/// <param name="MaxAbs">The point's max-norm.</param>
+/// <param name="Exhaustive">True when every point before it in the search order was tried.</param>
 public sealed record StoredCounterexample(string Point, string LhsValue, string RhsValue, string? Entry, long MaxAbs, bool Exhaustive)
 {
     /// <summary>The point as (variable, value) pairs in the stored order; empty when the text is not a JSON object.</summary>
