@@ -159,8 +159,7 @@ internal static class JsonReport
         if (details?.Difference is { } d)
         {
             w.WriteStartObject("difference");
-            if (d.Text is null) w.WriteNull("text");
-            else w.WriteString("text", d.DenominatorText is null ? d.Text : $"({d.Text})/({d.DenominatorText})");
+            if (d.StoredText is { } text) w.WriteString("text", text); else w.WriteNull("text");
             if (d.Terms is { } terms) w.WriteNumber("terms", terms); else w.WriteNull("terms");
             if (d.EstimatedTerms is { } estimate) w.WriteNumber("estimatedTerms", estimate); else w.WriteNull("estimatedTerms");
             if (d.TotalDegree >= 0) w.WriteNumber("totalDegree", d.TotalDegree); else w.WriteNull("totalDegree");

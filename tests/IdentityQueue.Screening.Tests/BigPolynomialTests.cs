@@ -17,25 +17,7 @@ public sealed class BigPolynomialTests
 
     private static readonly Lazy<IReadOnlyList<Case>> Cases = new(Generate);
 
-    private static List<Case> Generate()
-    {
-        var script = Path.Combine(AppContext.BaseDirectory, "fixtures", "make_big_polynomials.py");
-        var output = Path.Combine(Path.GetTempPath(), $"idq-big-polynomials-{Environment.ProcessId}.jsonl");
-        try
-        {
-            var start = new ProcessStartInfo(SympyFactAttribute.Python, [script, output]) { RedirectStandardError = true };
-            using var process = Process.Start(start)!;
-            var errors = process.StandardError.ReadToEnd();
-            process.WaitForExit();
-            Assert.True(process.ExitCode == 0, $"{script} failed ({process.ExitCode}): {errors}");
-            var options = new JsonSerializerOptions { PropertyNameCaseInsensitive = true };
-            return File.ReadLines(output).Select(line => JsonSerializer.Deserialize<Case>(line, options)!).ToList();
-        }
-        finally
-        {
-            File.Delete(output);
-        }
-    }
+    private static List<Case> Generate() => SympyFactAttribute.ReadFixture<Case>("make_big_polynomials.py");
 
     private static Case Named(string name) => Cases.Value.Single(c => c.Name == name);
 
@@ -118,6 +100,30 @@ public sealed class BigPolynomialTests
 public sealed class SympyFactAttribute : FactAttribute
 {
     public const string Python = "/usr/bin/python3";
+
+    /// <summary>
+    /// Runs <c>tests/fixtures/SCRIPT OUTPUT</c> (a sympy oracle copied beside the tests) and reads its JSON lines; a failing
+    /// script fails the test with its standard error.
+    /// </summary>
+    internal static List<T> ReadFixture<T>(string script)
+    {
+        var path = Path.Combine(AppContext.BaseDirectory, "fixtures", script);
+        var output = Path.Combine(Path.GetTempPath(), $"idq-{Path.GetFileNameWithoutExtension(script)}-{Environment.ProcessId}.jsonl");
+        try
+        {
+            var start = new ProcessStartInfo(Python, [path, output]) { RedirectStandardError = true };
+            using var process = Process.Start(start)!;
+            var errors = process.StandardError.ReadToEnd();
+            process.WaitForExit();
+            Assert.True(process.ExitCode == 0, $"{path} failed ({process.ExitCode}): {errors}");
+            var options = new JsonSerializerOptions { PropertyNameCaseInsensitive = true };
+            return File.ReadLines(output).Select(line => JsonSerializer.Deserialize<T>(line, options)!).ToList();
+        }
+        finally
+        {
+            File.Delete(output);
+        }
+    }
 
     public SympyFactAttribute()
     {

@@ -28,10 +28,13 @@ public sealed record Counterexample(
     int CompleteShells)
 {
     /// <summary>"fails at a = 1, b = 0: lhs = 4, rhs = 2" (with "at entry [2,1]" for a matrix identity).</summary>
-    public string Describe()
+    public string Describe() => Describe(Point.Select(v => (v.Variable, v.Value.ToString())), LhsValue, RhsValue, Entry);
+
+    /// <summary>The same words for a counterexample as stored (values as text).</summary>
+    public static string Describe(IEnumerable<(string Variable, string Value)> point, string lhs, string rhs, string? entry)
     {
-        var at = Point.Count == 0 ? "fails" : "fails at " + string.Join(", ", Point.Select(v => $"{v.Variable} = {v.Value}"));
-        var entry = Entry is null ? "" : $" at entry {Entry}";
-        return $"{at}{entry}: lhs = {LhsValue}, rhs = {RhsValue}";
+        var coordinates = point.Select(v => $"{v.Variable} = {v.Value}").ToList();
+        var at = coordinates.Count == 0 ? "fails" : "fails at " + string.Join(", ", coordinates);
+        return $"{at}{(entry is null ? "" : $" at entry {entry}")}: lhs = {lhs}, rhs = {rhs}";
     }
 }

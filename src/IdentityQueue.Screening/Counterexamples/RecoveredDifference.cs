@@ -49,6 +49,9 @@ public sealed record RecoveredDifference(
     /// <summary>The terms of <see cref="DenominatorText"/>, in printing order.</summary>
     public IReadOnlyList<DifferenceTerm>? DenominatorTerms { get; init; }
 
+    /// <summary>The difference as the store keeps it: <see cref="Text"/>, or (Text)/(DenominatorText) for a rational one; null when not recovered.</summary>
+    public string? StoredText => Text is null ? null : DenominatorText is null ? Text : $"({Text})/({DenominatorText})";
+
     /// <summary>"lhs - rhs = 2*x*y (1 term, total degree 2)", with "(lhs - rhs)[2,1]" for a matrix entry.</summary>
     public string Describe()
     {

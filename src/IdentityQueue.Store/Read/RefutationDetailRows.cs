@@ -28,13 +28,7 @@ public sealed record StoredCounterexample(string Point, string LhsValue, string 
     }
 
     /// <summary>"fails at a = 1, b = 0: lhs = 4, rhs = 2", with "at entry [2,1]" for a matrix identity.</summary>
-    public string Describe()
-    {
-        var point = Coordinates();
-        var at = point.Count == 0 ? "fails" : "fails at " + string.Join(", ", point.Select(v => $"{v.Variable} = {v.Value}"));
-        var entry = Entry is null ? "" : $" at entry {Entry}";
-        return $"{at}{entry}: lhs = {LhsValue}, rhs = {RhsValue}";
-    }
+    public string Describe() => Screening.Counterexamples.Counterexample.Describe(Coordinates(), LhsValue, RhsValue, Entry);
 
     /// <summary>How sure the smallness is: "the smallest (every point of smaller norm was tried)" or "small, not proved smallest".</summary>
     public string Smallness => Exhaustive

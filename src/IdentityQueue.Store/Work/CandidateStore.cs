@@ -323,7 +323,7 @@ public sealed class CandidateStore(StoreConnection store)
         /// <summary>The insert for a recovered difference, or null when nothing about it is known (no text, no estimate, no degree).</summary>
         public DbCommand? Difference(long candidateId, Screening.Counterexamples.RecoveredDifference d)
         {
-            var text = d.Text is null ? null : d.DenominatorText is null ? d.Text : $"({d.Text})/({d.DenominatorText})";
+            var text = d.StoredText;
             long? terms = d.Terms ?? d.EstimatedTerms;
             int? degree = d.TotalDegree >= 0 ? d.TotalDegree : null;
             if (text is null && terms is null && degree is null) return null;

@@ -232,25 +232,7 @@ public sealed class DifferenceRecoveryTests
 
     private sealed record FixtureCase(string Lhs, string Rhs, string Over, string[] Variables, FixtureTerm[] Terms, int Degree);
 
-    private static List<FixtureCase> Generate()
-    {
-        var script = Path.Combine(AppContext.BaseDirectory, "fixtures", "make_difference_fixture.py");
-        var output = Path.Combine(Path.GetTempPath(), $"idq-differences-{Environment.ProcessId}.jsonl");
-        try
-        {
-            var start = new ProcessStartInfo(SympyFactAttribute.Python, [script, output]) { RedirectStandardError = true };
-            using var process = Process.Start(start)!;
-            var errors = process.StandardError.ReadToEnd();
-            process.WaitForExit();
-            Assert.True(process.ExitCode == 0, $"{script} failed ({process.ExitCode}): {errors}");
-            var options = new JsonSerializerOptions { PropertyNameCaseInsensitive = true };
-            return File.ReadLines(output).Select(line => JsonSerializer.Deserialize<FixtureCase>(line, options)!).ToList();
-        }
-        finally
-        {
-            File.Delete(output);
-        }
-    }
+    private static List<FixtureCase> Generate() => SympyFactAttribute.ReadFixture<FixtureCase>("make_difference_fixture.py");
 
     private static Rational ParseRational(string text) =>
         text.Split('/') is [var n, var d] ? Rational.Create(BigInteger.Parse(n), BigInteger.Parse(d)) : new Rational(BigInteger.Parse(text));
