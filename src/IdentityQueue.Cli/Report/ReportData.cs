@@ -100,7 +100,8 @@ internal sealed record FamilyInfo(string Catalogue, string Family, long Instance
     public string? FirstFailure { get; init; }
 
     /// <summary>Where the family holds and fails, in the words <c>idq show FAMILY</c> uses (<see cref="FamilyWords.Describe"/>).</summary>
-    public string Words => FamilyWords.Describe(Parameters, HoldsFor, FailsFor, Instances, Survived, Refuted, Other);
+    public string Words => FamilyWords.Describe(Parameters, HoldsFor, FailsFor, Instances, Survived, Refuted, Other,
+        Members.Count == Instances ? [.. Members.Select(m => (m.Values, m.State == ResultStates.Refuted))] : null);
 }
 
 /// <summary>A refuted candidate with where it fails, in words (null when not found).</summary>
@@ -203,21 +204,8 @@ internal sealed class ReportData
         };
     }
 
-    /// <summary>The values of a params JSON object as text, in order (<c>{"m":2,"r":3}</c> → 2, 3); empty for anything else.</summary>
-    internal static IReadOnlyList<string> ParamValues(string? json)
-    {
-        if (string.IsNullOrWhiteSpace(json)) return [];
-        try
-        {
-            using var document = JsonDocument.Parse(json);
-            if (document.RootElement.ValueKind != JsonValueKind.Object) return [];
-            return [.. document.RootElement.EnumerateObject().Select(p => p.Value.ValueKind == JsonValueKind.String ? p.Value.GetString() ?? "" : p.Value.GetRawText())];
-        }
-        catch (JsonException)
-        {
-            return [];
-        }
-    }
+    /// <summary>The values of a params JSON object as text, in order: the store's <see cref="FamilyWords.ParameterValues"/>.</summary>
+    internal static IReadOnlyList<string> ParamValues(string? json) => FamilyWords.ParameterValues(json);
 
     /// <summary><c>{"n":3,"k":1}</c> → <c>n=3, k=1</c>: the hand-off tables' formatting, so report and tables agree.</summary>
     internal static string FormatParams(string? json) => Screening.HandOff.HandOffCandidate.FormatParams(json);

@@ -37,7 +37,8 @@ public sealed record FamilyDetail(
     public IReadOnlyList<string> Parameters => FamilyWords.ParameterNames(Members.Count == 0 ? null : Members[0].Params);
 
     /// <summary>"holds for n = 0..5, fails for n = 6..10" (see <see cref="FamilyWords.Describe"/>).</summary>
-    public string Words => FamilyWords.Describe(Parameters, HoldsFor, FailsFor, Instances, Survived, Refuted, Other);
+    public string Words => FamilyWords.Describe(Parameters, HoldsFor, FailsFor, Instances, Survived, Refuted, Other,
+        [.. Members.Select(m => (FamilyWords.ParameterValues(m.Params), m.State == ResultState.Refuted))]);
 }
 
 /// <summary>
@@ -50,9 +51,12 @@ public static class FamilyWords
     /// For a family in one parameter: "holds for n = 0..5, fails for n = 6..10" from the <c>families</c> view's
     /// <c>holds_for</c> and <c>fails_for</c> (clauses joined by "; " when a list has several runs), and how many instances
     /// are neither. For a family in several parameters (whose ranges the view leaves null): "holds for 6 of 16 instances,
-    /// fails for 10". "no instance decided yet" when none was refuted or survived.
+    /// fails for 10", and for a family in two integer parameters whose <paramref name="members"/> are given, the failing
+    /// instances row by row: "fails for 10 (m = 0 with r = 0; m = 1 with r = 0..1)". "no instance decided yet" when none
+    /// was refuted or survived.
     /// </summary>
-    public static string Describe(IReadOnlyList<string> parameters, string? holdsFor, string? failsFor, long instances, long survived, long refuted, long other)
+    public static string Describe(IReadOnlyList<string> parameters, string? holdsFor, string? failsFor, long instances, long survived, long refuted, long other,
+        IReadOnlyList<(IReadOnlyList<string> Values, bool Refuted)>? members = null)
     {
         ArgumentNullException.ThrowIfNull(parameters);
         var clauses = new List<string>();
@@ -65,12 +69,76 @@ public static class FamilyWords
         else if (survived + refuted > 0)
         {
             if (survived > 0) clauses.Add($"holds for {Count(survived)} of {Count(instances)} instance{Plural(instances)}");
-            if (refuted > 0) clauses.Add(survived > 0 ? $"fails for {Count(refuted)}" : $"fails for {Count(refuted)} of {Count(instances)} instance{Plural(instances)}");
+            var rows = members is null ? null : FailingByRow(parameters, members);
+            if (refuted > 0)
+                clauses.Add((survived > 0 ? $"fails for {Count(refuted)}" : $"fails for {Count(refuted)} of {Count(instances)} instance{Plural(instances)}") +
+                    (rows is null ? "" : $" ({rows})"));
         }
         var separator = clauses.Any(c => c.Contains(',', StringComparison.Ordinal)) ? "; " : ", ";
         if (other > 0) clauses.Add($"{Count(other)} other{Plural(other)} (undecided, invalid, failed or not yet screened)");
         if (clauses.Count == 0) return "no instance decided yet";
         return string.Join(separator, clauses);
+    }
+
+    /// <summary>Failing rows listed at most by <see cref="FailingByRow"/>.</summary>
+    public const int MaxFailingRows = 12;
+
+    /// <summary>
+    /// For a family in two integer parameters: its refuted instances row by row, as runs of the second parameter's values
+    /// per value of the first, "m = 0 with r = 0; m = 1 with r = 0..1, 3" (at most <see cref="MaxFailingRows"/> rows, then
+    /// "…"); null for other families or when none is refuted.
+    /// </summary>
+    public static string? FailingByRow(IReadOnlyList<string> parameters, IReadOnlyList<(IReadOnlyList<string> Values, bool Refuted)> members)
+    {
+        ArgumentNullException.ThrowIfNull(parameters);
+        ArgumentNullException.ThrowIfNull(members);
+        if (parameters.Count != 2) return null;
+        var points = new List<(long Row, long Column)>();
+        foreach (var (values, refuted) in members)
+        {
+            if (values.Count != 2 || !long.TryParse(values[0], NumberStyles.AllowLeadingSign, CultureInfo.InvariantCulture, out var row)
+                || !long.TryParse(values[1], NumberStyles.AllowLeadingSign, CultureInfo.InvariantCulture, out var column))
+                return null;
+            if (refuted) points.Add((row, column));
+        }
+        if (points.Count == 0) return null;
+        var rows = points.GroupBy(p => p.Row).OrderBy(g => g.Key)
+            .Select(g => $"{parameters[0]} = {g.Key.ToString(CultureInfo.InvariantCulture)} with {parameters[1]} = {Runs([.. g.Select(p => p.Column)])}")
+            .ToList();
+        return rows.Count <= MaxFailingRows ? string.Join("; ", rows) : string.Join("; ", rows.Take(MaxFailingRows)) + "; …";
+    }
+
+    /// <summary>Integers as runs, the way the <c>families</c> view writes its ranges: <c>0..2, 4, 6..7</c>.</summary>
+    public static string Runs(IReadOnlyList<long> values)
+    {
+        ArgumentNullException.ThrowIfNull(values);
+        var sorted = values.Distinct().Order().ToList();
+        var runs = new List<string>();
+        for (var i = 0; i < sorted.Count;)
+        {
+            var j = i;
+            while (j + 1 < sorted.Count && sorted[j + 1] == sorted[j] + 1) j++;
+            runs.Add(j == i ? sorted[i].ToString(CultureInfo.InvariantCulture)
+                : $"{sorted[i].ToString(CultureInfo.InvariantCulture)}..{sorted[j].ToString(CultureInfo.InvariantCulture)}");
+            i = j + 1;
+        }
+        return string.Join(", ", runs);
+    }
+
+    /// <summary>The values of a params JSON object as text, in order (<c>{"m":2,"r":3}</c> → 2, 3); empty for anything else.</summary>
+    public static IReadOnlyList<string> ParameterValues(string? json)
+    {
+        if (string.IsNullOrWhiteSpace(json)) return [];
+        try
+        {
+            using var document = JsonDocument.Parse(json);
+            if (document.RootElement.ValueKind != JsonValueKind.Object) return [];
+            return [.. document.RootElement.EnumerateObject().Select(p => p.Value.ValueKind == JsonValueKind.String ? p.Value.GetString() ?? "" : p.Value.GetRawText())];
+        }
+        catch (JsonException)
+        {
+            return [];
+        }
     }
 
     /// <summary>"at n=6: fails: lhs = 31, rhs = 32" (the counterexample in <see cref="StoredCounterexample.Describe"/>'s words), or "at n=6 (no counterexample found)".</summary>
