@@ -174,9 +174,10 @@ public static class FamilyWords
 public sealed class FamilyReads(StoreConnection store)
 {
     /// <summary>
-    /// The refuted instance of each family that comes first in parameter order (position, then id: the order of the
-    /// <c>families</c> view's <c>first_refuted</c>), with its counterexample and difference. Portable SQL; the caller adds
-    /// a condition on <c>k</c> (the catalogue) or <c>c</c> (the candidate) and its parameters.
+    /// The refuted instances of each family at its least position (the first in parameter order, as the <c>families</c>
+    /// view's <c>first_refuted</c>; one pass over the refuted instances, grouped), with their counterexample and
+    /// difference; several only when positions tie, so the caller orders by <c>c.id</c> and keeps the first per family.
+    /// Portable SQL; the caller adds a condition on <c>k</c> (the catalogue) or <c>c</c> (the candidate) and its parameters.
     /// </summary>
     public const string FirstFailuresQuery = $"""
         SELECT k.name AS catalogue, c.family, c.id, c.label, c.params,
@@ -187,12 +188,14 @@ public sealed class FamilyReads(StoreConnection store)
         FROM candidate c
         JOIN catalogue k ON k.id = c.catalogue_id
         JOIN result r ON r.candidate_id = c.id
+        JOIN (SELECT f.catalogue_id, f.family, MIN(COALESCE(f.position, -1)) AS first_position
+              FROM candidate f JOIN result fr ON fr.candidate_id = f.id
+              WHERE f.family IS NOT NULL AND fr.state = '{ResultStates.Refuted}'
+              GROUP BY f.catalogue_id, f.family) m
+          ON m.catalogue_id = c.catalogue_id AND m.family = c.family AND m.first_position = COALESCE(c.position, -1)
         LEFT JOIN counterexamples x ON x.candidate_id = c.id
         LEFT JOIN differences d ON d.candidate_id = c.id
         WHERE c.family IS NOT NULL AND r.state = '{ResultStates.Refuted}'
-          AND NOT EXISTS (SELECT 1 FROM candidate e JOIN result er ON er.candidate_id = e.id
-                          WHERE e.catalogue_id = c.catalogue_id AND e.family = c.family AND er.state = '{ResultStates.Refuted}'
-                            AND (e.position < c.position OR (e.position = c.position AND e.id < c.id)))
         """;
 
     /// <summary>A row of <see cref="FirstFailuresQuery"/> as the catalogue, the family and its first failure.</summary>
@@ -224,7 +227,7 @@ public sealed class FamilyReads(StoreConnection store)
                 ORDER BY c.position, c.id
                 """, [("@catalogue", f.CatalogueId), ("@family", f.Family)],
                 r => new FamilyMember(r.Long("id"), r.Text("label"), r.NullableText("params"), ResultStates.Parse(r.Text("state"))));
-            var first = ReadSql.Rows(store, FirstFailuresQuery + " AND c.catalogue_id = @catalogue AND c.family = @family",
+            var first = ReadSql.Rows(store, FirstFailuresQuery + " AND c.catalogue_id = @catalogue AND c.family = @family ORDER BY c.id",
                 [("@catalogue", f.CatalogueId), ("@family", f.Family)], ReadFirstFailure).Select(x => x.Failure).FirstOrDefault();
             details.Add(new FamilyDetail(f.Catalogue, f.Family, f.Instances, f.Survived, f.Refuted, f.Other, f.HoldsFor, f.FailsFor, members, first));
         }

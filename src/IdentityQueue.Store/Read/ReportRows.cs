@@ -129,7 +129,7 @@ public sealed class ReportReads(StoreConnection store, IReadOnlyList<string> cat
         LIMIT {limit.ToString(CultureInfo.InvariantCulture)}
         """;
 
-    private static string FirstFailuresQuery(string where) => FamilyReads.FirstFailuresQuery + where;
+    private static string FirstFailuresQuery(string where) => FamilyReads.FirstFailuresQuery + where + " ORDER BY k.name, c.family, c.id";
 
     private static string RefutationsQuery(string where, int limit) => $"""
         SELECT k.name, c.id, c.label, c.lhs, c.rhs, c.field,
@@ -188,7 +188,7 @@ public sealed class ReportReads(StoreConnection store, IReadOnlyList<string> cat
         });
     }
 
-    /// <summary>Each family's first failing instance (first in parameter order) with its counterexample and difference.</summary>
+    /// <summary>Each family's first failing instances (first in parameter order; the first of these by id is the one) with their counterexample and difference.</summary>
     public IReadOnlyList<(string Catalogue, string Family, FirstFailure Failure)> FirstFailures() =>
         Rows(FirstFailuresQuery(_filter.Condition), FamilyReads.ReadFirstFailure);
 
