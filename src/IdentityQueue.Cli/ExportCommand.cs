@@ -22,7 +22,11 @@ internal static class ExportCommand
         Write candidates with their evidence.
           jsonl, csv  every column: label, family, params, lhs, rhs, field, state, degree_bound, error_bound_log2, certified,
                       message, trials, the witness (modulus, polynomial, point, difference, entry), height_bound_log2,
-                      trials_zero. All candidates unless --state is given. --out FILE.
+                      trials_zero, and for a refuted candidate where it fails: the smallest counterexample found
+                      (counterexample_point, _lhs, _rhs, _entry, _max_abs, _exhaustive, and counterexample_text:
+                      "fails at a = 1, b = 0: lhs = 4, rhs = 2") and the recovered difference (difference,
+                      difference_terms, _total_degree, _terms_estimated, and difference_text: "lhs - rhs = 2*a*b
+                      (1 term, total degree 2)"). All candidates unless --state is given. --out FILE.
           smtlib      one SMT-LIB 2 script (logic QF_NRA, over the reals) per candidate asserting the negation of the
                       identity: every variable declared (x[3] as |x[3]|), everything expanded into + - * and rational
                       constants, every divisor asserted nonzero and the sides compared over a common denominator,
@@ -32,7 +36,8 @@ internal static class ExportCommand
                       limits (MaxExpansionSteps 200000, MaxExpansionOrder 10 for det/perm/pf, MaxMatrixOrder 16,
                       MaxExponent 512, MaxConstantBits 4096), are skipped with the reason on standard error.
           tex, md     a LaTeX longtable or a Markdown table: label, family, parameters, identity, degree bound, trials,
-                      error bound (2^x), with the caution in the caption. --out FILE.
+                      error bound (2^x), with the caution in the caption; with refuted candidates, a column "where
+                      it fails" (the counterexample and the difference in words). --out FILE.
         smtlib, tex and md export the survivors unless --state is given.
         A survivor is very likely true, not proven: its error bound is only as good as its degree bound.
 
@@ -96,7 +101,11 @@ internal static class ExportCommand
         foreach (var row in rows)
         {
             var handOff = new HandOffCandidate(row.Id, row.Label, row.Family, row.Params, row.Lhs, row.Rhs, row.Field, row.State?.Text(),
-                row.DegreeBound, row.ErrorBoundLog2, row.Trials);
+                row.DegreeBound, row.ErrorBoundLog2, row.Trials)
+            {
+                CounterexampleText = row.Counterexample?.Describe(),
+                DifferenceText = row.Difference?.Describe(),
+            };
             var stored = new StoredCandidate(row.Id, 0, row.Catalogue, row.Label, row.Family, row.Params, row.Lhs, row.Rhs, row.Field, null, 0, 0);
             yield return (handOff, stored);
         }

@@ -15,10 +15,10 @@ internal static class ShowCommands
 {
     public static Command Show(TextWriter output, TextWriter error)
     {
-        var key = new Argument<string>("candidate") { Description = "A candidate id or label (for a family instance, e.g. 'binomial[n=3]')." };
+        var key = new Argument<string>("candidate") { Description = "A candidate id or label (for a family instance, e.g. 'binomial[n=3]'), or a family's label (e.g. 'binomial')." };
         var store = new StoreOptions();
         var json = new Option<bool>("--json") { Description = "Print JSON." };
-        var command = new Command("show", "One candidate: its text, degree bound, every trial, the result and the witness.\n\nExamples:\n  idq show 17\n  idq show 'vdm[n=5]' --json") { key, json };
+        var command = new Command("show", "One candidate: its text, degree bound, every trial, the result and the witness; for a refutation, where it fails (the smallest counterexample found) and the difference lhs - rhs. Given a family's label: where the family holds and fails (\"holds for n = 1..5, fails for n = 6..10\"), the first failing instance's counterexample and every instance's state.\n\nExamples:\n  idq show 17\n  idq show 'vdm[n=5]' --json\n  idq show vdm") { key, json };
         store.AddTo(command);
         command.SetAction(parse =>
         {
@@ -27,8 +27,15 @@ internal static class ShowCommands
             var text = parse.GetValue(key)!;
             if (new CandidateReads(connection).Detail(text) is not { } detail)
             {
-                error.WriteLine($"idq show: no candidate with id or label '{text}'");
-                return ExitCodes.BadInput;
+                var families = new FamilyReads(connection).Find(text);
+                if (families.Count == 0)
+                {
+                    error.WriteLine($"idq show: no candidate with id or label '{text}', and no family with that label");
+                    return ExitCodes.BadInput;
+                }
+                if (parse.GetValue(json)) WriteFamiliesJson(output, families);
+                else foreach (var family in families) WriteFamilyText(output, family);
+                return ExitCodes.Success;
             }
             if (parse.GetValue(json)) WriteJson(output, detail);
             else WriteText(output, detail);
@@ -71,6 +78,75 @@ internal static class ShowCommands
             }
         }
         if (detail.Matches > 1) o.WriteLine($"  ({detail.Matches - 1} more candidates have this label; use the id)");
+    }
+
+    /// <summary>A family: its counts, where it holds and fails in words, its first failure and each instance's state.</summary>
+    private static void WriteFamilyText(TextWriter o, FamilyDetail f)
+    {
+        var parameters = f.Parameters.Count == 0 ? "" : $"  (parameters {string.Join(", ", f.Parameters)})";
+        o.WriteLine($"family {f.Family}  catalogue {f.Catalogue}{parameters}");
+        o.WriteLine($"  {f.Words}");
+        o.WriteLine($"  instances      {f.Instances}: {f.Survived} survived (very likely true), {f.Refuted} refuted, {f.Other} other");
+        if (f.FirstFailing is { } first)
+        {
+            o.WriteLine($"  first failing  {first.Describe()}  ({first.Label}, candidate {first.Id})");
+            if (first.Counterexample is { } x) o.WriteLine($"                 {x.Smallness}");
+            if (first.Difference is { } d) o.WriteLine($"  difference     {d.Describe()}");
+        }
+        foreach (var m in f.Members)
+            o.WriteLine($"    {m.Id,-6} {m.State.Text(),-10} {m.Label}");
+    }
+
+    /// <summary>An array with one object per family of that label (one per catalogue): the view's columns, the words, the first failure, the instances.</summary>
+    private static void WriteFamiliesJson(TextWriter output, IReadOnlyList<FamilyDetail> families)
+    {
+        using var stream = new MemoryStream();
+        using (var w = new Utf8JsonWriter(stream, new JsonWriterOptions { Indented = true }))
+        {
+            w.WriteStartArray();
+            foreach (var f in families)
+            {
+                w.WriteStartObject();
+                w.WriteString("catalogue", f.Catalogue);
+                w.WriteString("family", f.Family);
+                w.WriteStartArray("parameters");
+                foreach (var p in f.Parameters) w.WriteStringValue(p);
+                w.WriteEndArray();
+                w.WriteNumber("instances", f.Instances);
+                w.WriteNumber("survived", f.Survived);
+                w.WriteNumber("refuted", f.Refuted);
+                w.WriteNumber("other", f.Other);
+                if (f.HoldsFor is null) w.WriteNull("holds_for"); else w.WriteString("holds_for", f.HoldsFor);
+                if (f.FailsFor is null) w.WriteNull("fails_for"); else w.WriteString("fails_for", f.FailsFor);
+                w.WriteString("text", f.Words);
+                if (f.FirstFailing is { } first)
+                {
+                    w.WriteStartObject("first_failing");
+                    w.WriteNumber("id", first.Id);
+                    w.WriteString("label", first.Label);
+                    if (first.Params is null) w.WriteNull("params"); else { w.WritePropertyName("params"); w.WriteRawValue(first.Params); }
+                    w.WriteString("text", first.Describe());
+                    WriteCounterexample(w, first.Counterexample);
+                    WriteDifference(w, first.Difference);
+                    w.WriteEndObject();
+                }
+                else w.WriteNull("first_failing");
+                w.WriteStartArray("members");
+                foreach (var m in f.Members)
+                {
+                    w.WriteStartObject();
+                    w.WriteNumber("id", m.Id);
+                    w.WriteString("label", m.Label);
+                    if (m.Params is null) w.WriteNull("params"); else { w.WritePropertyName("params"); w.WriteRawValue(m.Params); }
+                    w.WriteString("state", m.State.Text());
+                    w.WriteEndObject();
+                }
+                w.WriteEndArray();
+                w.WriteEndObject();
+            }
+            w.WriteEndArray();
+        }
+        output.WriteLine(System.Text.Encoding.UTF8.GetString(stream.ToArray()));
     }
 
     private static string Residue(System.Numerics.BigInteger[] c) => c.Length == 1 ? c[0].ToString() : TextReport.Polynomial(c);
@@ -130,7 +206,13 @@ internal static class ShowCommands
     /// <summary>The refutation's counterexample and difference under the columns of their views (null when none was found).</summary>
     private static void WriteDetails(Utf8JsonWriter w, CandidateDetail detail)
     {
-        if (detail.Counterexample is { } x)
+        WriteCounterexample(w, detail.Counterexample);
+        WriteDifference(w, detail.Difference);
+    }
+
+    private static void WriteCounterexample(Utf8JsonWriter w, StoredCounterexample? counterexample)
+    {
+        if (counterexample is { } x)
         {
             w.WriteStartObject("counterexample");
             w.WritePropertyName("point");
@@ -144,13 +226,18 @@ internal static class ShowCommands
             w.WriteEndObject();
         }
         else w.WriteNull("counterexample");
-        if (detail.Difference is { } d)
+    }
+
+    private static void WriteDifference(Utf8JsonWriter w, StoredDifference? difference)
+    {
+        if (difference is { } d)
         {
             w.WriteStartObject("difference");
             if (d.Text is null) w.WriteNull("difference"); else w.WriteString("difference", d.Text);
             if (d.Terms is { } terms) w.WriteNumber("terms", terms); else w.WriteNull("terms");
             if (d.TotalDegree is { } degree) w.WriteNumber("total_degree", degree); else w.WriteNull("total_degree");
             w.WriteNumber("terms_estimated", d.TermsEstimated ? 1 : 0);
+            w.WriteString("text", d.Describe());
             w.WriteEndObject();
         }
         else w.WriteNull("difference");

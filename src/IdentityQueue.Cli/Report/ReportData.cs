@@ -77,11 +77,35 @@ internal sealed record StateCount(string Catalogue, string State, long Count);
 internal sealed record StageCount(int Seq, int FieldBits, long Count);
 
 /// <summary>One family instance: its parameters (as formatted text) and state, in parameter order.</summary>
-internal sealed record Instance(string Params, string State);
+internal sealed record Instance(string Params, string State)
+{
+    /// <summary>The parameters' values as the params JSON gives them (text), in the order of the family's parameters.</summary>
+    public IReadOnlyList<string> Values { get; init; } = [];
+}
 
 /// <summary>A row of the <c>families</c> view with its instances.</summary>
 internal sealed record FamilyInfo(string Catalogue, string Family, long Instances, long Survived, long Refuted, long Other,
-    string? FirstRefuted, IReadOnlyList<Instance> Members);
+    string? FirstRefuted, IReadOnlyList<Instance> Members)
+{
+    /// <summary>The family's parameter names, in order (from its first instance).</summary>
+    public IReadOnlyList<string> Parameters { get; init; } = [];
+
+    /// <summary>The view's <c>holds_for</c> (one parameter only).</summary>
+    public string? HoldsFor { get; init; }
+
+    /// <summary>The view's <c>fails_for</c> (one parameter only).</summary>
+    public string? FailsFor { get; init; }
+
+    /// <summary>The first failing instance in words, with its counterexample (<see cref="IdentityQueue.Store.Read.FirstFailure.Describe"/>).</summary>
+    public string? FirstFailure { get; init; }
+
+    /// <summary>Where the family holds and fails, in the words <c>idq show FAMILY</c> uses (<see cref="FamilyWords.Describe"/>).</summary>
+    public string Words => FamilyWords.Describe(Parameters, HoldsFor, FailsFor, Instances, Survived, Refuted, Other,
+        Members.Count == Instances ? [.. Members.Select(m => (m.Values, m.State == ResultStates.Refuted))] : null);
+}
+
+/// <summary>A refuted candidate with where it fails, in words (null when not found).</summary>
+internal sealed record RefutationInfo(string Catalogue, long Id, string Label, string Identity, string? Counterexample, string? Smallness, string? Difference);
 
 /// <summary>A row of <c>rejection</c>.</summary>
 internal sealed record RejectionInfo(string Catalogue, string Source, long Line, string Raw, string Reason);
@@ -101,6 +125,9 @@ internal sealed class ReportData
     /// <summary>Rejections listed at most; the total is given.</summary>
     public const int MaxRejections = 1_000;
 
+    /// <summary>Refuted candidates listed with where they fail, at most; the total is given.</summary>
+    public const int MaxRefutations = 500;
+
     public required IReadOnlyList<string> Filter { get; init; }
     public required IReadOnlyList<CatalogueInfo> Catalogues { get; init; }
     public required IReadOnlyList<StateCount> StateCounts { get; init; }
@@ -117,6 +144,9 @@ internal sealed class ReportData
     public required bool InstancesTruncated { get; init; }
     public required IReadOnlyList<RejectionInfo> Rejections { get; init; }
     public required long RejectionsTotal { get; init; }
+    /// <summary>Refuted candidates with their counterexample and difference in words, in catalogue order, at most <see cref="MaxRefutations"/>.</summary>
+    public IReadOnlyList<RefutationInfo> Refutations { get; init; } = [];
+    public long RefutationsTotal { get; init; }
 
     public long Total(string state) => StateCounts.Where(s => s.State == state).Sum(s => s.Count);
 
@@ -141,7 +171,10 @@ internal sealed class ReportData
         var instances = reads.Instances(MaxInstances + 1);
         var members = instances.Take(MaxInstances)
             .GroupBy(i => (i.Catalogue, i.Family))
-            .ToDictionary(g => g.Key, g => (IReadOnlyList<Instance>)[.. g.Select(i => new Instance(FormatParams(i.Params), i.State.Text()))]);
+            .ToDictionary(g => g.Key, g => (IReadOnlyList<Instance>)[.. g.Select(i => new Instance(FormatParams(i.Params), i.State.Text()) { Values = ParamValues(i.Params) })]);
+        var names = instances.GroupBy(i => (i.Catalogue, i.Family)).ToDictionary(g => g.Key, g => FamilyWords.ParameterNames(g.First().Params));
+        var firstFailures = new Dictionary<(string, string), string>();
+        foreach (var (catalogue, family, failure) in reads.FirstFailures()) firstFailures.TryAdd((catalogue, family), failure.Describe());
         return new ReportData
         {
             Filter = catalogues,
@@ -154,12 +187,25 @@ internal sealed class ReportData
             TimedCandidates = timed,
             TotalMicroseconds = totalUs,
             Families = [.. reads.Families().Select(f => new FamilyInfo(f.Catalogue, f.Family, f.Instances, f.Survived, f.Refuted, f.Other,
-                f.FirstRefuted is { } first ? FormatParams(first) : null, members.TryGetValue((f.Catalogue, f.Family), out var m) ? m : []))],
+                f.FirstRefuted is { } first ? FormatParams(first) : null, members.TryGetValue((f.Catalogue, f.Family), out var m) ? m : [])
+            {
+                Parameters = names.TryGetValue((f.Catalogue, f.Family), out var n) ? n : FamilyWords.ParameterNames(f.FirstRefuted),
+                HoldsFor = f.HoldsFor,
+                FailsFor = f.FailsFor,
+                FirstFailure = firstFailures.GetValueOrDefault((f.Catalogue, f.Family)),
+            })],
             InstancesTruncated = instances.Count > MaxInstances,
             Rejections = [.. reads.Rejections(MaxRejections).Select(r => new RejectionInfo(r.Catalogue, r.Source, r.Line, r.Raw, r.Reason))],
             RejectionsTotal = reads.RejectionsTotal(),
+            Refutations = [.. reads.Refutations(MaxRefutations).Select(r => new RefutationInfo(r.Catalogue, r.Id, r.Label,
+                Algebra.Syntax.ExprPrinter.Line(Algebra.Syntax.ExprPrinter.Canonical(r.Lhs), Algebra.Syntax.ExprPrinter.Canonical(r.Rhs), r.Field), r.Counterexample?.Describe(), r.Counterexample?.Smallness,
+                r.Difference?.Describe()))],
+            RefutationsTotal = reads.RefutationsTotal(),
         };
     }
+
+    /// <summary>The values of a params JSON object as text, in order: the store's <see cref="FamilyWords.ParameterValues"/>.</summary>
+    internal static IReadOnlyList<string> ParamValues(string? json) => FamilyWords.ParameterValues(json);
 
     /// <summary><c>{"n":3,"k":1}</c> → <c>n=3, k=1</c>: the hand-off tables' formatting, so report and tables agree.</summary>
     internal static string FormatParams(string? json) => Screening.HandOff.HandOffCandidate.FormatParams(json);

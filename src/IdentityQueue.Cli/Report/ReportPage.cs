@@ -52,6 +52,8 @@ internal static class ReportPage
         Evidence(html, data);
         Time(html, data);
         Families(html, data);
+        Refutations(html, data);
+        // further sections of evidence (e.g. equivalence groups) go here, before the rejections
         Rejections(html, data);
         html.Append($"""
             </main>
@@ -190,7 +192,10 @@ internal static class ReportPage
             $"<span class=\"dot\" style=\"background:{ColorOf(ResultState.Refuted)}\"></span>refuted, " +
             $"<span class=\"dot\" style=\"background:{ColorOf(ResultState.Invalid)}\"></span>invalid, " +
             $"<span class=\"dot\" style=\"background:{ColorOf(ResultState.Undecided)}\"></span>undecided. " +
-            "A family that holds for some parameters and fails for others is marked <span class=\"tag\">fails for some</span>.");
+            "A family that holds for some parameters and fails for others is marked <span class=\"tag\">fails for some</span>; " +
+            "where it holds and fails is said in words, with the smallest counterexample of its first failing instance. " +
+            "A family in two parameters is drawn as a grid (rows: the first parameter's values, columns: the second's), " +
+            "each square also marked ✓ survived, × refuted, ! invalid or failed, ? undecided.");
         if (data.Families.Count == 0)
         {
             Empty(html, "No family lines.");
@@ -211,17 +216,82 @@ internal static class ReportPage
             html.Append($"<th>{Encode(f.Family)}{(mixed ? "<br><span class=\"tag\">fails for some</span>" : "")}</th>");
             html.Append($"<td>{Count(f.Instances)}</td><td>{Count(f.Survived)}</td><td>{Count(f.Refuted)}</td><td>{Count(f.Other)}</td>");
             html.Append("<td class=\"strip\">");
-            html.Append(f.Members.Count == f.Instances
-                ? Strip("family", $"{f.Family}: instances in parameter order", [.. f.Members.Select(m => new StripCell(m.Params, m.State))], StripRow)
-                : "<span class=\"empty\">not listed</span>");
+            html.Append($"<p class=\"words\">{Encode(f.Words)}</p>");
+            html.Append(f.Members.Count == f.Instances ? Instances(f) : "<span class=\"empty\">not listed</span>");
             html.Append("</td>");
-            html.Append($"<td><code>{Encode(f.FirstRefuted ?? "")}</code></td>");
+            html.Append(f.FirstFailure is { } firstFailure
+                ? $"<td class=\"first\">{Encode(firstFailure)}</td>"
+                : $"<td><code>{Encode(f.FirstRefuted ?? "")}</code></td>");
             var failing = f.Members.Where(m => m.State == ResultStates.Refuted).Select(m => m.Params).ToList();
             html.Append($"<td class=\"fails\">{Encode(ReportData.Compress(failing, max: 12))}</td></tr>");
         }
         html.Append("</tbody></table>\n");
         if (data.InstancesTruncated)
             html.Append($"<p class=\"note\">Only the first {Count(ReportData.MaxInstances)} family instances are drawn; query the <code>families</code> view for the rest.</p>\n");
+        html.Append("</section>\n");
+    }
+
+    /// <summary>Distinct values per grid axis at most; a larger family in two parameters keeps its strip.</summary>
+    public const int MaxGridAxis = 60;
+
+    /// <summary>
+    /// A family's instances: a grid for a family in two integer parameters (rows the first one's values, columns the
+    /// second's, both ascending), a strip in parameter order otherwise.
+    /// </summary>
+    private static string Instances(FamilyInfo f)
+    {
+        if (GridAxes(f) is not { } axes)
+            return Strip("family", $"{f.Family}: instances in parameter order", [.. f.Members.Select(m => new StripCell(m.Params, m.State))], StripRow);
+        var (rows, columns) = axes;
+        var refuted = f.Members.Where(m => m.State == ResultStates.Refuted).Select(m => m.Params).ToList();
+        var title = $"{f.Family}: a grid of {f.Parameters[0]} (rows) by {f.Parameters[1]} (columns); {f.Words}" +
+            (refuted.Count == 0 ? "" : $"; refuted at {ReportData.Compress(refuted, max: 12)}");
+        var grid = Grid("family", title, f.Parameters[0], rows, f.Parameters[1], columns,
+            [.. f.Members.Select(m => new GridCell(m.Values[0], m.Values[1], m.Params, m.State))]);
+        var legend = string.Join(" ", ReportData.States.Where(s => f.Members.Any(m => m.State == s)).Select(s =>
+            $"<span class=\"key\"><span class=\"dot\" style=\"background:{ColorOf(s)}\"></span>{Encode(SymbolOf(s))} {Encode(s)}</span>"));
+        return $"{grid}<p class=\"legend\">{legend}</p>";
+    }
+
+    /// <summary>The sorted values of a two-parameter family's axes when every instance has two integer values, else null.</summary>
+    internal static (List<string> Rows, List<string> Columns)? GridAxes(FamilyInfo f)
+    {
+        if (f.Parameters.Count != 2 || f.Members.Count == 0) return null;
+        if (!f.Members.All(m => m.Values.Count == 2 && m.Values.All(v => long.TryParse(v, NumberStyles.AllowLeadingSign, CultureInfo.InvariantCulture, out _))))
+            return null;
+        List<string> Axis(int i) => [.. f.Members.Select(m => long.Parse(m.Values[i], CultureInfo.InvariantCulture)).Distinct().Order()
+            .Select(v => v.ToString(CultureInfo.InvariantCulture))];
+        var rows = Axis(0);
+        var columns = Axis(1);
+        return rows.Count > MaxGridAxis || columns.Count > MaxGridAxis ? null : (rows, columns);
+    }
+
+    private static void Refutations(StringBuilder html, ReportData data)
+    {
+        Section(html, "refutations", "Where the refuted identities fail",
+            "For each refuted entry: the smallest integer point found where its sides differ, with both sides' exact values " +
+            "(the least one when every smaller point was tried), and the difference lhs − rhs when it was recovered " +
+            "(or its degree and number of terms when too large to write out).");
+        if (data.RefutationsTotal == 0)
+        {
+            Empty(html, "No refutations.");
+            html.Append("</section>\n");
+            return;
+        }
+        html.Append("<table class=\"refutations\" data-table=\"refutations\"><thead><tr><th>entry</th><th>identity</th><th>fails at</th><th>difference</th></tr></thead><tbody>");
+        foreach (var r in data.Refutations)
+        {
+            html.Append($"<tr data-key=\"{r.Id.ToString(CultureInfo.InvariantCulture)}\"><th title=\"{Encode(r.Catalogue)}\">{Encode(r.Label)}</th>");
+            html.Append($"<td><code>{Encode(r.Identity)}</code></td>");
+            html.Append(r.Counterexample is null
+                ? "<td class=\"empty\">not found within the budget</td>"
+                : $"<td class=\"fails\" title=\"{Encode(r.Smallness ?? "")}\">{Encode(r.Counterexample)}</td>");
+            html.Append(r.Difference is null ? "<td class=\"empty\">not recovered</td>" : $"<td><code>{Encode(r.Difference)}</code></td>");
+            html.Append("</tr>");
+        }
+        html.Append("</tbody></table>\n");
+        if (data.RefutationsTotal > data.Refutations.Count)
+            html.Append($"<p class=\"note\">The first {Count(data.Refutations.Count)} of {Count(data.RefutationsTotal)} refutations; the rest are in the <code>counterexamples</code> and <code>differences</code> views.</p>\n");
         html.Append("</section>\n");
     }
 
@@ -290,6 +360,10 @@ internal static class ReportPage
         table.families td:nth-child(n+2):nth-child(-n+5) { text-align: right; font-variant-numeric: tabular-nums; }
         table.families tbody th { white-space: nowrap; }
         td.fails { color: #8c3a28; }
+        td.first { color: #8c3a28; font-size: 12px; }
+        p.words { margin: 0 0 4px; }
+        p.legend { margin: 4px 0 0; color: var(--muted); font-size: 11.5px; }
+        p.legend .key { margin-right: 10px; white-space: nowrap; }
         td.source { word-break: break-all; max-width: 260px; color: var(--muted); }
         code { font-family: ui-monospace, "DejaVu Sans Mono", monospace; font-size: 12px; word-break: break-all; }
         footer { max-width: 1120px; margin: 0 auto; padding: 0 40px 30px; color: var(--muted); font-size: 12px; }

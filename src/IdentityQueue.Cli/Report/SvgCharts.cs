@@ -11,6 +11,9 @@ internal sealed record Bar(string Label, long Value, string Color);
 /// <summary>One square of a strip chart: a family instance, its tooltip and its state.</summary>
 internal sealed record StripCell(string Title, string State);
 
+/// <summary>One square of a grid chart: a family instance in two parameters, at row value <c>Row</c> and column value <c>Column</c>.</summary>
+internal sealed record GridCell(string Row, string Column, string Title, string State);
+
 /// <summary>
 /// Small charts as inline SVG text, for embedding in an HTML page (no namespace declaration, no scripts, no external
 /// references). Every data mark is a <c>rect</c> with <c>class="mark"</c> and <c>data-*</c> attributes carrying its
@@ -138,6 +141,59 @@ internal static class SvgCharts
             svg.Append($"<rect class=\"mark\" data-chart=\"{Encode(chart)}\" data-state=\"{Encode(c.State)}\" x=\"{x}\" y=\"{y}\" width=\"{size}\" height=\"{size}\" rx=\"1.5\" " +
                 $"fill=\"{ColorOf(c.State)}\"><title>{Encode(c.Title)}: {Encode(c.State)}</title></rect>");
         }
+        return svg.Append("</svg>").ToString();
+    }
+
+    /// <summary>
+    /// The mark drawn inside a state's square besides its colour, so that a grid or strip reads without colour too:
+    /// ✓ survived, × refuted, ! invalid or failed, ? undecided, nothing for the states in flight.
+    /// </summary>
+    public static string SymbolOf(string state) => state switch
+    {
+        ResultStates.Survived => "✓",
+        ResultStates.Refuted => "×",
+        ResultStates.Invalid or ResultStates.Failed => "!",
+        ResultStates.Undecided => "?",
+        _ => "",
+    };
+
+    /// <summary>
+    /// A grid of squares for a family in two parameters: one row per value of the first parameter (<paramref name="rows"/>,
+    /// top to bottom), one column per value of the second (<paramref name="columns"/>, left to right), each cell coloured by
+    /// its state and marked with <see cref="SymbolOf"/>; a cell with no instance is an empty outline. Each square is a
+    /// <c>rect class="mark"</c> with <c>data-state</c>, <c>data-row</c>, <c>data-column</c> and a tooltip.
+    /// </summary>
+    public static string Grid(string chart, string title, string rowName, IReadOnlyList<string> rows, string columnName,
+        IReadOnlyList<string> columns, IReadOnlyList<GridCell> cells)
+    {
+        const int size = 18, gap = 2, top = 34;
+        var rowLabel = rows.Count == 0 ? 0 : rows.Max(r => r.Length);
+        var left = Math.Max(40, (rowName.Length + 3 + rowLabel) * CharWidth + 8);
+        var width = left + Math.Max(1, columns.Count) * (size + gap) + 4;
+        var height = top + Math.Max(1, rows.Count) * (size + gap) + 4;
+        var svg = Open(chart, title, width, height);
+        svg.Append($"<text x=\"{left}\" y=\"12\" font-size=\"11\" fill=\"#5b616b\">{Encode(columnName)} →</text>");
+        for (var j = 0; j < columns.Count; j++)
+            svg.Append($"<text x=\"{N(left + j * (size + gap) + size / 2.0)}\" y=\"{top - 6}\" text-anchor=\"middle\" font-size=\"10\" fill=\"#2b2f36\">{Encode(columns[j])}</text>");
+        for (var i = 0; i < rows.Count; i++)
+            svg.Append($"<text x=\"{left - 6}\" y=\"{top + i * (size + gap) + 13}\" text-anchor=\"end\" font-size=\"11\" fill=\"#2b2f36\">{Encode(rowName)} = {Encode(rows[i])}</text>");
+        var at = cells.GroupBy(c => (c.Row, c.Column)).ToDictionary(g => g.Key, g => g.First());
+        for (var i = 0; i < rows.Count; i++)
+            for (var j = 0; j < columns.Count; j++)
+            {
+                var x = left + j * (size + gap);
+                var y = top + i * (size + gap);
+                if (!at.TryGetValue((rows[i], columns[j]), out var c))
+                {
+                    svg.Append($"<rect x=\"{N(x + 0.5)}\" y=\"{N(y + 0.5)}\" width=\"{size - 1}\" height=\"{size - 1}\" rx=\"2\" fill=\"none\" stroke=\"#d6d9de\"/>");
+                    continue;
+                }
+                svg.Append($"<rect class=\"mark\" data-chart=\"{Encode(chart)}\" data-state=\"{Encode(c.State)}\" data-row=\"{Encode(c.Row)}\" data-column=\"{Encode(c.Column)}\" " +
+                    $"x=\"{x}\" y=\"{y}\" width=\"{size}\" height=\"{size}\" rx=\"2\" fill=\"{ColorOf(c.State)}\"><title>{Encode(c.Title)}: {Encode(c.State)}</title></rect>");
+                var symbol = SymbolOf(c.State);
+                if (symbol.Length > 0)
+                    svg.Append($"<text x=\"{N(x + size / 2.0)}\" y=\"{y + 13}\" text-anchor=\"middle\" font-size=\"12\" fill=\"#ffffff\" aria-hidden=\"true\">{symbol}</text>");
+            }
         return svg.Append("</svg>").ToString();
     }
 

@@ -21,6 +21,15 @@ public sealed record HandOffCandidate(
     double? ErrorBoundLog2,
     long Trials)
 {
+    /// <summary>For a refuted candidate: where it fails, in words ("fails at a = 1, b = 0: lhs = 4, rhs = 2"), when a counterexample was found.</summary>
+    public string? CounterexampleText { get; init; }
+
+    /// <summary>For a refuted candidate: "lhs - rhs = 2*x*y (1 term, total degree 2)", when the difference was recovered (or estimated).</summary>
+    public string? DifferenceText { get; init; }
+
+    /// <summary>True when the candidate carries either refutation detail.</summary>
+    public bool HasRefutationDetails => CounterexampleText is not null || DifferenceText is not null;
+
     /// <summary>
     /// The identity as one line of catalogue text in the printer's spelling, whatever the spacing it was written with
     /// (parameters fixed by <see cref="Params"/>).

@@ -29,6 +29,12 @@ public sealed record ExportRow(
     double? HeightBoundLog2,
     long? TrialsZero)
 {
+    /// <summary>For a refuted candidate: the smallest counterexample found (a row of <c>counterexamples</c>), when one was.</summary>
+    public StoredCounterexample? Counterexample { get; init; }
+
+    /// <summary>For a refuted candidate: lhs − rhs recovered (a row of <c>differences</c>), when it was.</summary>
+    public StoredDifference? Difference { get; init; }
+
     /// <summary>
     /// The values in the order of <see cref="ExportRows.Columns"/>: null, long, double or text (a state as its stored
     /// text, <see cref="Certified"/> as 1/0), as <c>idq sql</c> would give the same columns.
@@ -38,6 +44,10 @@ public sealed record ExportRow(
         Id, Catalogue, Label, Family, Params, Lhs, Rhs, Field, State?.Text(), DegreeBound, ErrorBoundLog2,
         Certified is { } c ? (c ? 1L : 0L) : null, Message, Trials, WitnessModulus, WitnessPolynomial, WitnessPoint,
         WitnessDifference, WitnessEntry, HeightBoundLog2, TrialsZero,
+        Counterexample?.Point, Counterexample?.LhsValue, Counterexample?.RhsValue, Counterexample?.Entry, Counterexample?.MaxAbs,
+        Counterexample is { } x ? (x.Exhaustive ? 1L : 0L) : null, Counterexample?.Describe(),
+        Difference?.Text, Difference?.Terms, Difference?.TotalDegree is { } d ? (long)d : null,
+        Difference is { } e ? (e.TermsEstimated ? 1L : 0L) : null, Difference?.Describe(),
     ];
 }
 
@@ -50,10 +60,14 @@ public sealed class ExportRows(StoreConnection store)
         "id", "catalogue", "label", "family", "params", "lhs", "rhs", "field", "state", "degree_bound", "error_bound_log2",
         "certified", "message", "trials", "witness_modulus", "witness_polynomial", "witness_point", "witness_difference",
         "witness_entry", "height_bound_log2", "trials_zero",
+        // a refuted candidate's details (issue #15): the counterexamples and differences views' columns, and their words
+        "counterexample_point", "counterexample_lhs", "counterexample_rhs", "counterexample_entry", "counterexample_max_abs",
+        "counterexample_exhaustive", "counterexample_text", "difference", "difference_terms", "difference_total_degree",
+        "difference_terms_estimated", "difference_text",
     ];
 
     /// <summary>Columns whose text is JSON (written as JSON, not as a string, in JSON lines).</summary>
-    public static readonly IReadOnlySet<string> JsonColumns = new HashSet<string>(["params", "witness_polynomial", "witness_point"], StringComparer.Ordinal);
+    public static readonly IReadOnlySet<string> JsonColumns = new HashSet<string>(["params", "witness_polynomial", "witness_point", "counterexample_point"], StringComparer.Ordinal);
 
     /// <summary>One row per candidate: the candidate, its result and its witness (if refuted). Portable SQL.</summary>
     public const string Query = """
@@ -62,11 +76,17 @@ public sealed class ExportRows(StoreConnection store)
                (SELECT count(*) FROM trial t WHERE t.candidate_id = c.id) AS trials,
                w.modulus AS witness_modulus, w.defining_polynomial AS witness_polynomial, w.point AS witness_point,
                w.difference AS witness_difference, w.entry AS witness_entry,
-               r.height_bound_log2, r.trials_zero
+               r.height_bound_log2, r.trials_zero,
+               x.point AS x_point, x.lhs_value AS x_lhs, x.rhs_value AS x_rhs, x.entry AS x_entry, x.max_abs AS x_max_abs,
+               x.exhaustive AS x_exhaustive,
+               d.candidate_id AS d_id, d.difference AS d_difference, d.terms AS d_terms, d.total_degree AS d_total_degree,
+               d.terms_estimated AS d_terms_estimated
         FROM candidate c
         JOIN catalogue k ON k.id = c.catalogue_id
         LEFT JOIN result r ON r.candidate_id = c.id
         LEFT JOIN trial w ON w.id = r.witness_trial_id
+        LEFT JOIN counterexamples x ON x.candidate_id = c.id
+        LEFT JOIN differences d ON d.candidate_id = c.id
         WHERE 1 = 1
         """;
 
@@ -79,6 +99,14 @@ public sealed class ExportRows(StoreConnection store)
             r.Text("field"), r.NullableText("state") is { } state ? ResultStates.Parse(state) : null, r.NullableText("degree_bound"),
             r.NullableDouble("error_bound_log2"), r.NullableLong("certified") is { } certified ? certified != 0 : null, r.NullableText("message"),
             r.Long("trials"), r.NullableText("witness_modulus"), r.NullableText("witness_polynomial"), r.NullableText("witness_point"),
-            r.NullableText("witness_difference"), r.NullableText("witness_entry"), r.NullableDouble("height_bound_log2"), r.NullableLong("trials_zero")));
+            r.NullableText("witness_difference"), r.NullableText("witness_entry"), r.NullableDouble("height_bound_log2"), r.NullableLong("trials_zero"))
+        {
+            Counterexample = r.NullableText("x_point") is { } point
+                ? new StoredCounterexample(point, r.Text("x_lhs"), r.Text("x_rhs"), r.NullableText("x_entry"), r.Long("x_max_abs"), r.Long("x_exhaustive") != 0)
+                : null,
+            Difference = r.NullableLong("d_id") is null ? null
+                : new StoredDifference(r.NullableText("d_difference"), r.NullableLong("d_terms"),
+                    r.NullableLong("d_total_degree") is { } degree ? (int)degree : null, r.Long("d_terms_estimated") != 0),
+        });
     }
 }

@@ -14,7 +14,18 @@ public sealed record WitnessStage(int Seq, int FieldBits, long Count);
 public sealed record BinCount(int Bin, long Count, long Sum);
 
 /// <summary>A row of the <c>families</c> view.</summary>
-public sealed record FamilySummary(string Catalogue, string Family, long Instances, long Survived, long Refuted, long Other, string? FirstRefuted);
+public sealed record FamilySummary(string Catalogue, string Family, long Instances, long Survived, long Refuted, long Other, string? FirstRefuted)
+{
+    /// <summary>The view's <c>holds_for</c>: for a family in one parameter, the surviving values as ranges (<c>0..5</c>).</summary>
+    public string? HoldsFor { get; init; }
+
+    /// <summary>The view's <c>fails_for</c>: for a family in one parameter, the refuted values as ranges (<c>6..10</c>).</summary>
+    public string? FailsFor { get; init; }
+}
+
+/// <summary>A refuted candidate with where it fails: its smallest counterexample and its difference, when found. Immutable.</summary>
+public sealed record RefutationSummary(string Catalogue, long Id, string Label, string Lhs, string Rhs, string Field,
+    StoredCounterexample? Counterexample, StoredDifference? Difference);
 
 /// <summary>One family instance: its catalogue, family, parameters (JSON text) and state.</summary>
 public sealed record FamilyInstance(string Catalogue, string Family, string? Params, ResultState State);
@@ -49,6 +60,7 @@ public sealed class ReportReads(StoreConnection store, IReadOnlyList<string> cat
     [
         CataloguesQuery(""), StatesQuery(""), StagesQuery(""), EvidenceQuery("", [1.0]), ExactSurvivorsQuery(""), TimeQuery("", [1.0]),
         FamiliesQuery(""), InstancesQuery("", 1), RejectionsQuery("", 1), RejectionsCountQuery(""),
+        FirstFailuresQuery(""), RefutationsQuery("", 1), RefutationsCountQuery(""),
     ];
 
     private static string CataloguesQuery(string where) =>
@@ -95,7 +107,7 @@ public sealed class ReportReads(StoreConnection store, IReadOnlyList<string> cat
         """;
 
     private static string FamiliesQuery(string where) => $"""
-        SELECT f.catalogue, f.family, f.instances, f.survived, f.refuted, f.other, f.first_refuted
+        SELECT f.catalogue, f.family, f.instances, f.survived, f.refuted, f.other, f.first_refuted, f.holds_for, f.fails_for
         FROM families f
         WHERE 1 = 1{where}
         ORDER BY f.catalogue, f.family
@@ -115,6 +127,27 @@ public sealed class ReportReads(StoreConnection store, IReadOnlyList<string> cat
         WHERE 1 = 1{where}
         ORDER BY k.name, j.source, j.line, j.id
         LIMIT {limit.ToString(CultureInfo.InvariantCulture)}
+        """;
+
+    private static string FirstFailuresQuery(string where) => FamilyReads.FirstFailuresQuery + where + " ORDER BY k.name, c.family, c.id";
+
+    private static string RefutationsQuery(string where, int limit) => $"""
+        SELECT k.name, c.id, c.label, c.lhs, c.rhs, c.field,
+               x.point AS x_point, x.lhs_value AS x_lhs, x.rhs_value AS x_rhs, x.entry AS x_entry, x.max_abs AS x_max_abs,
+               x.exhaustive AS x_exhaustive,
+               d.candidate_id AS d_id, d.difference AS d_difference, d.terms AS d_terms, d.total_degree AS d_total_degree,
+               d.terms_estimated AS d_terms_estimated
+        FROM candidate c JOIN catalogue k ON k.id = c.catalogue_id JOIN result r ON r.candidate_id = c.id
+             LEFT JOIN counterexamples x ON x.candidate_id = c.id
+             LEFT JOIN differences d ON d.candidate_id = c.id
+        WHERE r.state = '{ResultStates.Refuted}'{where}
+        ORDER BY k.name, c.position, c.id
+        LIMIT {limit.ToString(CultureInfo.InvariantCulture)}
+        """;
+
+    private static string RefutationsCountQuery(string where) => $"""
+        SELECT COUNT(*) AS n FROM candidate c JOIN catalogue k ON k.id = c.catalogue_id JOIN result r ON r.candidate_id = c.id
+        WHERE r.state = '{ResultStates.Refuted}'{where}
         """;
 
     private static string RejectionsCountQuery(string where) =>
@@ -148,8 +181,29 @@ public sealed class ReportReads(StoreConnection store, IReadOnlyList<string> cat
     {
         var (condition, parameters) = ReadSql.In("f.catalogue", "c", catalogues);
         return ReadSql.Rows(store, FamiliesQuery(condition), parameters, r => new FamilySummary(r.Text("catalogue"), r.Text("family"),
-            r.Long("instances"), r.Long("survived"), r.Long("refuted"), r.Long("other"), r.NullableText("first_refuted")));
+            r.Long("instances"), r.Long("survived"), r.Long("refuted"), r.Long("other"), r.NullableText("first_refuted"))
+        {
+            HoldsFor = r.NullableText("holds_for"),
+            FailsFor = r.NullableText("fails_for"),
+        });
     }
+
+    /// <summary>Each family's first failing instances (first in parameter order; the first of these by id is the one) with their counterexample and difference.</summary>
+    public IReadOnlyList<(string Catalogue, string Family, FirstFailure Failure)> FirstFailures() =>
+        Rows(FirstFailuresQuery(_filter.Condition), FamilyReads.ReadFirstFailure);
+
+    /// <summary>Refuted candidates in catalogue order with where they fail, at most <paramref name="limit"/>.</summary>
+    public IReadOnlyList<RefutationSummary> Refutations(int limit) =>
+        Rows(RefutationsQuery(_filter.Condition, limit), r => new RefutationSummary(r.Text("name"), r.Long("id"), r.Text("label"), r.Text("lhs"),
+            r.Text("rhs"), r.Text("field"),
+            r.NullableText("x_point") is { } point
+                ? new StoredCounterexample(point, r.Text("x_lhs"), r.Text("x_rhs"), r.NullableText("x_entry"), r.Long("x_max_abs"), r.Long("x_exhaustive") != 0)
+                : null,
+            r.NullableLong("d_id") is null ? null
+                : new StoredDifference(r.NullableText("d_difference"), r.NullableLong("d_terms"),
+                    r.NullableLong("d_total_degree") is { } degree ? (int)degree : null, r.Long("d_terms_estimated") != 0)));
+
+    public long RefutationsTotal() => Rows(RefutationsCountQuery(_filter.Condition), r => r.Long("n"))[0];
 
     /// <summary>Family instances in parameter order, at most <paramref name="limit"/>.</summary>
     public IReadOnlyList<FamilyInstance> Instances(int limit) =>

@@ -137,6 +137,45 @@ public sealed class PostgresStoreTests : IDisposable
         Assert.Equal(Rows(StoreLocation.Sqlite(sqlite), sql), Rows(StoreLocation.PostgreSql(pg), sql));
     }
 
+    // Where refutations fail, shown from PostgreSQL as from SQLite: a family in words (Moser's circle problem, as above),
+    // the binomial theorem with its cross term dropped (lhs - rhs = 2xy, least counterexample x = y = 1: 4 against 2),
+    // in show, in every export format and in the report's queries.
+    [PostgresFact]
+    public void RefutationDetails_AreShownFromPostgresAsFromSqlite()
+    {
+        var pg = NewDatabase();
+        var sqlite = Path.Combine(_dir, "details.db");
+        var file = Path.Combine(_dir, "d.idq");
+        File.WriteAllText(file, "moser: sum(k in 0..4: binom(n-1, k)) = 2^(n-1) for n in 1..10\ndropped: (x+y)^2 = x^2 + y^2\ntwo: x^(m+n) = x^m*x^n + m*n for m in 0..1, n in 0..2\n");
+        var stores = new[] { new[] { "--db", sqlite }, new[] { "--postgres", pg } };
+        foreach (var store in stores)
+        {
+            Assert.Equal(0, Idq(["init", .. store]).Code);
+            Assert.Equal(0, Idq(["import", file, "--seed", "3", .. store]).Code);
+            Assert.Equal(0, Idq(["run", .. store]).Code);
+        }
+        var shown = stores.Select(store => Idq(["show", "moser", .. store]).Out).ToList();
+        Assert.Contains("holds for n = 1..5, fails for n = 6..10", shown[1]);
+        Assert.Contains("first failing  at n=6: fails: lhs = 31, rhs = 32", shown[1]);
+        Assert.Equal(shown[0], shown[1]);
+        foreach (var format in new[] { "jsonl", "csv", "md", "tex" })
+        {
+            foreach (var store in stores)
+            {
+                var exported = Idq(["export", "--state", "refuted", "--format", format, .. store]).Out;
+                Assert.Contains("fails at x = 1, y = 1: lhs = 4, rhs = 2", exported);
+                Assert.Contains("lhs - rhs = 2*x*y (1 term, total degree 2)", exported);
+                Assert.Contains("fails: lhs = 31, rhs = 32", exported);
+            }
+        }
+        var report = Idq("report", "--postgres", pg, "--out", Path.Combine(_dir, "details-report"));
+        Assert.True(report.Code == 0, report.Err);
+        var html = File.ReadAllText(Path.Combine(_dir, "details-report", "index.html"));
+        Assert.Contains("fails at x = 1, y = 1: lhs = 4, rhs = 2", html);
+        Assert.Contains("holds for n = 1..5, fails for n = 6..10", html);
+        Assert.Contains("data-row=\"1\" data-column=\"2\"", html);
+    }
+
     [PostgresFact]
     public void HandInsertedRows_ArePickedUpByTheNextRun()
     {

@@ -26,7 +26,15 @@ public class ReportPageTests
         [
             new FamilyInfo("cat" + Hostile, "fam" + Hostile, 3, 1, 2, 0, "n=1",
                 [new Instance("n=1", "refuted"), new Instance("n=2", "survived"), new Instance(Hostile, "refuted")]),
+            new FamilyInfo("cat" + Hostile, "grid" + Hostile, 2, 1, 1, 0, "m=0, r=0",
+                [new Instance("m=0, r=0", "refuted") { Values = ["0", "0"] }, new Instance("m=0, r=1", "survived") { Values = ["0", "1"] }])
+            {
+                Parameters = ["m", "r" + Hostile],
+                FirstFailure = "at m=0: " + Hostile,
+            },
         ],
+        Refutations = empty ? [] : [new RefutationInfo("cat" + Hostile, 9, "ref" + Hostile, Hostile, "fails at " + Hostile, Hostile, "lhs - rhs = " + Hostile)],
+        RefutationsTotal = empty ? 0 : 3,
         InstancesTruncated = false,
         Rejections = empty ? [] : [new RejectionInfo("cat", Hostile, 4, Hostile, Hostile)],
         RejectionsTotal = empty ? 0 : 1,
@@ -52,6 +60,33 @@ public class ReportPageTests
         Assert.Contains("Content-Security-Policy\" content=\"default-src 'none'", html);
         Assert.DoesNotContain("https://", ReportPage.Render(Some(empty: true), "s.db", "0.1.0", DateTime.UnixEpoch));
         Assert.DoesNotContain("http://", ReportPage.Render(Some(empty: true), "s.db", "0.1.0", DateTime.UnixEpoch));
+    }
+
+    [Fact]
+    public void TwoParameterFamily_IsAGrid_OneParameterFamily_AStrip_AndRefutationsSayWhereTheyFail()
+    {
+        var html = ReportPage.Render(Some(), "s.db", "0.1.0", DateTime.UnixEpoch);
+        Assert.Equal(2, Regex.Count(html, "data-chart=\"family\" data-state=\"\\w+\" data-row="));
+        Assert.Equal(3, Regex.Count(html, "data-chart=\"family\" data-state=\"\\w+\" x="));
+        Assert.Contains("holds for 1 of 2 instances, fails for 1", html);
+        Assert.Contains("data-table=\"refutations\"", html);
+        Assert.Contains("The first 1 of 3 refutations", html);
+        Assert.Contains("section id=\"refutations\"", html);
+        Assert.True(html.IndexOf("id=\"refutations\"", StringComparison.Ordinal) < html.IndexOf("id=\"rejections\"", StringComparison.Ordinal));
+    }
+
+    [Fact]
+    public void GridAxes_NeedTwoIntegerParameters_WithinTheLimit()
+    {
+        FamilyInfo Family(IReadOnlyList<string> parameters, params string[][] values) =>
+            new("c", "f", values.Length, 0, 0, values.Length, null, [.. values.Select(v => new Instance(string.Join(", ", v), "pending") { Values = v })]) { Parameters = parameters };
+        Assert.Equal((["-1", "2", "10"], ["0"]), ReportPage.GridAxes(Family(["m", "r"], ["10", "0"], ["-1", "0"], ["2", "0"])));
+        Assert.Null(ReportPage.GridAxes(Family(["n"], ["1"], ["2"])));
+        Assert.Null(ReportPage.GridAxes(Family(["m", "r"], ["1", "x"])));
+        Assert.Null(ReportPage.GridAxes(Family(["a", "b", "c"], ["1", "2", "3"])));
+        var wide = Enumerable.Range(0, ReportPage.MaxGridAxis + 1).Select(i => new[] { "0", i.ToString(System.Globalization.CultureInfo.InvariantCulture) }).ToArray();
+        Assert.Null(ReportPage.GridAxes(Family(["m", "r"], wide)));
+        Assert.NotNull(ReportPage.GridAxes(Family(["m", "r"], wide[..ReportPage.MaxGridAxis])));
     }
 
     [Fact]

@@ -87,4 +87,25 @@ public class SvgChartsTests
         Assert.Equal(5, Regex.Count(svg, $"data-state=\"refuted\" [^>]*fill=\"{SvgCharts.ColorOf("refuted")}\""));
         Assert.Contains("width=\"120\" height=\"36\"", svg); // 10 columns and 3 rows of 10 + 2 pixels
     }
+
+    [Fact]
+    public void Grid_HasOneSquarePerInstance_AtItsRowAndColumn_MarkedBeyondColour()
+    {
+        // rows m = 0..2, columns r = 0..1, the instance (m=2, r=1) missing: five squares and one empty outline
+        var cells = new List<GridCell>();
+        foreach (var m in new[] { "0", "1", "2" })
+            foreach (var r in new[] { "0", "1" })
+                if (!(m == "2" && r == "1")) cells.Add(new GridCell(m, r, $"m={m}, r={r}", m == r ? "refuted" : "survived"));
+        var svg = SvgCharts.Grid("family", "<fam>", "m", ["0", "1", "2"], "r", ["0", "1"], cells);
+        Assert.Equal(5, Regex.Count(svg, "class=\"mark\""));
+        Assert.Equal(1, Regex.Count(svg, "fill=\"none\""));
+        // squares of 18 + 2 pixels from the left margin max(40, ("m".Length + " = ".Length + "0".Length) * 7 + 8) = 43 and the top band of 34
+        Assert.Contains("data-state=\"refuted\" data-row=\"1\" data-column=\"1\" x=\"63\" y=\"54\" width=\"18\" height=\"18\"", svg);
+        Assert.Contains("data-state=\"survived\" data-row=\"2\" data-column=\"0\" x=\"43\" y=\"74\"", svg);
+        Assert.Equal(2, Regex.Count(svg, ">×</text>"));
+        Assert.Equal(3, Regex.Count(svg, ">✓</text>"));
+        Assert.Contains(">m = 2</text>", svg);
+        Assert.Contains("aria-label=\"&lt;fam&gt;\"", svg);
+        Assert.DoesNotContain("<fam>", svg);
+    }
 }
