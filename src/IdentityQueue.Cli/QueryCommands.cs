@@ -185,6 +185,7 @@ internal static class QueryCommands
                         .Concat(ResultStates.Values.Select(s => (object?)(c.States.TryGetValue(s, out var n) ? n : 0))).ToArray()).ToList();
                     WriteTable(output, new QueryResult(["catalogue", .. ResultStates.All], rows));
                     output.WriteLine($"throughput {rate * 60:F0} candidates settled in the last minute; {open} open" + (eta is { } e ? $", ETA {e:hh\\:mm\\:ss}" : ""));
+                    foreach (var f in OpenFamilySummary.Read(store)) output.WriteLine($"open-ended family {f.Family} ({f.Catalogue}): {f.Describe()}");
                     WriteWorkers(output, workers);
                 }
                 return ExitCodes.Success;

@@ -100,7 +100,9 @@ public sealed class WorkerSession : IDisposable
                 continue;
             }
             if (DateTime.UtcNow - lastReport >= reportEvery) { progress(counts); lastReport = DateTime.UtcNow; }
-            if (counts.Pending + counts.InFlight == 0 || cancellation.IsCancellationRequested) break;
+            if (cancellation.IsCancellationRequested) break;
+            // Settled, unless an open-ended family can still grow: its last chunk may have settled after Plan looked.
+            if (counts.Pending + counts.InFlight == 0 && store.GrowOpenFamilies() == 0) break;
             cancellation.WaitHandle.WaitOne(settings.PlanInterval);
         }
         _host.StopAsync(TimeSpan.FromSeconds(60)).GetAwaiter().GetResult();

@@ -98,6 +98,8 @@ internal sealed class FakeStore : IWorkSource, IOutcomeSink, IWorkerRegistry, IR
 
     public int EnsureResultRows() => 0;
 
+    public int GrowOpenFamilies() => 0;
+
     public PlannedWork TakePending(IReadOnlyList<WorkStage> stages, int max, Action<WorkStage, IReadOnlyList<long>>? beforeCommit = null)
     {
         lock (_gate)
