@@ -90,6 +90,8 @@ public sealed class WorkerSession : IDisposable
             {
                 planner.Plan();
                 counts = store.Counts();
+                // Settled, unless an open-ended family can still grow: its last chunk may have settled after Plan looked.
+                if (counts.Pending + counts.InFlight == 0 && store.GrowOpenFamilies() > 0) counts = store.Counts();
             }
             catch (Exception e) when (_shared && e is not OutOfMemoryException)
             {
@@ -100,9 +102,7 @@ public sealed class WorkerSession : IDisposable
                 continue;
             }
             if (DateTime.UtcNow - lastReport >= reportEvery) { progress(counts); lastReport = DateTime.UtcNow; }
-            if (cancellation.IsCancellationRequested) break;
-            // Settled, unless an open-ended family can still grow: its last chunk may have settled after Plan looked.
-            if (counts.Pending + counts.InFlight == 0 && store.GrowOpenFamilies() == 0) break;
+            if (counts.Pending + counts.InFlight == 0 || cancellation.IsCancellationRequested) break;
             cancellation.WaitHandle.WaitOne(settings.PlanInterval);
         }
         _host.StopAsync(TimeSpan.FromSeconds(60)).GetAwaiter().GetResult();
