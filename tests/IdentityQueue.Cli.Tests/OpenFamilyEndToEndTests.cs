@@ -57,6 +57,10 @@ public sealed class OpenFamilyEndToEndTests : IDisposable
         var status = Idq("status", "--db", Db);
         Assert.Contains("open-ended family regions (open): 8 instances, holds for 1..5, fails for 6..8: first refuted at n = 6", status.Out);
         Assert.Contains("open-ended family pascal (open): 20 instances, holds for 0..19: budget of 20 instances reached", status.Out);
+        using var json = System.Text.Json.JsonDocument.Parse(Idq("status", "--db", Db, "--json").Out);
+        var regions = json.RootElement.GetProperty("openFamilies").EnumerateArray().Single(f => f.GetProperty("family").GetString() == "regions");
+        Assert.Equal(("1..5", "6..8", "first refuted at n = 6", 20),
+            (regions.GetProperty("holdsFor").GetString(), regions.GetProperty("failsFor").GetString(), regions.GetProperty("stopped").GetString(), regions.GetProperty("budget").GetInt32()));
     }
 
     [Fact]
