@@ -4,6 +4,7 @@ using IdentityQueue.Algebra;
 using IdentityQueue.Algebra.Compile;
 using IdentityQueue.Algebra.Syntax;
 using IdentityQueue.Screening;
+using IdentityQueue.Screening.Catalogues;
 using IdentityQueue.Screening.Counterexamples;
 
 namespace IdentityQueue.Cli;
@@ -149,12 +150,16 @@ public static class CheckCommand
             if (!field.Success) return Invalid(over, field.Error!, json, output, error, "--over");
             entry = entry with { Field = field.Value };
         }
-        var family = FamilyExpander.Expand(entry, options.Limits);
+        // An open-ended family ('for n >= A') is screened in increasing n, a chunk at a time, until the chunk of its first
+        // refuted instance or the default open family budget.
+        var open = OpenFamilyBudget.Default;
+        var family = FamilyExpander.Expand(entry, options.Limits, entry.OpenParameter is null ? 1 : open.Instances);
         if (!family.Success) return Invalid(text, family.Error!, json, output, error);
 
         var outcomes = new List<InstanceOutcome>();
         foreach (var parameters in family.Instances)
         {
+            if (entry.OpenParameter is not null && outcomes.Count % open.Chunk == 0 && outcomes.Any(o => o.Verdict == Verdict.Refuted)) break;
             var compiled = IdentityCompiler.Compile(entry, parameters, options.Limits);
             if (!compiled.Success)
             {

@@ -1,4 +1,5 @@
 using System.CommandLine;
+using IdentityQueue.Screening.Catalogues;
 using IdentityQueue.Store;
 using IdentityQueue.Store.Import;
 
@@ -18,13 +19,19 @@ public static class ImportCommand
         };
         var catalogue = new Option<string?>("--catalogue") { HelpName = "NAME", Description = "The catalogue's name (default: the file name without its extension); one file only." };
         var seed = new Option<long?>("--seed") { HelpName = "S", Description = "The catalogue's run seed, 0 to 2^63-1 (default: a random one, stored, so runs can be repeated)." };
+        var openBudget = new Option<int?>("--open-budget")
+        {
+            HelpName = "N",
+            Description = $"The open family budget: an open-ended family ('for n >= 1') is screened in increasing n, {OpenFamilyBudget.DefaultChunk} instances at a time, " +
+                $"until its first refuted instance or N instances (default {OpenFamilyBudget.DefaultInstances}); stored with the family.",
+        };
         var store = new StoreOptions();
         var command = new Command("import", "Load catalogue files into the store. Every good entry is imported; a bad one is recorded in the\n" +
             "table 'rejection' with its line, raw text and reason, and does not stop the import. A file whose catalogue name\n" +
             "is already in the store is refused (exit 2): give another name with --catalogue.\n\n" +
-            "Examples:\n  idq import identities.idq\n  idq import batch.jsonl --catalogue batch-2 --seed 42")
+            "Examples:\n  idq import identities.idq\n  idq import batch.jsonl --catalogue batch-2 --seed 42\n  idq import moser.idq --open-budget 200")
         {
-            files, catalogue, seed,
+            files, catalogue, seed, openBudget,
         };
         store.AddTo(command);
         command.SetAction(parse =>
@@ -36,9 +43,20 @@ public static class ImportCommand
                 error.WriteLine("idq import: --catalogue names one catalogue; give it with one file at a time");
                 return ExitCodes.BadInput;
             }
+            OpenFamilyBudget? budget = null;
+            if (parse.GetValue(openBudget) is int instances)
+            {
+                var made = OpenFamilyBudget.Create(instances);
+                if (!made.Success)
+                {
+                    error.WriteLine($"idq import: --open-budget: {made.Error.Message}");
+                    return ExitCodes.BadInput;
+                }
+                budget = made.Value;
+            }
             using var connection = store.OpenCurrent(parse, "import", error);
             if (connection is null) return ExitCodes.BadInput;
-            return Execute(connection, paths, new ImportOptions { CatalogueName = name, Seed = parse.GetValue(seed) }, output, error);
+            return Execute(connection, paths, new ImportOptions { CatalogueName = name, Seed = parse.GetValue(seed), OpenBudget = budget }, output, error);
         });
         return command;
     }

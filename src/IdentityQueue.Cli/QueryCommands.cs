@@ -178,13 +178,15 @@ internal static class QueryCommands
                 var byCatalogue = counts.ByCatalogue();
                 var open = counts.Open;
                 var eta = rate > 0 && open > 0 ? TimeSpan.FromSeconds(open / rate) : (TimeSpan?)null;
-                if (parse.GetValue(json)) WriteStatusJson(output, byCatalogue, rate, open, eta, workers);
+                var openFamilies = OpenFamilySummary.Read(store);
+                if (parse.GetValue(json)) WriteStatusJson(output, byCatalogue, rate, open, eta, workers, openFamilies);
                 else
                 {
                     var rows = byCatalogue.Select(c => new object?[] { c.Catalogue }
                         .Concat(ResultStates.Values.Select(s => (object?)(c.States.TryGetValue(s, out var n) ? n : 0))).ToArray()).ToList();
                     WriteTable(output, new QueryResult(["catalogue", .. ResultStates.All], rows));
                     output.WriteLine($"throughput {rate * 60:F0} candidates settled in the last minute; {open} open" + (eta is { } e ? $", ETA {e:hh\\:mm\\:ss}" : ""));
+                    foreach (var f in openFamilies) output.WriteLine($"open-ended family {f.Family} ({f.Catalogue}): {f.Describe()}");
                     WriteWorkers(output, workers);
                 }
                 return ExitCodes.Success;
@@ -233,7 +235,7 @@ internal static class QueryCommands
 
     private static void WriteStatusJson(TextWriter output, IReadOnlyList<(string Catalogue, IReadOnlyDictionary<ResultState, long> States)> byCatalogue,
         double rate, long open, TimeSpan? eta,
-        IReadOnlyList<WorkerInfo> workers)
+        IReadOnlyList<WorkerInfo> workers, IReadOnlyList<OpenFamilySummary> openFamilies)
     {
         using var stream = new MemoryStream();
         using (var w = new Utf8JsonWriter(stream, new JsonWriterOptions { Indented = true }))
@@ -274,6 +276,21 @@ internal static class QueryCommands
                     w.WriteEndObject();
                 }
                 else w.WriteNull("longestOn");
+                w.WriteEndObject();
+            }
+            w.WriteEndArray();
+            // Open-ended families (for n >= A): how far each holds and why it stopped (null while it can still grow).
+            w.WriteStartArray("openFamilies");
+            foreach (var f in openFamilies)
+            {
+                w.WriteStartObject();
+                w.WriteString("catalogue", f.Catalogue);
+                w.WriteString("family", f.Family);
+                w.WriteNumber("instances", f.Instances);
+                w.WriteNumber("budget", f.Budget);
+                if (f.HoldsFor is { } holds) w.WriteString("holdsFor", holds); else w.WriteNull("holdsFor");
+                if (f.FailsFor is { } fails) w.WriteString("failsFor", fails); else w.WriteNull("failsFor");
+                if (f.Stop is { } stop) w.WriteString("stopped", stop); else w.WriteNull("stopped");
                 w.WriteEndObject();
             }
             w.WriteEndArray();

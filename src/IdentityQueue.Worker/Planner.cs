@@ -8,7 +8,8 @@ namespace IdentityQueue.Worker;
 /// <summary>
 /// Keeps the queue fed: takes pending candidates of the earliest stage (<see cref="ScreeningPolicy.Stages"/>) from the work
 /// source and enqueues them in chunks, so that every candidate's cheap first trial runs before survivors move on to larger
-/// fields. Thread-safe through the work source.
+/// fields; open-ended families grow here (<see cref="IWorkSource.GrowOpenFamilies"/>), under <c>idq run</c> and
+/// <c>idq worker</c> alike. Thread-safe through the work source.
 /// </summary>
 public sealed class Planner(IWorkSource store, IWorkerRegistry registry, IBackgroundJobClient jobs, WorkerSettings settings, HostPlan plan, ILogger<Planner> log)
 {
@@ -21,6 +22,8 @@ public sealed class Planner(IWorkSource store, IWorkerRegistry registry, IBackgr
     /// </summary>
     public int Plan(bool all = false)
     {
+        // Open-ended families whose last chunk is settled without a refutation grow first, so their next chunk is planned now.
+        store.GrowOpenFamilies();
         var counts = store.Counts();
         if (counts.Pending == 0 && counts.InFlight == 0 && store.EnsureResultRows() > 0) counts = store.Counts();
         // On a shared store every live worker process counts: the queue is theirs together.

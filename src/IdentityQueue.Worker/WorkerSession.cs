@@ -90,6 +90,8 @@ public sealed class WorkerSession : IDisposable
             {
                 planner.Plan();
                 counts = store.Counts();
+                // Settled, unless an open-ended family can still grow: its last chunk may have settled after Plan looked.
+                if (counts.Pending + counts.InFlight == 0 && store.GrowOpenFamilies() > 0) counts = store.Counts();
             }
             catch (Exception e) when (_shared && e is not OutOfMemoryException)
             {

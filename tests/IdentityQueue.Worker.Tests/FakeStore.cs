@@ -98,6 +98,11 @@ internal sealed class FakeStore : IWorkSource, IOutcomeSink, IWorkerRegistry, IR
 
     public int EnsureResultRows() => 0;
 
+    /// <summary>What growing the open-ended families does (the test's choice); none by default.</summary>
+    public Func<FakeStore, int>? Grow { get; set; }
+
+    public int GrowOpenFamilies() => Grow?.Invoke(this) ?? 0;
+
     public PlannedWork TakePending(IReadOnlyList<WorkStage> stages, int max, Action<WorkStage, IReadOnlyList<long>>? beforeCommit = null)
     {
         lock (_gate)

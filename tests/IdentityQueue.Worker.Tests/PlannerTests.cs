@@ -64,6 +64,24 @@ public sealed class PlannerTests
     }
 
     [Fact]
+    public void AnOpenFamilysNextChunkIsPlannedInTheRoundThatGrowsIt()
+    {
+        // IWorkSource.GrowOpenFamilies runs before the planner counts and takes, so a chunk it adds is enqueued at once.
+        var store = Some.Store();
+        var jobs = new RecordingJobs();
+        var planner = Some.Planner(store, jobs, Some.Settings(chunk: 100));
+        var grown = new List<long>();
+        store.Grow = s =>
+        {
+            if (grown.Count > 0) return 0;
+            grown.AddRange(s.Add(Some.False));
+            return grown.Count;
+        };
+        Assert.Equal(8, planner.Plan(all: true)); // the seven candidates and the grown one
+        Assert.Contains(grown.Single(), jobs.Chunks.SelectMany(c => c.Ids));
+    }
+
+    [Fact]
     public void OnASharedStoreEveryLiveWorkerThreadCounts()
     {
         // A shared store: room is counted over the live threads of every worker process (the registry), not this one's.

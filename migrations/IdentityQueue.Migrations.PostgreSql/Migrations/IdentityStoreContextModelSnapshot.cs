@@ -231,6 +231,55 @@ namespace IdentityQueue.Migrations.PostgreSql.Migrations
                     b.ToTable("equivalence", (string)null);
                 });
 
+            modelBuilder.Entity("IdentityQueue.Store.Schema.OpenFamilyRow", b =>
+                {
+                    b.Property<long>("Id")
+                        .ValueGeneratedOnAdd()
+                        .HasColumnType("bigint")
+                        .HasColumnName("id");
+
+                    NpgsqlPropertyBuilderExtensions.UseIdentityByDefaultColumn(b.Property<long>("Id"));
+
+                    b.Property<int>("Budget")
+                        .HasColumnType("integer")
+                        .HasColumnName("budget");
+
+                    b.Property<long>("CatalogueId")
+                        .HasColumnType("bigint")
+                        .HasColumnName("catalogue_id");
+
+                    b.Property<int>("Chunk")
+                        .HasColumnType("integer")
+                        .HasColumnName("chunk");
+
+                    b.Property<string>("Family")
+                        .IsRequired()
+                        .HasColumnType("text")
+                        .HasColumnName("family");
+
+                    b.Property<long>("FirstValue")
+                        .HasColumnType("bigint")
+                        .HasColumnName("first_value");
+
+                    b.Property<int>("Made")
+                        .HasColumnType("integer")
+                        .HasColumnName("made");
+
+                    b.Property<string>("Parameter")
+                        .IsRequired()
+                        .HasColumnType("text")
+                        .HasColumnName("parameter");
+
+                    b.HasKey("Id")
+                        .HasName("pk_open_family");
+
+                    b.HasIndex("CatalogueId", "Family")
+                        .IsUnique()
+                        .HasDatabaseName("ux_open_family_catalogue_family");
+
+                    b.ToTable("open_family", (string)null);
+                });
+
             modelBuilder.Entity("IdentityQueue.Store.Schema.RecoveredDifferenceRow", b =>
                 {
                     b.Property<long>("CandidateId")
@@ -570,6 +619,16 @@ namespace IdentityQueue.Migrations.PostgreSql.Migrations
                         .OnDelete(DeleteBehavior.Cascade)
                         .IsRequired()
                         .HasConstraintName("fk_equivalence_group");
+                });
+
+            modelBuilder.Entity("IdentityQueue.Store.Schema.OpenFamilyRow", b =>
+                {
+                    b.HasOne("IdentityQueue.Store.Schema.CatalogueRow", null)
+                        .WithMany()
+                        .HasForeignKey("CatalogueId")
+                        .OnDelete(DeleteBehavior.Cascade)
+                        .IsRequired()
+                        .HasConstraintName("fk_open_family_catalogue");
                 });
 
             modelBuilder.Entity("IdentityQueue.Store.Schema.RecoveredDifferenceRow", b =>

@@ -222,6 +222,53 @@ namespace IdentityQueue.Migrations.Sqlite.Migrations
                     b.ToTable("equivalence", (string)null);
                 });
 
+            modelBuilder.Entity("IdentityQueue.Store.Schema.OpenFamilyRow", b =>
+                {
+                    b.Property<long>("Id")
+                        .ValueGeneratedOnAdd()
+                        .HasColumnType("INTEGER")
+                        .HasColumnName("id");
+
+                    b.Property<int>("Budget")
+                        .HasColumnType("INTEGER")
+                        .HasColumnName("budget");
+
+                    b.Property<long>("CatalogueId")
+                        .HasColumnType("INTEGER")
+                        .HasColumnName("catalogue_id");
+
+                    b.Property<int>("Chunk")
+                        .HasColumnType("INTEGER")
+                        .HasColumnName("chunk");
+
+                    b.Property<string>("Family")
+                        .IsRequired()
+                        .HasColumnType("TEXT")
+                        .HasColumnName("family");
+
+                    b.Property<long>("FirstValue")
+                        .HasColumnType("INTEGER")
+                        .HasColumnName("first_value");
+
+                    b.Property<int>("Made")
+                        .HasColumnType("INTEGER")
+                        .HasColumnName("made");
+
+                    b.Property<string>("Parameter")
+                        .IsRequired()
+                        .HasColumnType("TEXT")
+                        .HasColumnName("parameter");
+
+                    b.HasKey("Id")
+                        .HasName("pk_open_family");
+
+                    b.HasIndex("CatalogueId", "Family")
+                        .IsUnique()
+                        .HasDatabaseName("ux_open_family_catalogue_family");
+
+                    b.ToTable("open_family", (string)null);
+                });
+
             modelBuilder.Entity("IdentityQueue.Store.Schema.RecoveredDifferenceRow", b =>
                 {
                     b.Property<long>("CandidateId")
@@ -557,6 +604,16 @@ namespace IdentityQueue.Migrations.Sqlite.Migrations
                         .OnDelete(DeleteBehavior.Cascade)
                         .IsRequired()
                         .HasConstraintName("fk_equivalence_group");
+                });
+
+            modelBuilder.Entity("IdentityQueue.Store.Schema.OpenFamilyRow", b =>
+                {
+                    b.HasOne("IdentityQueue.Store.Schema.CatalogueRow", null)
+                        .WithMany()
+                        .HasForeignKey("CatalogueId")
+                        .OnDelete(DeleteBehavior.Cascade)
+                        .IsRequired()
+                        .HasConstraintName("fk_open_family_catalogue");
                 });
 
             modelBuilder.Entity("IdentityQueue.Store.Schema.RecoveredDifferenceRow", b =>

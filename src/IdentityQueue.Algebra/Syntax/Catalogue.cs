@@ -98,12 +98,17 @@ public sealed record FieldSpec
 
 /// <summary>
 /// A family parameter <c>NAME in FROM..TO</c>, or <c>NAME prime in FROM..TO</c> for the primes of the range
-/// (<see cref="PrimesOnly"/>); the ends may use earlier parameters of the same line.
+/// (<see cref="PrimesOnly"/>); the ends may use earlier parameters of the same line. An open-ended parameter
+/// <c>NAME &gt;= FROM</c> (<see cref="OpenEnded"/>) has no end: <see cref="To"/> is then <see cref="From"/> again and
+/// means nothing; its instances FROM, FROM + 1, … are made a chunk at a time by whoever screens the family.
 /// </summary>
 public sealed record ParameterRange(string Name, Expr From, Expr To, SourcePosition Position)
 {
     /// <summary>Only the primes of the range are instances.</summary>
     public bool PrimesOnly { get; init; }
+
+    /// <summary>True for <c>NAME &gt;= FROM</c>: the family is screened in increasing NAME with no written end.</summary>
+    public bool OpenEnded { get; init; }
 }
 
 /// <summary>One parsed catalogue line: <c>[label:] LHS = RHS [over FIELD] [for ...]</c>. Immutable.</summary>
@@ -117,6 +122,9 @@ public sealed record IdentityEntry(
     string Text)
 {
     public bool IsFamily => Parameters.Count > 0;
+
+    /// <summary>The open-ended parameter (<c>for n &gt;= A</c>, then the only parameter), or null.</summary>
+    public ParameterRange? OpenParameter => Parameters.Count == 1 && Parameters[0].OpenEnded ? Parameters[0] : null;
 
     /// <summary>
     /// Where the left side is written in its catalogue line: in <see cref="Text"/> for a parsed line; for a stored

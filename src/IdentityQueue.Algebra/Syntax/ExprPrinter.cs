@@ -38,7 +38,7 @@ public sealed class ExprPrinter : IExprVisitor<StringBuilder>
         return parsed.Success ? Print(parsed.Value) : side;
     }
 
-    /// <summary>The catalogue line of an entry: <c>label: LHS = RHS over FIELD for n in A..B, …</c> (no <c>over</c> for Q).</summary>
+    /// <summary>The catalogue line of an entry: <c>label: LHS = RHS over FIELD for n in A..B, …</c> (or <c>for n &gt;= A</c>; no <c>over</c> for Q).</summary>
     public static string Print(IdentityEntry entry)
     {
         var output = new StringBuilder();
@@ -52,7 +52,12 @@ public sealed class ExprPrinter : IExprVisitor<StringBuilder>
         {
             output.Append(i == 0 ? " for " : ", ");
             var range = entry.Parameters[i];
-            printer.WriteRange(range.PrimesOnly ? $"{range.Name} prime" : range.Name, range.From, range.To);
+            if (range.OpenEnded)
+            {
+                output.Append(range.Name).Append(" >= ");
+                range.From.Accept(printer);
+            }
+            else printer.WriteRange(range.PrimesOnly ? $"{range.Name} prime" : range.Name, range.From, range.To);
         }
         return output.ToString();
     }

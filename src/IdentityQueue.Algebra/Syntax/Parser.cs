@@ -101,6 +101,11 @@ internal sealed class Parser
             _c.Report(field.ParameterPosition, SyntaxMessages.FieldParameterNotInFamily(p));
             return null;
         }
+        if (field?.CharacteristicParameter is { } q && parameters?.Any(r => r.Name == q && r.OpenEnded) == true)
+        {
+            _c.Report(field.ParameterPosition, SyntaxMessages.OpenParameterIsField(q));
+            return null;
+        }
         return new IdentityEntry(label, left, right, field ?? FieldSpec.Rationals,
             parameters is null ? [] : parameters.ToArray(), _c.Line, _c.Text)
         { LeftSpan = leftSpan, RightSpan = rightSpan, UsesDefinitions = _e.ExpandedNodes > 0 };
@@ -207,6 +212,20 @@ internal sealed class Parser
             var primes = _c.Current.IsWord(_c.Text, "prime");
             if (primes) _c.Advance();
 
+            if (_c.Current.Kind == TokenKind.GreaterEqual)
+            {
+                // An open-ended parameter, 'n >= A': alone in its line, and not a prime-only one.
+                var atLeast = _c.Current;
+                if (primes) return _c.Fail<List<ParameterRange>>(atLeast, SyntaxMessages.OpenParameterPrime(name));
+                if (ranges.Count > 0) return _c.Fail<List<ParameterRange>>(nameToken, SyntaxMessages.OpenParameterNotAlone(name));
+                _c.Advance();
+                var start = _e.ParseExpression(0, out _);
+                if (start is null) return null;
+                ranges.Add(new ParameterRange(name, start, start, _c.At(nameToken)) { OpenEnded = true });
+                if (_c.Current.Kind == TokenKind.Comma) return _c.Fail<List<ParameterRange>>(_c.Current, SyntaxMessages.OpenParameterNotAlone(name));
+                return ranges;
+            }
+            if (ranges.Count > 0 && ranges[0].OpenEnded) return _c.Fail<List<ParameterRange>>(nameToken, SyntaxMessages.OpenParameterNotAlone(ranges[0].Name));
             if (!_e.ParseRange(name, 0, out var from, out var to, out _)) return null;
             ranges.Add(new ParameterRange(name, from, to, _c.At(nameToken)) { PrimesOnly = primes });
 

@@ -282,6 +282,15 @@ public static class SyntaxMessages
     public static string ReservedAsParameter(string name) =>
         $"'{name}' is a reserved word and cannot name a parameter";
 
+    public static string OpenParameterNotAlone(string name) =>
+        $"the open-ended parameter '{name} >= …' must be the only parameter of its line; give the others ranges in a line of their own, or give '{name}' a range 'in A..B'";
+
+    public static string OpenParameterPrime(string name) =>
+        $"an open-ended parameter cannot take only primes ('{name} prime >= …'); write '{name} prime in A..B'";
+
+    public static string OpenParameterIsField(string name) =>
+        $"the field GF({name}) cannot use the open-ended parameter '{name}'; write 'for {name} prime in A..B'";
+
     public static string DuplicateParameter(string name) =>
         $"parameter '{name}' is given twice";
 

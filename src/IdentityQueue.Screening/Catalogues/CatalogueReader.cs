@@ -29,8 +29,15 @@ public readonly record struct CatalogueSides(string Lhs, string Rhs, int? LhsCol
 }
 
 /// <summary>
+/// An open-ended family (<c>for n &gt;= A</c>): its parameter, its first value A, and the open family budget it was read
+/// with; the entry's instances are its first chunk.
+/// </summary>
+public sealed record OpenFamily(string Parameter, BigInteger First, OpenFamilyBudget Budget);
+
+/// <summary>
 /// What one catalogue entry gives: the label written in the file (or null), the family name (the entry's own label, or
-/// <c>FILE:LINE</c>) for a family, the sides as stored, the field, and one instance per candidate.
+/// <c>FILE:LINE</c>) for a family, the sides as stored, the field, and one instance per candidate (for an open-ended
+/// family, the first chunk: <see cref="Open"/>).
 /// </summary>
 public sealed record CatalogueEntry(string? Label, string? Family, CatalogueSides Sides, string Field, IReadOnlyList<CatalogueInstance> Instances)
 {
@@ -38,9 +45,24 @@ public sealed record CatalogueEntry(string? Label, string? Family, CatalogueSide
 
     public string Rhs => Sides.Rhs;
 
+    /// <summary>The open-ended family's parameter and budget; null for a closed family or a plain entry.</summary>
+    public OpenFamily? Open { get; init; }
+
+    /// <summary>The label of instance <paramref name="parameters"/> of family <paramref name="family"/>: <c>FAMILY[n=3,k=1]</c>.</summary>
+    public static string InstanceLabel(string family, IReadOnlyList<KeyValuePair<string, BigInteger>> parameters)
+    {
+        var label = new StringBuilder(family).Append('[');
+        for (var i = 0; i < parameters.Count; i++)
+        {
+            if (i > 0) label.Append(',');
+            label.Append(parameters[i].Key).Append('=').Append(parameters[i].Value.ToString(CultureInfo.InvariantCulture));
+        }
+        return label.Append(']').ToString();
+    }
+
     public bool Equals(CatalogueEntry? other) =>
         other is not null && Label == other.Label && Family == other.Family && Sides == other.Sides
-        && Field == other.Field && Instances.SequenceEqual(other.Instances);
+        && Field == other.Field && Instances.SequenceEqual(other.Instances) && Open == other.Open;
 
     public override int GetHashCode() => HashCode.Combine(Label, Sides, Field, Instances.Count);
 }
@@ -65,13 +87,16 @@ public sealed class CatalogueReader
     private readonly IEntryReader _reader;
     private readonly string _fileName;
     private readonly Limits _limits;
+    private readonly OpenFamilyBudget _open;
     private readonly Dictionary<string, int> _labels = new(StringComparer.Ordinal); // a label given in the file → the line it is on
 
     /// <param name="limits">The limits every line is checked against.</param>
     /// <param name="path">The file's name decides the format (by extension) and the labels of unlabelled entries (<c>FILE:LINE</c>).</param>
-    public CatalogueReader(string path, Limits limits)
+    /// <param name="open">The open family budget of the file's open-ended families (default <see cref="OpenFamilyBudget.Default"/>).</param>
+    public CatalogueReader(string path, Limits limits, OpenFamilyBudget? open = null)
     {
         _limits = limits;
+        _open = open ?? OpenFamilyBudget.Default;
         _fileName = Path.GetFileName(path);
         _reader = Path.GetExtension(path).ToLowerInvariant() switch
         {
@@ -102,6 +127,8 @@ public sealed class CatalogueReader
         }
     }
 
+    private static readonly BigInteger OpenFamilyLimit = BigInteger.One << 62;
+
     /// <summary>An instance whose field GF(p) has a p that is not prime (or too large): the entry's rejection.</summary>
     private sealed class FieldBindingException(string message) : Exception(message);
 
@@ -116,7 +143,7 @@ public sealed class CatalogueReader
             var read = _reader.Read(line.Text!, line.Number);
             if (!read.Success) return Result<CatalogueEntry?>.Fail(read.Error.ToString());
             if (read.Value is not { Entry: var entry } made) return Result<CatalogueEntry?>.Ok(null);
-            var expansion = FamilyExpander.Expand(entry, _limits);
+            var expansion = FamilyExpander.Expand(entry, _limits, _open.NextChunk(0));
             if (!expansion.Success) return Result<CatalogueEntry?>.Fail(made.Describe(expansion.Error!));
             var sides = CatalogueSides.Of(entry, made.Built is null);
             var field = entry.Field.ToString();
@@ -125,16 +152,19 @@ public sealed class CatalogueReader
                 return Result<CatalogueEntry?>.Ok(new CatalogueEntry(entry.Label, null, sides, field, [new CatalogueInstance(ownLabel, [], null)]));
             var names = entry.Parameters.Select(p => p.Name).ToList();
             var instances = new List<CatalogueInstance>(expansion.Instances.Count);
-            var label = new StringBuilder();
+            OpenFamily? open = null;
+            if (entry.OpenParameter is { } parameter)
+            {
+                // Later chunks count on from here in the store's 64-bit integers.
+                var first = expansion.Instances[0][parameter.Name];
+                if (BigInteger.Abs(first) > OpenFamilyLimit)
+                    return Result<CatalogueEntry?>.Fail(made.Describe(new Diagnostic(parameter.Position,
+                        $"an open-ended family starts at most 2^62 away from 0; '{parameter.Name}' starts at {first}")));
+                open = new OpenFamily(parameter.Name, first, _open);
+            }
             foreach (var assignment in expansion.Instances)
             {
                 var ordered = names.Select(n => new KeyValuePair<string, BigInteger>(n, assignment[n])).ToList();
-                label.Clear().Append(ownLabel).Append('[');
-                for (var i = 0; i < ordered.Count; i++)
-                {
-                    if (i > 0) label.Append(',');
-                    label.Append(ordered[i].Key).Append('=').Append(ordered[i].Value.ToString(CultureInfo.InvariantCulture));
-                }
                 // GF(p) of a family parameter: each instance stores its own field; one that is not prime is refused here.
                 string? own = null;
                 if (entry.Field.CharacteristicParameter is not null)
@@ -142,9 +172,9 @@ public sealed class CatalogueReader
                     var bound = entry.Field.Bind(assignment, _limits.MaxFieldBits);
                     own = bound.Success ? bound.Value.ToString() : throw new FieldBindingException(made.Describe(bound.Error));
                 }
-                instances.Add(new CatalogueInstance(label.Append(']').ToString(), ordered, own));
+                instances.Add(new CatalogueInstance(CatalogueEntry.InstanceLabel(ownLabel, ordered), ordered, own));
             }
-            return Result<CatalogueEntry?>.Ok(new CatalogueEntry(entry.Label, ownLabel, sides, field, instances));
+            return Result<CatalogueEntry?>.Ok(new CatalogueEntry(entry.Label, ownLabel, sides, field, instances) { Open = open });
         }
         catch (FieldBindingException e)
         {

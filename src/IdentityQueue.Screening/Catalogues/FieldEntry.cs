@@ -3,8 +3,11 @@ using IdentityQueue.Algebra.Syntax;
 
 namespace IdentityQueue.Screening.Catalogues;
 
-/// <summary>The fields of a structured entry (a <c>.jsonl</c> object or a <c>.csv</c> row), before they become a catalogue line.</summary>
-public sealed record FieldEntry(string? Label, string? Lhs, string? Rhs, string? Identity, string? Over, IReadOnlyList<(string Name, string From, string To)>? Ranges, string? For)
+/// <summary>
+/// The fields of a structured entry (a <c>.jsonl</c> object or a <c>.csv</c> row), before they become a catalogue line; a
+/// range with no end (<c>"n": [1, null]</c>) is the open-ended <c>n &gt;= 1</c>.
+/// </summary>
+public sealed record FieldEntry(string? Label, string? Lhs, string? Rhs, string? Identity, string? Over, IReadOnlyList<(string Name, string From, string? To)>? Ranges, string? For)
 {
     /// <summary>
     /// Builds the catalogue line and parses it. A field may not carry what belongs to another (a '#' that would comment
@@ -37,7 +40,9 @@ public sealed record FieldEntry(string? Label, string? Lhs, string? Rhs, string?
                 var (name, from, to) = Ranges[i];
                 if (!Identifiers.IsIdentifier(name))
                     return Reject($"line {line}: \"{name}\" in \"for\" is not a parameter name");
-                built.Literal(i == 0 ? " for " : ", ").Literal(name).Literal(" in ").Field($"for.{name}", from).Literal("..").Field($"for.{name}", to);
+                built.Literal(i == 0 ? " for " : ", ").Literal(name);
+                if (to is null) built.Literal(" >= ").Field($"for.{name}", from);
+                else built.Literal(" in ").Field($"for.{name}", from).Literal("..").Field($"for.{name}", to);
             }
         }
         else if (!string.IsNullOrWhiteSpace(For)) built.Literal(" for ").Field("for", For);
@@ -83,7 +88,7 @@ public sealed record FieldEntry(string? Label, string? Lhs, string? Rhs, string?
             foreach (var (name, from, to) in Ranges)
             {
                 yield return ($"for.{name}", from);
-                yield return ($"for.{name}", to);
+                if (to is not null) yield return ($"for.{name}", to);
             }
     }
 

@@ -6,7 +6,8 @@ namespace IdentityQueue.Screening.Catalogues;
 /// <summary>
 /// The <c>.jsonl</c> format (SPEC §3): one JSON object per line, <c>{"label": …, "lhs": …, "rhs": …, "over": "Q",
 /// "for": {"n": [2, 12]}}</c>, or <c>"identity": "LHS = RHS"</c> instead of lhs and rhs. A range end is a JSON integer or a
-/// string holding an expression in earlier parameters; <c>"for"</c> may also be a string, <c>"n in 2..12"</c>.
+/// string holding an expression in earlier parameters, and a null end makes the open-ended family <c>n &gt;= FROM</c>
+/// (<c>"for": {"n": [1, null]}</c>); <c>"for"</c> may also be a string, <c>"n in 2..12"</c> or <c>"n &gt;= 1"</c>.
 /// Blank lines are skipped; unknown keys are rejected, so a misspelt key is not silently ignored.
 /// </summary>
 public sealed class JsonlEntryReader(Limits limits) : IEntryReader
@@ -51,7 +52,7 @@ public sealed class JsonlEntryReader(Limits limits) : IEntryReader
             var identity = String(values, "identity", line, ref error);
             var over = String(values, "over", line, ref error);
             if (error is not null) return Reject(error);
-            List<(string, string, string)>? ranges = null;
+            List<(string, string, string?)>? ranges = null;
             string? forText = null;
             if (values.TryGetValue("for", out var @for))
             {
@@ -66,9 +67,10 @@ public sealed class JsonlEntryReader(Limits limits) : IEntryReader
                             if (range.Value.ValueKind != JsonValueKind.Array || range.Value.GetArrayLength() != 2)
                                 return Reject($"line {line}: \"for\": \"{range.Name}\" must be a range [FROM, TO], found {Kind(range.Value)}");
                             var from = End(range.Value[0]);
-                            var to = End(range.Value[1]);
-                            if (from is null || to is null)
-                                return Reject($"line {line}: \"for\": the ends of \"{range.Name}\" must be integers or expression strings");
+                            var open = range.Value[1].ValueKind == JsonValueKind.Null; // [FROM, null]: the open-ended NAME >= FROM
+                            var to = open ? null : End(range.Value[1]);
+                            if (from is null || (to is null && !open))
+                                return Reject($"line {line}: \"for\": the ends of \"{range.Name}\" must be integers or expression strings (or null for no end: [1, null] is {range.Name} >= 1)");
                             ranges.Add((range.Name, from, to));
                         }
                         break;

@@ -14,6 +14,13 @@ public interface IWorkSource
     int EnsureResultRows();
 
     /// <summary>
+    /// Adds the next chunk of instances (pending) to every open-ended family (<c>for n &gt;= A</c>) whose instances are all
+    /// final with none refuted, until its open family budget; returns how many were added. Safe when several processes
+    /// call it at once: a chunk is added once.
+    /// </summary>
+    int GrowOpenFamilies();
+
+    /// <summary>
     /// Takes up to <paramref name="max"/> pending candidates of the earliest of <paramref name="stages"/> that has any and
     /// marks them queued, atomically; empty when nothing is pending. <paramref name="beforeCommit"/> runs before the rows
     /// are committed as queued; if it throws (or the process dies first) they stay pending.

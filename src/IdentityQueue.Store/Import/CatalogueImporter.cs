@@ -14,7 +14,8 @@ namespace IdentityQueue.Store.Import;
 /// <c>candidate</c> row per identity (one per instance of a family line) with a pending <c>result</c>, and a
 /// <c>rejection</c> row per entry that cannot be imported — a bad entry never stops the import. The file is streamed:
 /// one line in memory at a time, rows written by prepared commands in transactions of <see cref="ImportOptions.BatchSize"/>.
-/// A catalogue name already in the store is refused, so importing the same file twice does not double it.
+/// A catalogue name already in the store is refused, so importing the same file twice does not double it. An open-ended
+/// family (<c>for n &gt;= A</c>) gets its first chunk here and an <c>open_family</c> row; workers grow it (<see cref="OpenFamilies"/>).
 /// Uses the connection it is given; not thread-safe.
 /// </summary>
 public sealed class CatalogueImporter(StoreConnection store)
@@ -111,7 +112,8 @@ public sealed class CatalogueImporter(StoreConnection store)
 
     private ImportSummary Load(string path, long catalogueId, string name, long seed, ImportOptions options, Stopwatch clock)
     {
-        var reader = new CatalogueReader(path, options.Limits);
+        var reader = new CatalogueReader(path, options.Limits, options.OpenBudget);
+        var open = new List<(string Family, OpenFamily Open, int Made)>();
         using var rows = new Rows(_db, catalogueId, path);
         int lines = 0, entries = 0, instances = 0, rejections = 0;
         var first = new List<Rejection>();
@@ -130,6 +132,7 @@ public sealed class CatalogueImporter(StoreConnection store)
                 else if (line.Read.Value is { } made)
                 {
                     entries++;
+                    if (made.Open is { } family) open.Add((made.Family!, family, made.Instances.Count));
                     foreach (var c in made.Instances)
                     {
                         rows.Candidate(c.Label, made.Family, made.Family is null ? null : ParamsText.Write(c.Parameters),
@@ -153,6 +156,9 @@ public sealed class CatalogueImporter(StoreConnection store)
             results.Parameter("@id", catalogueId);
             results.ExecuteNonQuery();
         }
+        // An open-ended family is recorded with its first chunk, in the transaction that makes the chunk's results pending.
+        var families = new OpenFamilies(store);
+        foreach (var (family, o, count) in open) families.Add(catalogueId, family, o, count, finish);
         using (var counts = _db.Command("UPDATE catalogue SET entries = @entries, instances = @instances, rejections = @rejections WHERE id = @id", finish))
         {
             counts.Parameter("@entries", entries);

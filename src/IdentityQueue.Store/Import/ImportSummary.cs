@@ -16,6 +16,9 @@ public sealed record ImportOptions
     public int RejectionsListed { get; init; } = 5;
 
     public Algebra.Limits Limits { get; init; } = Algebra.Limits.Default;
+
+    /// <summary>The open family budget of the file's open-ended families (<c>--open-budget</c>); null for the default (64 instances, 8 at a time).</summary>
+    public Screening.Catalogues.OpenFamilyBudget? OpenBudget { get; init; }
 }
 
 /// <summary>A catalogue entry that was not imported: where, what, and why (a row of <c>rejection</c>).</summary>

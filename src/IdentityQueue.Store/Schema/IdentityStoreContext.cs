@@ -19,6 +19,7 @@ public sealed class IdentityStoreContext(DbContextOptions<IdentityStoreContext> 
     public DbSet<CounterexampleRow> Counterexamples => Set<CounterexampleRow>();
     public DbSet<RecoveredDifferenceRow> RecoveredDifferences => Set<RecoveredDifferenceRow>();
     public DbSet<EquivalenceRow> Equivalences => Set<EquivalenceRow>();
+    public DbSet<OpenFamilyRow> OpenFamilies => Set<OpenFamilyRow>();
 
     private const string Now = "CURRENT_TIMESTAMP";
 
@@ -147,6 +148,23 @@ public sealed class IdentityStoreContext(DbContextOptions<IdentityStoreContext> 
             e.Property(x => x.CreatedAt).HasColumnName("created_at").HasDefaultValueSql(Now);
             e.HasOne<CandidateRow>().WithOne().HasForeignKey<RecoveredDifferenceRow>(x => x.CandidateId)
                 .HasConstraintName("fk_recovered_difference_candidate").OnDelete(DeleteBehavior.Cascade);
+        });
+
+        modelBuilder.Entity<OpenFamilyRow>(e =>
+        {
+            e.ToTable("open_family");
+            e.HasKey(x => x.Id).HasName("pk_open_family");
+            e.Property(x => x.Id).HasColumnName("id");
+            e.Property(x => x.CatalogueId).HasColumnName("catalogue_id");
+            e.Property(x => x.Family).HasColumnName("family");
+            e.Property(x => x.Parameter).HasColumnName("parameter");
+            e.Property(x => x.FirstValue).HasColumnName("first_value");
+            e.Property(x => x.Budget).HasColumnName("budget");
+            e.Property(x => x.Chunk).HasColumnName("chunk");
+            e.Property(x => x.Made).HasColumnName("made");
+            e.HasOne<CatalogueRow>().WithMany().HasForeignKey(x => x.CatalogueId)
+                .HasConstraintName("fk_open_family_catalogue").OnDelete(DeleteBehavior.Cascade);
+            e.HasIndex(x => new { x.CatalogueId, x.Family }).IsUnique().HasDatabaseName("ux_open_family_catalogue_family");
         });
 
         modelBuilder.Entity<EquivalenceRow>(e =>

@@ -191,3 +191,26 @@ public sealed class EquivalenceRow
     /// <summary>True when the sides are swapped with respect to the representative's.</summary>
     public bool Swapped { get; set; }
 }
+
+/// <summary>
+/// A row of <c>open_family</c>: an open-ended family (<c>for n &gt;= A</c>) of a catalogue, with the open family budget it
+/// was imported with and how many instances exist. Workers add the next chunk of instances when every instance is final
+/// and none is refuted, until the budget; <see cref="Made"/> is their compare-and-set, so two workers never add one chunk twice.
+/// </summary>
+public sealed class OpenFamilyRow
+{
+    public long Id { get; set; }
+    public long CatalogueId { get; set; }
+    /// <summary>The family label (<c>candidate.family</c> of its instances).</summary>
+    public required string Family { get; set; }
+    /// <summary>The open-ended parameter's name.</summary>
+    public required string Parameter { get; set; }
+    /// <summary>The first value A of <c>n &gt;= A</c>; the instances are A, A + 1, … A + made − 1.</summary>
+    public long FirstValue { get; set; }
+    /// <summary>The open family budget: at most this many instances.</summary>
+    public int Budget { get; set; }
+    /// <summary>Instances added at a time.</summary>
+    public int Chunk { get; set; }
+    /// <summary>Instances made so far.</summary>
+    public int Made { get; set; }
+}

@@ -105,6 +105,9 @@ public sealed class RetryingWorkPorts(StoreWorkPorts inner, StoreRetry retry) : 
 
     public int EnsureResultRows() => retry.Run(inner.EnsureResultRows);
 
+    // A chunk is claimed in the transaction that adds it: a retry after a commit whose answer was lost finds nothing to add.
+    public int GrowOpenFamilies() => retry.Run(inner.GrowOpenFamilies);
+
     public PlannedWork TakePending(IReadOnlyList<WorkStage> stages, int max, Action<WorkStage, IReadOnlyList<long>>? beforeCommit = null) =>
         inner.TakePending(stages, max, beforeCommit);
 

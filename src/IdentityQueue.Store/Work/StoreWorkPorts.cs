@@ -42,6 +42,8 @@ public sealed class StoreWorkPorts(StoreLocation location, Limits limits) : IWor
 
     public int EnsureResultRows() => With(c => new CandidateStore(c).EnsureResultRows());
 
+    public int GrowOpenFamilies() => With(c => new OpenFamilies(c).Grow());
+
     public PlannedWork TakePending(IReadOnlyList<WorkStage> stages, int max, Action<WorkStage, IReadOnlyList<long>>? beforeCommit = null) => With(c =>
     {
         var (stage, ids) = new WorkQueue(c).TakePending(stages, max, beforeCommit);
