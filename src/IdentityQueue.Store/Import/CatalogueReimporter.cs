@@ -86,12 +86,12 @@ public sealed class CatalogueReimporter(StoreConnection store)
             Convert.ToInt32(reader.GetValue(2), CultureInfo.InvariantCulture));
     }
 
-    private long Busy(long catalogueId)
+    private long Busy(long catalogueId, DbTransaction? transaction = null)
     {
         using var command = _db.Command($"""
             SELECT COUNT(*) FROM result r JOIN candidate c ON c.id = r.candidate_id
             WHERE c.catalogue_id = @id AND r.state IN ('{ResultStates.Queued}', '{ResultStates.Screening}')
-            """);
+            """, transaction);
         command.Parameter("@id", catalogueId);
         return Convert.ToInt64(command.ExecuteScalar(), CultureInfo.InvariantCulture);
     }
@@ -112,7 +112,20 @@ public sealed class CatalogueReimporter(StoreConnection store)
         var old = ReadCandidates(catalogueId, options.Limits, sides);
 
         using var transaction = _db.BeginTransaction();
+        if (store.IsPostgreSql)
+        {
+            // Workers claim with FOR UPDATE SKIP LOCKED: with the catalogue's result rows locked, none can claim them until this commits.
+            using var claimLock = _db.Command("""
+                SELECT r.candidate_id FROM result r JOIN candidate c ON c.id = r.candidate_id WHERE c.catalogue_id = @id FOR UPDATE OF r
+                """, transaction);
+            claimLock.Parameter("@id", catalogueId);
+            claimLock.ExecuteNonQuery();
+        }
         Snapshot(transaction, catalogueId, version, old);
+        // Checked again inside the transaction (on SQLite after its first write, which holds the single writer's lock): a
+        // worker that claimed since Check keeps the old version whole.
+        if (Busy(catalogueId, transaction) is > 0 and var claimed)
+            return Result<ReimportSummary>.Fail($"{path}: {claimed} candidates of '{name}' were claimed by a worker meanwhile; nothing was changed");
 
         var byIdentity = new Dictionary<string, Queue<OldCandidate>>(StringComparer.Ordinal);
         foreach (var o in old)
