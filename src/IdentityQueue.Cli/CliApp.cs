@@ -34,6 +34,7 @@ public static class CliApp
         root.Subcommands.Add(ShowCommands.Recheck(output, error));
         root.Subcommands.Add(ExportCommand.Create(output, error));
         root.Subcommands.Add(QueryCommands.Sql(output, error));
+        root.Subcommands.Add(CompareCommand.Create(output, error));
         root.Subcommands.Add(DemoCommand.Create(output, error));
         root.Subcommands.Add(Report.ReportCommand.Create(output, error));
         root.Subcommands.Add(BenchCommand.Create(output, error));

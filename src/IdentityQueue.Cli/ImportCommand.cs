@@ -25,13 +25,20 @@ public static class ImportCommand
             Description = $"The open family budget: an open-ended family ('for n >= 1') is screened in increasing n, {OpenFamilyBudget.DefaultChunk} instances at a time, " +
                 $"until its first refuted instance or N instances (default {OpenFamilyBudget.DefaultInstances}); stored with the family.",
         };
+        var newVersion = new Option<bool>("--new-version")
+        {
+            Description = "Replace the catalogue of the same name (the file's name, or --catalogue NAME) by this file: every entry whose identity\n" +
+                "is unchanged keeps its id, verdict and trials (a new label is taken over); new or edited entries are screened by the next run;\n" +
+                "entries no longer in the file are removed. The old version's verdicts are kept for 'idq compare NAME'. One file only.",
+        };
         var store = new StoreOptions();
         var command = new Command("import", "Load catalogue files into the store. Every good entry is imported; a bad one is recorded in the\n" +
             "table 'rejection' with its line, raw text and reason, and does not stop the import. A file whose catalogue name\n" +
-            "is already in the store is refused (exit 2): give another name with --catalogue.\n\n" +
-            "Examples:\n  idq import identities.idq\n  idq import batch.jsonl --catalogue batch-2 --seed 42\n  idq import moser.idq --open-budget 200")
+            "is already in the store is refused (exit 2): give another name with --catalogue, or replace it with --new-version.\n\n" +
+            "Examples:\n  idq import identities.idq\n  idq import batch.jsonl --catalogue batch-2 --seed 42\n  idq import moser.idq --open-budget 200\n" +
+            "  idq import identities.idq --new-version   # screen only what changed; then: idq compare identities")
         {
-            files, catalogue, seed, openBudget,
+            files, catalogue, seed, openBudget, newVersion,
         };
         store.AddTo(command);
         command.SetAction(parse =>
@@ -54,8 +61,15 @@ public static class ImportCommand
                 }
                 budget = made.Value;
             }
+            if (parse.GetValue(newVersion) && paths.Length > 1)
+            {
+                error.WriteLine("idq import: --new-version replaces one catalogue; give it with one file at a time");
+                return ExitCodes.BadInput;
+            }
             using var connection = store.OpenCurrent(parse, "import", error);
             if (connection is null) return ExitCodes.BadInput;
+            if (parse.GetValue(newVersion))
+                return ExecuteNewVersion(connection, paths[0], new ImportOptions { CatalogueName = name, Seed = parse.GetValue(seed), OpenBudget = budget }, output, error);
             return Execute(connection, paths, new ImportOptions { CatalogueName = name, Seed = parse.GetValue(seed), OpenBudget = budget }, output, error);
         });
         return command;
@@ -94,6 +108,28 @@ public static class ImportCommand
             if (s.Rejections > s.FirstRejections.Count)
                 output.WriteLine($"  … every rejection: idq sql \"SELECT line, reason FROM rejection WHERE catalogue_id = {s.CatalogueId} ORDER BY line\"");
         }
+        return ExitCodes.Success;
+    }
+
+    internal static int ExecuteNewVersion(StoreConnection connection, string path, ImportOptions options, TextWriter output, TextWriter error)
+    {
+        var result = new CatalogueReimporter(connection).Reimport(path, options with { RejectionsListed = RejectionsShown });
+        if (!result.Success)
+        {
+            error.WriteLine($"idq import: {result.Error.Message}");
+            return ExitCodes.BadInput;
+        }
+        var s = result.Value;
+        output.WriteLine($"{path}: catalogue '{s.Catalogue}' (id {s.CatalogueId}) is now version {s.Version}: " +
+            $"{Count(s.Entries, "entry", "entries")}, {Count(s.Instances, "instance", "instances")}, {Count(s.Rejections, "rejection", "rejections")} " +
+            $"({s.Lines} lines in {s.Elapsed.TotalSeconds:F1} s)");
+        output.WriteLine($"  {s.Kept} unchanged (evidence kept{(s.Relabelled > 0 ? $", {s.Relabelled} with a new label" : "")}), " +
+            $"{s.Added} new or changed (pending), {s.Removed} removed");
+        foreach (var w in s.Warnings) error.WriteLine($"idq import: warning: {path}: {w}");
+        foreach (var r in s.FirstRejections) output.WriteLine($"  rejected {r}");
+        if (s.Rejections > s.FirstRejections.Count)
+            output.WriteLine($"  … every rejection: idq sql \"SELECT line, reason FROM rejection WHERE catalogue_id = {s.CatalogueId} ORDER BY line\"");
+        output.WriteLine($"  next: idq run, then idq compare {s.Catalogue} (version {s.Version - 1} against {s.Version})");
         return ExitCodes.Success;
     }
 

@@ -4,6 +4,8 @@ using IdentityQueue.Algebra;
 using IdentityQueue.Screening;
 using IdentityQueue.Screening.Ports;
 using IdentityQueue.Store;
+using IdentityQueue.Store.Read;
+using IdentityQueue.Store.Schema;
 using IdentityQueue.Store.Work;
 using IdentityQueue.Worker;
 using Microsoft.Extensions.DependencyInjection;
@@ -50,9 +52,24 @@ internal static class RunCommands
     public static Command Run(TextWriter output, TextWriter error)
     {
         var command = new Command("run", "The main job: enqueue everything pending, screen it with an in-process worker pool, show progress, and exit when every candidate has a final state.\n\n" +
-            "Examples:\n  idq run\n  idq run --db night.db --workers 2\n  idq run --target-bits 128   # more evidence for the survivors only");
+            "Examples:\n  idq run\n  idq run --db night.db --workers 2\n  idq run --target-bits 128   # more evidence for the survivors only\n" +
+            "  idq run --summary run.json --on-finish 'mail -s \"idq done\" me@example.org < \"$IDQ_SUMMARY\"'");
         var a = Arguments(command, target: true);
-        command.SetAction(parse => Execute(parse, a, output, error, RunMode.ToCompletion));
+        var end = new RunEnd(
+            new Option<string?>("--summary")
+            {
+                HelpName = "FILE",
+                Description = $"At the end, write a JSON summary: counts per state per catalogue, elapsed time, throughput, each catalogue's seed and version, and up to {RunSummary.LabelsListed} survived and refuted labels per catalogue.",
+            },
+            new Option<string?>("--on-finish")
+            {
+                HelpName = "COMMAND",
+                Description = $"At the end, run COMMAND with /bin/sh -c (cmd.exe /c on Windows) and wait for it; it finds the summary's path in ${RunSummary.SummaryVariable} " +
+                    $"(a temporary file without --summary), the run's exit code in ${RunSummary.ExitCodeVariable} and the store in ${RunSummary.StoreVariable}. Its exit code is printed and never changes idq's.",
+            });
+        command.Options.Add(end.Summary);
+        command.Options.Add(end.OnFinish);
+        command.SetAction(parse => Execute(parse, a, output, error, RunMode.ToCompletion, end));
         return command;
     }
 
@@ -76,7 +93,10 @@ internal static class RunCommands
 
     private enum RunMode { ToCompletion, UntilStopped, EnqueueOnly }
 
-    private static int Execute(ParseResult parse, RunArgs a, TextWriter output, TextWriter error, RunMode mode)
+    /// <summary><c>idq run</c>'s end: the summary file and the command to run.</summary>
+    private sealed record RunEnd(Option<string?> Summary, Option<string?> OnFinish);
+
+    private static int Execute(ParseResult parse, RunArgs a, TextWriter output, TextWriter error, RunMode mode, RunEnd? end = null)
     {
         if (a.Db.Conflict(parse) is { } conflict)
         {
@@ -107,11 +127,16 @@ internal static class RunCommands
             if (given.Success) target = given.Value;
             else problems = [.. problems, given.Error.Message];
         }
+        var summaryPath = end is null ? null : parse.GetValue(end.Summary);
+        var onFinish = end is null ? null : parse.GetValue(end.OnFinish);
+        if (summaryPath is not null && RunSummary.Check(summaryPath) is { } badSummary) problems = [.. problems, badSummary];
+        if (onFinish is not null && string.IsNullOrWhiteSpace(onFinish)) problems = [.. problems, "--on-finish: the command is empty"];
         if (problems.Count > 0)
         {
             foreach (var p in problems) error.WriteLine($"idq: {p}");
             return ExitCodes.BadInput;
         }
+        long settledBefore = 0;
         try
         {
             using var store = StoreConnection.Open(location);
@@ -122,6 +147,8 @@ internal static class RunCommands
                 var reopened = queue.RaiseTarget(raised);
                 if (reopened > 0) output.WriteLine($"target {raised}: {reopened} survivors get more trials");
             }
+            if (summaryPath is not null || onFinish is not null)
+                settledBefore = StatusCounts.Read(store).Counts.Where(c => c.State.IsFinal()).Sum(c => c.Count);
         }
         catch (StoreUnavailableException e)
         {
@@ -174,6 +201,7 @@ internal static class RunCommands
             }
         }
 
+        var startedAt = DateTime.UtcNow;
         var clock = Stopwatch.StartNew();
         using var stop = new StopSignals();
         var final = interactive ? RunWithProgressBar(session, clock, stop.Token) : session.RunToCompletion(
@@ -184,7 +212,32 @@ internal static class RunCommands
             $"{final.Refuted} refuted, {final.Survived} survived (very likely true), {final.Undecided} undecided, {final.Invalid} invalid, {final.Failed} failed");
         output.WriteLine("  Screening is evidence, not proof: each survivor's error bound is only as good as its degree bound.");
         output.WriteLine($"  idq status {location.Option}    idq sql \"select * from survivors\" {location.Option}");
-        return final.Failed > 0 ? ExitCodes.Found : ExitCodes.Success;
+        var code = final.Failed > 0 ? ExitCodes.Found : ExitCodes.Success;
+        if (summaryPath is not null || onFinish is not null)
+            Finish(output, error, location, summaryPath, onFinish, new RunSummary.Facts(path, startedAt, clock.Elapsed, settledBefore, final, stop.Stopping, code));
+        return code;
+    }
+
+    /// <summary>Writes the summary and runs the --on-finish command; a failure of either is reported, never the run's exit code.</summary>
+    private static void Finish(TextWriter output, TextWriter error, StoreLocation location, string? summaryPath, string? onFinish, RunSummary.Facts facts)
+    {
+        var written = summaryPath ?? Path.Combine(Path.GetTempPath(), $"idq-summary-{Environment.ProcessId}-{Guid.NewGuid():N}.json");
+        try
+        {
+            using var store = StoreConnection.Open(location);
+            RunSummary.Write(written, store, facts);
+            if (summaryPath is not null) output.WriteLine($"  summary: {summaryPath}");
+        }
+        catch (Exception e) when (e is IOException or UnauthorizedAccessException or StoreUnavailableException or System.Data.Common.DbException)
+        {
+            error.WriteLine($"idq: the summary could not be written to {written}: {e.Message}");
+        }
+        if (onFinish is null) return;
+        var (exit, problem) = RunSummary.OnFinish(onFinish, written, facts.ExitCode, facts.Store);
+        if (problem is not null) error.WriteLine($"idq: --on-finish could not run: {problem}");
+        else if (exit == 0) output.WriteLine($"  --on-finish: exit code 0");
+        else error.WriteLine($"idq: --on-finish exited with code {exit} (the run's own exit code is unchanged)");
+        if (summaryPath is null) File.Delete(written);
     }
 
     /// <summary>The log of worker processes on a PostgreSQL store: in the working directory, shared by the processes there.</summary>

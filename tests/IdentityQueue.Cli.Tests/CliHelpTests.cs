@@ -7,12 +7,12 @@ namespace IdentityQueue.Cli.Tests;
 
 /// <summary>
 /// <c>--help</c> and <c>--version</c> as users meet them. The list of commands is SPEC §2's table; the root's own help
-/// listing is checked against it, so a new command without examples cannot slip in.
+/// listing is checked against it, so a new command without examples cannot slip in (compare: issue #15 point 5).
 /// </summary>
 public class CliHelpTests
 {
     private static readonly string[] Names =
-        ["init", "import", "run", "worker", "enqueue", "status", "show", "check", "recheck", "export", "demo", "report", "bench", "sql"];
+        ["init", "import", "run", "worker", "enqueue", "status", "show", "check", "recheck", "export", "demo", "report", "bench", "sql", "compare"];
 
     public static TheoryData<string> Commands => new(Names);
 

@@ -149,6 +149,12 @@ namespace IdentityQueue.Migrations.PostgreSql.Migrations
                         .HasDefaultValue(64)
                         .HasColumnName("target_bits");
 
+                    b.Property<int>("Version")
+                        .ValueGeneratedOnAdd()
+                        .HasColumnType("integer")
+                        .HasDefaultValue(1)
+                        .HasColumnName("version");
+
                     b.HasKey("Id")
                         .HasName("pk_catalogue");
 
@@ -523,6 +529,87 @@ namespace IdentityQueue.Migrations.PostgreSql.Migrations
                         });
                 });
 
+            modelBuilder.Entity("IdentityQueue.Store.Schema.VersionEntryRow", b =>
+                {
+                    b.Property<long>("Id")
+                        .ValueGeneratedOnAdd()
+                        .HasColumnType("bigint")
+                        .HasColumnName("id");
+
+                    NpgsqlPropertyBuilderExtensions.UseIdentityByDefaultColumn(b.Property<long>("Id"));
+
+                    b.Property<long>("CandidateId")
+                        .HasColumnType("bigint")
+                        .HasColumnName("candidate_id");
+
+                    b.Property<long>("CatalogueId")
+                        .HasColumnType("bigint")
+                        .HasColumnName("catalogue_id");
+
+                    b.Property<double?>("ErrorBoundLog2")
+                        .HasColumnType("double precision")
+                        .HasColumnName("error_bound_log2");
+
+                    b.Property<string>("Family")
+                        .HasColumnType("text")
+                        .HasColumnName("family");
+
+                    b.Property<string>("Field")
+                        .IsRequired()
+                        .HasColumnType("text")
+                        .HasColumnName("field");
+
+                    b.Property<string>("Identity")
+                        .HasColumnType("text")
+                        .HasColumnName("identity");
+
+                    b.Property<string>("Label")
+                        .IsRequired()
+                        .HasColumnType("text")
+                        .HasColumnName("label");
+
+                    b.Property<string>("Lhs")
+                        .IsRequired()
+                        .HasColumnType("text")
+                        .HasColumnName("lhs");
+
+                    b.Property<string>("Params")
+                        .HasColumnType("text")
+                        .HasColumnName("params");
+
+                    b.Property<DateTime>("ReplacedAt")
+                        .ValueGeneratedOnAdd()
+                        .HasColumnType("timestamp with time zone")
+                        .HasColumnName("replaced_at")
+                        .HasDefaultValueSql("CURRENT_TIMESTAMP");
+
+                    b.Property<string>("Rhs")
+                        .IsRequired()
+                        .HasColumnType("text")
+                        .HasColumnName("rhs");
+
+                    b.Property<string>("State")
+                        .IsRequired()
+                        .HasColumnType("text")
+                        .HasColumnName("state");
+
+                    b.Property<int>("TrialsZero")
+                        .HasColumnType("integer")
+                        .HasColumnName("trials_zero");
+
+                    b.Property<int>("Version")
+                        .HasColumnType("integer")
+                        .HasColumnName("version");
+
+                    b.HasKey("Id")
+                        .HasName("pk_catalogue_version_entry");
+
+                    b.HasIndex("CatalogueId", "Version")
+                        .HasDatabaseName("ix_catalogue_version_entry_version");
+
+                    b.ToTable("catalogue_version_entry", (string)null);
+                });
+
             modelBuilder.Entity("IdentityQueue.Store.Schema.WorkerRow", b =>
                 {
                     b.Property<string>("Name")
@@ -675,6 +762,16 @@ namespace IdentityQueue.Migrations.PostgreSql.Migrations
                         .OnDelete(DeleteBehavior.Cascade)
                         .IsRequired()
                         .HasConstraintName("fk_trial_candidate");
+                });
+
+            modelBuilder.Entity("IdentityQueue.Store.Schema.VersionEntryRow", b =>
+                {
+                    b.HasOne("IdentityQueue.Store.Schema.CatalogueRow", null)
+                        .WithMany()
+                        .HasForeignKey("CatalogueId")
+                        .OnDelete(DeleteBehavior.Cascade)
+                        .IsRequired()
+                        .HasConstraintName("fk_catalogue_version_entry_catalogue");
                 });
 #pragma warning restore 612, 618
         }

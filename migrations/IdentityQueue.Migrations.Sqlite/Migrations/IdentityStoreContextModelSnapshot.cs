@@ -140,6 +140,12 @@ namespace IdentityQueue.Migrations.Sqlite.Migrations
                         .HasDefaultValue(64)
                         .HasColumnName("target_bits");
 
+                    b.Property<int>("Version")
+                        .ValueGeneratedOnAdd()
+                        .HasColumnType("INTEGER")
+                        .HasDefaultValue(1)
+                        .HasColumnName("version");
+
                     b.HasKey("Id")
                         .HasName("pk_catalogue");
 
@@ -508,6 +514,85 @@ namespace IdentityQueue.Migrations.Sqlite.Migrations
                         });
                 });
 
+            modelBuilder.Entity("IdentityQueue.Store.Schema.VersionEntryRow", b =>
+                {
+                    b.Property<long>("Id")
+                        .ValueGeneratedOnAdd()
+                        .HasColumnType("INTEGER")
+                        .HasColumnName("id");
+
+                    b.Property<long>("CandidateId")
+                        .HasColumnType("INTEGER")
+                        .HasColumnName("candidate_id");
+
+                    b.Property<long>("CatalogueId")
+                        .HasColumnType("INTEGER")
+                        .HasColumnName("catalogue_id");
+
+                    b.Property<double?>("ErrorBoundLog2")
+                        .HasColumnType("REAL")
+                        .HasColumnName("error_bound_log2");
+
+                    b.Property<string>("Family")
+                        .HasColumnType("TEXT")
+                        .HasColumnName("family");
+
+                    b.Property<string>("Field")
+                        .IsRequired()
+                        .HasColumnType("TEXT")
+                        .HasColumnName("field");
+
+                    b.Property<string>("Identity")
+                        .HasColumnType("TEXT")
+                        .HasColumnName("identity");
+
+                    b.Property<string>("Label")
+                        .IsRequired()
+                        .HasColumnType("TEXT")
+                        .HasColumnName("label");
+
+                    b.Property<string>("Lhs")
+                        .IsRequired()
+                        .HasColumnType("TEXT")
+                        .HasColumnName("lhs");
+
+                    b.Property<string>("Params")
+                        .HasColumnType("TEXT")
+                        .HasColumnName("params");
+
+                    b.Property<DateTime>("ReplacedAt")
+                        .ValueGeneratedOnAdd()
+                        .HasColumnType("TEXT")
+                        .HasColumnName("replaced_at")
+                        .HasDefaultValueSql("CURRENT_TIMESTAMP");
+
+                    b.Property<string>("Rhs")
+                        .IsRequired()
+                        .HasColumnType("TEXT")
+                        .HasColumnName("rhs");
+
+                    b.Property<string>("State")
+                        .IsRequired()
+                        .HasColumnType("TEXT")
+                        .HasColumnName("state");
+
+                    b.Property<int>("TrialsZero")
+                        .HasColumnType("INTEGER")
+                        .HasColumnName("trials_zero");
+
+                    b.Property<int>("Version")
+                        .HasColumnType("INTEGER")
+                        .HasColumnName("version");
+
+                    b.HasKey("Id")
+                        .HasName("pk_catalogue_version_entry");
+
+                    b.HasIndex("CatalogueId", "Version")
+                        .HasDatabaseName("ix_catalogue_version_entry_version");
+
+                    b.ToTable("catalogue_version_entry", (string)null);
+                });
+
             modelBuilder.Entity("IdentityQueue.Store.Schema.WorkerRow", b =>
                 {
                     b.Property<string>("Name")
@@ -660,6 +745,16 @@ namespace IdentityQueue.Migrations.Sqlite.Migrations
                         .OnDelete(DeleteBehavior.Cascade)
                         .IsRequired()
                         .HasConstraintName("fk_trial_candidate");
+                });
+
+            modelBuilder.Entity("IdentityQueue.Store.Schema.VersionEntryRow", b =>
+                {
+                    b.HasOne("IdentityQueue.Store.Schema.CatalogueRow", null)
+                        .WithMany()
+                        .HasForeignKey("CatalogueId")
+                        .OnDelete(DeleteBehavior.Cascade)
+                        .IsRequired()
+                        .HasConstraintName("fk_catalogue_version_entry_catalogue");
                 });
 #pragma warning restore 612, 618
         }

@@ -31,6 +31,16 @@ public sealed class CatalogueImporter(StoreConnection store)
     public string? Check(string path, ImportOptions? options = null)
     {
         options ??= new ImportOptions();
+        if (CheckFile(path, options) is { } refusal) return refusal;
+        var name = options.CatalogueName ?? DefaultName(path);
+        if (NameTaken(name))
+            return $"{path}: the store already has a catalogue named '{name}'; import it under another name with --catalogue NAME";
+        return null;
+    }
+
+    /// <summary>Why <paramref name="path"/> cannot be read as a catalogue at all (no such file, unknown format, not text, no name, a bad seed), or null.</summary>
+    internal static string? CheckFile(string path, ImportOptions options)
+    {
         if (!File.Exists(path)) return $"{path}: no such file";
         var extension = Path.GetExtension(path).ToLowerInvariant();
         if (!Extensions.Contains(extension))
@@ -39,8 +49,6 @@ public sealed class CatalogueImporter(StoreConnection store)
         if (NotText(path) is { } notText) return $"{path}: {notText}; nothing was imported";
         var name = options.CatalogueName ?? DefaultName(path);
         if (string.IsNullOrWhiteSpace(name)) return $"{path}: the catalogue name is empty; give one with --catalogue NAME";
-        if (NameTaken(name))
-            return $"{path}: the store already has a catalogue named '{name}'; import it under another name with --catalogue NAME";
         return null;
     }
 

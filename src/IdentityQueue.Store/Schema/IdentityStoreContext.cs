@@ -20,6 +20,7 @@ public sealed class IdentityStoreContext(DbContextOptions<IdentityStoreContext> 
     public DbSet<RecoveredDifferenceRow> RecoveredDifferences => Set<RecoveredDifferenceRow>();
     public DbSet<EquivalenceRow> Equivalences => Set<EquivalenceRow>();
     public DbSet<OpenFamilyRow> OpenFamilies => Set<OpenFamilyRow>();
+    public DbSet<VersionEntryRow> VersionEntries => Set<VersionEntryRow>();
 
     private const string Now = "CURRENT_TIMESTAMP";
 
@@ -39,6 +40,7 @@ public sealed class IdentityStoreContext(DbContextOptions<IdentityStoreContext> 
             e.Property(x => x.Entries).HasColumnName("entries");
             e.Property(x => x.Instances).HasColumnName("instances");
             e.Property(x => x.Rejections).HasColumnName("rejections");
+            e.Property(x => x.Version).HasColumnName("version").HasDefaultValue(1);
             e.HasIndex(x => x.Name).IsUnique().HasDatabaseName("ux_catalogue_name");
         });
 
@@ -179,6 +181,30 @@ public sealed class IdentityStoreContext(DbContextOptions<IdentityStoreContext> 
             e.HasOne<CandidateRow>().WithMany().HasForeignKey(x => x.GroupCandidateId)
                 .HasConstraintName("fk_equivalence_group").OnDelete(DeleteBehavior.Cascade);
             e.HasIndex(x => x.GroupCandidateId).HasDatabaseName("ix_equivalence_group");
+        });
+
+        modelBuilder.Entity<VersionEntryRow>(e =>
+        {
+            e.ToTable("catalogue_version_entry");
+            e.HasKey(x => x.Id).HasName("pk_catalogue_version_entry");
+            e.Property(x => x.Id).HasColumnName("id");
+            e.Property(x => x.CatalogueId).HasColumnName("catalogue_id");
+            e.Property(x => x.Version).HasColumnName("version");
+            e.Property(x => x.CandidateId).HasColumnName("candidate_id");
+            e.Property(x => x.Label).HasColumnName("label");
+            e.Property(x => x.Family).HasColumnName("family");
+            e.Property(x => x.Params).HasColumnName("params");
+            e.Property(x => x.Lhs).HasColumnName("lhs");
+            e.Property(x => x.Rhs).HasColumnName("rhs");
+            e.Property(x => x.Field).HasColumnName("field");
+            e.Property(x => x.Identity).HasColumnName("identity");
+            e.Property(x => x.State).HasColumnName("state");
+            e.Property(x => x.ErrorBoundLog2).HasColumnName("error_bound_log2");
+            e.Property(x => x.TrialsZero).HasColumnName("trials_zero");
+            e.Property(x => x.ReplacedAt).HasColumnName("replaced_at").HasDefaultValueSql(Now);
+            e.HasOne<CatalogueRow>().WithMany().HasForeignKey(x => x.CatalogueId)
+                .HasConstraintName("fk_catalogue_version_entry_catalogue").OnDelete(DeleteBehavior.Cascade);
+            e.HasIndex(x => new { x.CatalogueId, x.Version }).HasDatabaseName("ix_catalogue_version_entry_version");
         });
 
         modelBuilder.Entity<RejectionRow>(e =>

@@ -26,6 +26,8 @@ public sealed class CatalogueRow
     public int? Entries { get; set; }
     public int? Instances { get; set; }
     public int? Rejections { get; set; }
+    /// <summary>1 at the first import; raised by each <c>idq import --new-version</c> (the earlier versions' verdicts are in <c>catalogue_version_entry</c>).</summary>
+    public int Version { get; set; }
 }
 
 /// <summary>A row of <c>candidate</c>: one identity to screen (one instance of a family line).</summary>
@@ -213,4 +215,33 @@ public sealed class OpenFamilyRow
     public int Chunk { get; set; }
     /// <summary>Instances made so far.</summary>
     public int Made { get; set; }
+}
+
+/// <summary>
+/// A row of <c>catalogue_version_entry</c>: one candidate of an earlier version of a catalogue as it stood when the next
+/// version was imported (<c>idq import --new-version</c>): its text, its canonical identity and its verdict, kept so that
+/// <c>idq compare</c> can tell what the new version added, removed or changed even after the candidate itself is gone.
+/// </summary>
+public sealed class VersionEntryRow
+{
+    public long Id { get; set; }
+    public long CatalogueId { get; set; }
+    /// <summary>The version this entry belonged to (the catalogue's <c>version</c> before the re-import).</summary>
+    public int Version { get; set; }
+    /// <summary>The candidate's id then; it still exists when the new version kept the identity (no foreign key: it may be gone).</summary>
+    public long CandidateId { get; set; }
+    public required string Label { get; set; }
+    public string? Family { get; set; }
+    public string? Params { get; set; }
+    public required string Lhs { get; set; }
+    public required string Rhs { get; set; }
+    public required string Field { get; set; }
+    /// <summary>The canonical identity (<c>CandidateKey.Canonical</c>); null when the stored sides did not parse.</summary>
+    public string? Identity { get; set; }
+    /// <summary>The result state then.</summary>
+    public required string State { get; set; }
+    public double? ErrorBoundLog2 { get; set; }
+    public int TrialsZero { get; set; }
+    /// <summary>When the version was replaced.</summary>
+    public DateTime ReplacedAt { get; set; }
 }
