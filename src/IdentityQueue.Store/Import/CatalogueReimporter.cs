@@ -1,6 +1,7 @@
 using System.Data.Common;
 using System.Diagnostics;
 using System.Globalization;
+using System.Numerics;
 using IdentityQueue.Algebra;
 using IdentityQueue.Screening;
 using IdentityQueue.Screening.Catalogues;
@@ -106,7 +107,7 @@ public sealed class CatalogueReimporter(StoreConnection store)
         var clock = Stopwatch.StartNew();
         var sides = new StoredSides();
 
-        var file = ReadFile(path, options, sides);
+        var file = ReadFile(path, options, sides, GrownFamilies(catalogueId));
         if (file.Instances.Count == 0 && file.Rejections.Count == 0)
             return Result<ReimportSummary>.Fail($"{path}: the file has no entries ({file.Lines} lines, all blank, comments or a header); nothing was changed");
         var old = ReadCandidates(catalogueId, options.Limits, sides);
@@ -182,6 +183,15 @@ public sealed class CatalogueReimporter(StoreConnection store)
             delete.Parameter("@ids", store.IdList(removed));
             delete.ExecuteNonQuery();
         }
+
+        // The open-ended families are the new file's, each with the instances made for it above.
+        using (var clearOpen = _db.Command("DELETE FROM open_family WHERE catalogue_id = @id", transaction))
+        {
+            clearOpen.Parameter("@id", catalogueId);
+            clearOpen.ExecuteNonQuery();
+        }
+        var families = new OpenFamilies(store);
+        foreach (var (family, o, made) in file.Open) families.Add(catalogueId, family, o, made, transaction);
 
         using (var clear = _db.Command("DELETE FROM rejection WHERE catalogue_id = @id", transaction))
         {
@@ -262,14 +272,21 @@ public sealed class CatalogueReimporter(StoreConnection store)
     private sealed record OldCandidate(long Id, string Label, string? Family, string? Params, string Lhs, string Rhs, string Field, int? Position,
         string State, double? ErrorBoundLog2, int TrialsZero, string? Identity);
 
-    private sealed record FileContents(int Lines, int Entries, List<NewInstance> Instances, List<Rejection> Rejections, IReadOnlyList<string> Warnings);
+    private sealed record FileContents(int Lines, int Entries, List<NewInstance> Instances, List<Rejection> Rejections, IReadOnlyList<string> Warnings,
+        List<(string Family, OpenFamily Open, int Made)> Open);
 
     /// <summary>The file's instances with their canonical identities, and its rejections (the whole file in memory: a new version is compared as a whole).</summary>
-    private static FileContents ReadFile(string path, ImportOptions options, StoredSides sides)
+    /// <remarks>
+    /// An open-ended family gets as many instances as the old version had grown under the same family label and first value
+    /// (within the new budget), so that the instances a run already screened keep their evidence; a new or changed one gets
+    /// its first chunk, as on a first import.
+    /// </remarks>
+    private static FileContents ReadFile(string path, ImportOptions options, StoredSides sides, Dictionary<string, (long First, int Made)> grown)
     {
-        var reader = new CatalogueReader(path, options.Limits);
+        var reader = new CatalogueReader(path, options.Limits, options.OpenBudget);
         int lines = 0, entries = 0;
         var instances = new List<NewInstance>();
+        var open = new List<(string Family, OpenFamily Open, int Made)>();
         var rejections = new List<Rejection>();
         using (var stream = new FileStream(path, FileMode.Open, FileAccess.Read, FileShare.Read, 1, FileOptions.SequentialScan))
         {
@@ -287,10 +304,35 @@ public sealed class CatalogueReimporter(StoreConnection store)
                         instances.Add(new NewInstance(c.Label, made.Family, parameters, made.Sides, field, line.Number,
                             Identity(made.Sides.Lhs, made.Sides.Rhs, field, parameters, options.Limits, sides)));
                     }
+                    if (made.Open is { } family)
+                    {
+                        var count = made.Instances.Count;
+                        if (grown.TryGetValue(made.Family!, out var before) && before.First == family.First)
+                            for (; count < Math.Min(before.Made, family.Budget.Instances); count++)
+                            {
+                                KeyValuePair<string, BigInteger>[] values = [new(family.Parameter, family.First + count)];
+                                var parameters = ParamsText.Write(values);
+                                instances.Add(new NewInstance(CatalogueEntry.InstanceLabel(made.Family!, values), made.Family, parameters, made.Sides,
+                                    made.Field, line.Number, Identity(made.Sides.Lhs, made.Sides.Rhs, made.Field, parameters, options.Limits, sides)));
+                            }
+                        open.Add((made.Family!, family, count));
+                    }
                 }
             }
         }
-        return new FileContents(lines, entries, instances, rejections, [.. reader.Warnings]);
+        return new FileContents(lines, entries, instances, rejections, [.. reader.Warnings], open);
+    }
+
+    /// <summary>The open-ended families of the catalogue now: family → (first value, instances made).</summary>
+    private Dictionary<string, (long First, int Made)> GrownFamilies(long catalogueId)
+    {
+        using var command = _db.Command("SELECT family, first_value, made FROM open_family WHERE catalogue_id = @id");
+        command.Parameter("@id", catalogueId);
+        using var reader = command.ExecuteReader();
+        var grown = new Dictionary<string, (long, int)>(StringComparer.Ordinal);
+        while (reader.Read())
+            grown[reader.GetString(0)] = (Convert.ToInt64(reader.GetValue(1), CultureInfo.InvariantCulture), Convert.ToInt32(reader.GetValue(2), CultureInfo.InvariantCulture));
+        return grown;
     }
 
     private List<OldCandidate> ReadCandidates(long catalogueId, Limits limits, StoredSides sides)

@@ -1,5 +1,7 @@
+using IdentityQueue.Screening.Catalogues;
 using IdentityQueue.Store.Import;
 using IdentityQueue.Store.Read;
+using IdentityQueue.Store.Work;
 
 namespace IdentityQueue.Store.Tests.Import;
 
@@ -37,6 +39,33 @@ public sealed class CatalogueReimporterTests
         Assert.Equal(["a|survived", "b|pending", "f[n=2]|survived", "f[n=3]|survived", "f[n=4]|pending"],
             store.Rows("SELECT c.label, r.state FROM candidate c JOIN result r ON r.candidate_id = c.id ORDER BY c.label").Select(r => $"{r[0]}|{r[1]}"));
         Assert.Equal(0, store.Count("SELECT COUNT(*) FROM candidate WHERE label = 'f[n=1]'"));
+    }
+
+    [Fact]
+    public void OpenEndedFamily_KeepsTheInstancesItHadGrown_AndANewFirstValueStartsOver()
+    {
+        using var store = TempStore.Create();
+        var path = store.File("m.idq", "pow: x^n = x^n for n >= 0\n");
+        store.Import(path, new ImportOptions { OpenBudget = OpenFamilyBudget.Create(20).Value });
+        store.Execute("UPDATE result SET state = 'survived', trials_zero = 3");
+        Assert.Equal(8, new OpenFamilies(store.Connection).Grow());
+        store.Execute("UPDATE result SET state = 'survived', trials_zero = 3");
+        var ids = store.Rows("SELECT label, id FROM candidate").ToDictionary(r => (string)r[0]!, r => (long)r[1]!);
+
+        // The same family with other spacing: the 16 instances made so far keep their rows and verdicts, and the family
+        // goes on growing from 16.
+        File.WriteAllText(path, "pow: x ^ n = x ^ n for n >= 0\n");
+        var s = Reimport(store, path, new ImportOptions { OpenBudget = OpenFamilyBudget.Create(20).Value });
+        Assert.Equal((16, 0, 0), (s.Kept, s.Added, s.Removed));
+        Assert.Equal(ids["pow[n=15]"], store.Scalar("SELECT id FROM candidate WHERE label = 'pow[n=15]'"));
+        Assert.Equal([16L, 20L], store.Rows("SELECT made, budget FROM open_family").Single());
+        Assert.Equal(4, new OpenFamilies(store.Connection).Grow());
+
+        // Another first value is another family: its first chunk, n = 1..8, of which 1..7 were screened before.
+        File.WriteAllText(path, "pow: x^n = x^n for n >= 1\n");
+        s = Reimport(store, path);
+        Assert.Equal((8, 0, 12), (s.Kept, s.Added, s.Removed));
+        Assert.Equal([1L, 8L], store.Rows("SELECT first_value, made FROM open_family").Single());
     }
 
     [Fact]
