@@ -49,8 +49,10 @@ public sealed class CostControlTests(ITestOutputHelper log)
     };
 
     /// <summary>
-    /// The estimate of one trial (a whole block on the 31- and 62-bit rungs, as the screen runs it) against the median of
-    /// three measured runs of that trial, within <see cref="EstimateFactor"/> either way. The ratios go to the test log.
+    /// The estimate of one trial (a whole block on the 31- and 62-bit rungs, as the screen runs it) against the fastest of
+    /// five measured runs of that trial, within <see cref="EstimateFactor"/> either way. The fastest, not the median: other
+    /// processes on a shared machine only ever slow a run down, so the fastest is the one closest to the kernel's own cost
+    /// (the first run also pays for the JIT). The ratios go to the test log.
     /// </summary>
     [Theory]
     [MemberData(nameof(Kernels))]
@@ -64,7 +66,7 @@ public sealed class CostControlTests(ITestOutputHelper log)
         var rung = estimate.Rung!;
         var block = BlockTrialRunner.Handles(identity, rung) ? BlockProgram.Prepare(identity.Program) : null;
         var times = new List<double>();
-        for (var run = 0; run < 3; run++)
+        for (var run = 0; run < 5; run++)
         {
             var clock = Stopwatch.StartNew();
             var trial = block is null
@@ -73,11 +75,10 @@ public sealed class CostControlTests(ITestOutputHelper log)
             times.Add(clock.Elapsed.TotalSeconds);
             Assert.Equal(TrialOutcome.Zero, trial.Outcome); // a true identity
         }
-        times.Sort();
-        var measured = times[1];
+        var measured = times.Min();
         var ratio = estimate.OneTrial.TotalSeconds / measured;
         log.WriteLine($"{kernel}: {TrialCost.Log2Text(estimate.Cost.FieldOperations)} operations on the {rung} rung, estimated {estimate.OneTrial.TotalSeconds:F4} s, " +
-            $"measured {measured:F4} s (median of 3), estimate/measured = {ratio:F2}");
+            $"measured {measured:F4} s (fastest of 5), estimate/measured = {ratio:F2}");
         Assert.InRange(ratio, 1 / EstimateFactor, EstimateFactor);
     }
 
