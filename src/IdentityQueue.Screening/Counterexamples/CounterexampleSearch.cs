@@ -34,10 +34,13 @@ public static class CounterexampleSearch
     /// <param name="seed">Seeds the random lines (the exhaustive stage does not depend on it).</param>
     /// <param name="cancellation">Observed inside each evaluation; a cancelled search throws <see cref="OperationCanceledException"/>.</param>
     public static Counterexample? Find(CompiledIdentity compiled, CounterexampleBudget budget, ulong seed = 0, CancellationToken cancellation = default) =>
-        FindWith(compiled, budget, seed, byResidues: true, cancellation);
+        FindWith(compiled, budget, seed, byResidues: true, ExactFirst, cancellation);
 
-    /// <summary>As the public <see cref="Find(CompiledIdentity, CounterexampleBudget, ulong, CancellationToken)"/>; <paramref name="byResidues"/> false evaluates every point over the rationals (the tests compare the two).</summary>
-    internal static Counterexample? FindWith(CompiledIdentity compiled, CounterexampleBudget budget, ulong seed, bool byResidues, CancellationToken cancellation = default)
+    /// <summary>Points of a search over Q evaluated over the rationals before residues take over (most searches end sooner).</summary>
+    internal const int ExactFirst = 32;
+
+    /// <summary>As the public <see cref="Find(CompiledIdentity, CounterexampleBudget, ulong, CancellationToken)"/>; <paramref name="byResidues"/> false evaluates every point over the rationals (the tests compare the two), true after the first <paramref name="exactFirst"/> points.</summary>
+    internal static Counterexample? FindWith(CompiledIdentity compiled, CounterexampleBudget budget, ulong seed, bool byResidues, int exactFirst = ExactFirst, CancellationToken cancellation = default)
     {
         ArgumentNullException.ThrowIfNull(compiled);
         ArgumentNullException.ThrowIfNull(budget);
@@ -49,7 +52,7 @@ public static class CounterexampleSearch
             var q = new PointEvaluator<RationalField, Rational>(default, program, v => new Rational(v), v => v.ToString(),
                 maxAbs => BoundAnalysis.ExactEvaluationBits(program, Math.Max(1, Math.Log2(maxAbs + 1.0)), budget.MaxPointBits * 2));
             if (!q.Ready) return null;
-            IPointEvaluator evaluator = byResidues && ModularPointEvaluator.Applies(program) ? new ModularPointEvaluator(program, q) : q;
+            IPointEvaluator evaluator = byResidues && ModularPointEvaluator.Applies(program) ? new ModularPointEvaluator(program, q, exactFirst) : q;
             return new Search(evaluator, program, budget, long.MaxValue, null, seed, cancellation).Run();
         }
         var p = compiled.Field.Characteristic;
@@ -168,9 +171,15 @@ public static class CounterexampleSearch
         private readonly Residue62[][] _registers;
         private readonly Residue62[] _values;
         private readonly Dictionary<long, double> _outputBits = [];
+        private readonly int _exactFirst;
+        private int _calls;
 
-        public ModularPointEvaluator(StraightLineProgram program, PointEvaluator<RationalField, Rational> exact)
+        /// <param name="program">A program for which <see cref="Applies"/> holds.</param>
+        /// <param name="exact">The same program's evaluator over the rationals.</param>
+        /// <param name="exactFirst">Points evaluated over the rationals before the residues take over.</param>
+        public ModularPointEvaluator(StraightLineProgram program, PointEvaluator<RationalField, Rational> exact, int exactFirst)
         {
+            _exactFirst = exactFirst;
             _program = program;
             _exact = exact;
             _constantBits = program.Constants.Select(c => c.IsZero ? double.NegativeInfinity : BigInteger.Log(BigInteger.Abs(c.Numerator), 2)).ToArray();
@@ -195,6 +204,9 @@ public static class CounterexampleSearch
 
         public Outcome Evaluate(long[] point, CancellationToken cancellation)
         {
+            // Most searches end within a few points (a refuted entry usually differs near the origin): those go over the
+            // rationals, and the residues' setup (bounds, constants per prime) is paid only by a longer search.
+            if (_calls++ < _exactFirst) return _exact.Evaluate(point, cancellation);
             long maxAbs = 0;
             foreach (var v in point) maxAbs = Math.Max(maxAbs, Math.Abs(v));
             if (!_outputBits.TryGetValue(maxAbs, out var bits)) _outputBits[maxAbs] = bits = OutputBits(maxAbs);

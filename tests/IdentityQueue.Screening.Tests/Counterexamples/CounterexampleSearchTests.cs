@@ -217,7 +217,7 @@ public sealed class CounterexampleByResiduesTests
     {
         var compiled = Some.Compiled(line);
         var exact = CounterexampleSearch.FindWith(compiled, CounterexampleBudget.Default, 7, byResidues: false);
-        var residues = CounterexampleSearch.FindWith(compiled, CounterexampleBudget.Default, 7, byResidues: true);
+        var residues = CounterexampleSearch.FindWith(compiled, CounterexampleBudget.Default, 7, byResidues: true, exactFirst: 0);
         Assert.NotNull(exact);
         Assert.NotNull(residues);
         Assert.Equal(exact.Describe(), residues.Describe());
@@ -230,11 +230,11 @@ public sealed class CounterexampleByResiduesTests
     public void AMultipleOfTheFirstModulus_IsNotTakenForZero()
     {
         // lhs − rhs = −4611686018427387847 (the largest prime below 2^62, sympy prevprime(2**62)) everywhere: the origin; worked by hand.
-        var cx = CounterexampleSearch.Find(Some.Compiled("x = x + 4611686018427387847"), CounterexampleBudget.Default)!;
+        var cx = CounterexampleSearch.FindWith(Some.Compiled("x = x + 4611686018427387847"), CounterexampleBudget.Default, 0, byResidues: true, exactFirst: 0)!;
         Assert.Equal("fails at x = 0: lhs = 0, rhs = 4611686018427387847", cx.Describe());
         Assert.Equal(1, cx.PointsTried);
         // p1·p2·x vanishes modulo both of the first two moduli: the first point with x ≠ 0 of the order, (1, 0); worked by hand.
-        var two = CounterexampleSearch.Find(Some.Compiled("x*y = x*y + 4611686018427387847*4611686018427387817*x"), CounterexampleBudget.Default)!;
+        var two = CounterexampleSearch.FindWith(Some.Compiled("x*y = x*y + 4611686018427387847*4611686018427387817*x"), CounterexampleBudget.Default, 0, byResidues: true, exactFirst: 0)!;
         Assert.Equal("fails at x = 1, y = 0: lhs = 0, rhs = 21267647932558653302378126310941659999", two.Describe());
     }
 }
