@@ -33,7 +33,14 @@ public static class CounterexampleSearch
     /// <param name="budget">Caps the points tried and the work spent.</param>
     /// <param name="seed">Seeds the random lines (the exhaustive stage does not depend on it).</param>
     /// <param name="cancellation">Observed inside each evaluation; a cancelled search throws <see cref="OperationCanceledException"/>.</param>
-    public static Counterexample? Find(CompiledIdentity compiled, CounterexampleBudget budget, ulong seed = 0, CancellationToken cancellation = default)
+    public static Counterexample? Find(CompiledIdentity compiled, CounterexampleBudget budget, ulong seed = 0, CancellationToken cancellation = default) =>
+        FindWith(compiled, budget, seed, byResidues: true, ExactFirst, cancellation);
+
+    /// <summary>Points of a search over Q evaluated over the rationals before residues take over (most searches end sooner).</summary>
+    internal const int ExactFirst = 32;
+
+    /// <summary>As the public <see cref="Find(CompiledIdentity, CounterexampleBudget, ulong, CancellationToken)"/>; <paramref name="byResidues"/> false evaluates every point over the rationals (the tests compare the two), true after the first <paramref name="exactFirst"/> points.</summary>
+    internal static Counterexample? FindWith(CompiledIdentity compiled, CounterexampleBudget budget, ulong seed, bool byResidues, int exactFirst = ExactFirst, CancellationToken cancellation = default)
     {
         ArgumentNullException.ThrowIfNull(compiled);
         ArgumentNullException.ThrowIfNull(budget);
@@ -44,7 +51,9 @@ public static class CounterexampleSearch
         {
             var q = new PointEvaluator<RationalField, Rational>(default, program, v => new Rational(v), v => v.ToString(),
                 maxAbs => BoundAnalysis.ExactEvaluationBits(program, Math.Max(1, Math.Log2(maxAbs + 1.0)), budget.MaxPointBits * 2));
-            return q.Ready ? new Search(q, program, budget, long.MaxValue, null, seed, cancellation).Run() : null;
+            if (!q.Ready) return null;
+            IPointEvaluator evaluator = byResidues && ModularPointEvaluator.Applies(program) ? new ModularPointEvaluator(program, q, exactFirst) : q;
+            return new Search(evaluator, program, budget, long.MaxValue, null, seed, cancellation).Run();
         }
         var p = compiled.Field.Characteristic;
         var field = BigPrimeField.Create(p);
@@ -136,6 +145,181 @@ public static class CounterexampleSearch
                     : new Outcome(true, o, _show(_registers[r]), "0");
             }
             return new Outcome(true, -1, "", "");
+        }
+    }
+
+    /// <summary>
+    /// The exact evaluation over Q of a program without inversions and with integer constants (a polynomial with integer
+    /// coefficients), by residues: a bound B on |register| at the points of a max-norm is computed once (sums add,
+    /// products multiply, Hadamard's bound for a determinant, the product of the rows' 1-norms for a permanent, the square root
+    /// of Hadamard's for a Pfaffian), and the program is evaluated modulo fixed primes below 2^62 whose product exceeds 2·B:
+    /// an output is zero over Q exactly when it is zero modulo each of them. Only a differing point is evaluated over the
+    /// rationals, for the sides' values, so the outcome is the same as <see cref="PointEvaluator{TField, T}"/>'s, at the
+    /// cost of a few word-sized evaluations instead of big-integer ones at every point. A point whose bound needs more than
+    /// <see cref="Primes"/> primes is evaluated over the rationals.
+    /// </summary>
+    private sealed class ModularPointEvaluator : IPointEvaluator
+    {
+        /// <summary>The largest primes below 2^62, the moduli (their product exceeds 2^495).</summary>
+        private static readonly PrimeField62[] Primes = LargestPrimes(8);
+
+        private readonly StraightLineProgram _program;
+        private readonly PointEvaluator<RationalField, Rational> _exact;
+        private readonly double[] _constantBits;
+        private readonly double[] _bits;
+        private readonly Residue62[][] _constants;
+        private readonly Residue62[][] _registers;
+        private readonly Residue62[] _values;
+        private readonly Dictionary<long, double> _outputBits = [];
+        private readonly int _exactFirst;
+        private int _calls;
+
+        /// <param name="program">A program for which <see cref="Applies"/> holds.</param>
+        /// <param name="exact">The same program's evaluator over the rationals.</param>
+        /// <param name="exactFirst">Points evaluated over the rationals before the residues take over.</param>
+        public ModularPointEvaluator(StraightLineProgram program, PointEvaluator<RationalField, Rational> exact, int exactFirst)
+        {
+            _exactFirst = exactFirst;
+            _program = program;
+            _exact = exact;
+            _constantBits = program.Constants.Select(c => c.IsZero ? double.NegativeInfinity : BigInteger.Log(BigInteger.Abs(c.Numerator), 2)).ToArray();
+            _bits = new double[program.Length];
+            _constants = new Residue62[Primes.Length][];
+            _registers = new Residue62[Primes.Length][];
+            _values = new Residue62[program.Variables.Length];
+        }
+
+        /// <summary>Whether the program is a polynomial with integer coefficients as written: no inversion, integer constants.</summary>
+        public static bool Applies(StraightLineProgram program)
+        {
+            foreach (var ins in program.Instructions)
+                if (ins.Op is not (OpCode.Constant or OpCode.Variable or OpCode.Add or OpCode.Subtract or OpCode.Multiply or OpCode.Negate
+                    or OpCode.Power or OpCode.Determinant or OpCode.Permanent or OpCode.Pfaffian)) return false;
+            foreach (var c in program.Constants)
+                if (!c.IsInteger) return false;
+            return true;
+        }
+
+        public double Cost(long maxAbs) => _exact.Cost(maxAbs);
+
+        public Outcome Evaluate(long[] point, CancellationToken cancellation)
+        {
+            // Most searches end within a few points (a refuted entry usually differs near the origin): those go over the
+            // rationals, and the residues' setup (bounds, constants per prime) is paid only by a longer search.
+            if (_calls++ < _exactFirst) return _exact.Evaluate(point, cancellation);
+            long maxAbs = 0;
+            foreach (var v in point) maxAbs = Math.Max(maxAbs, Math.Abs(v));
+            if (!_outputBits.TryGetValue(maxAbs, out var bits)) _outputBits[maxAbs] = bits = OutputBits(maxAbs);
+            // |output| <= 2^bits; the primes' product must exceed twice that (a margin of two bits for the rounding of the bound)
+            var primes = double.IsNegativeInfinity(bits) ? 1 : (int)Math.Ceiling((bits + 3) / 61.0);
+            if (primes > Primes.Length || double.IsNaN(bits)) return _exact.Evaluate(point, cancellation);
+            var outputs = _program.Outputs;
+            var first = _program.ConditionNames.Length;
+            var nonzero = -1;
+            for (var k = 0; k < primes; k++)
+            {
+                var field = Primes[k];
+                var constants = _constants[k] ??= Prepare(field);
+                var registers = _registers[k] ??= new Residue62[_program.Length];
+                for (var i = 0; i < point.Length; i++)
+                    _values[i] = point[i] >= 0 ? field.FromUInt64((ulong)point[i]) : field.Negate(field.FromUInt64((ulong)-point[i]));
+                // Without inversions an evaluation is always defined.
+                Evaluator.Evaluate<PrimeField62, Residue62>(field, _program, constants, _values, registers, cancellation);
+                var limit = nonzero < 0 ? outputs.Length : nonzero;
+                for (var o = first; o < limit; o++)
+                    if (!field.IsZero(registers[outputs[o]])) { nonzero = o; break; }
+                if (nonzero == first) break; // no earlier output can be nonzero
+            }
+            // The sides of a differing point are shown as rationals: one exact evaluation, the same as without residues.
+            return nonzero < 0 ? new Outcome(true, -1, "", "") : _exact.Evaluate(point, cancellation);
+        }
+
+        private Residue62[] Prepare(PrimeField62 field)
+        {
+            Evaluator.TryPrepareConstants<PrimeField62, Residue62>(field, _program, out var constants);
+            return constants; // integer constants: always defined
+        }
+
+        /// <summary>
+        /// An upper bound on log2 of |output| over the outputs that are checked (lhs − rhs), at every point of max-norm
+        /// <paramref name="maxAbs"/> (computed once per max-norm).
+        /// </summary>
+        private double OutputBits(long maxAbs)
+        {
+            var variable = maxAbs == 0 ? double.NegativeInfinity : Math.Log2(maxAbs);
+            var ins = _program.Instructions;
+            var b = _bits;
+            for (var i = 0; i < ins.Length; i++)
+            {
+                var x = ins[i];
+                b[i] = x.Op switch
+                {
+                    OpCode.Constant => _constantBits[x.A],
+                    OpCode.Variable => variable,
+                    OpCode.Add or OpCode.Subtract => LogAdd(b[x.A], b[x.B]),
+                    OpCode.Multiply => b[x.A] + b[x.B],
+                    OpCode.Negate => b[x.A],
+                    OpCode.Power => Power(b[x.A], _program.Exponents[x.B]),
+                    OpCode.Determinant => Hadamard(_program.Operands.AsSpan(x.A, x.B * x.B), x.B),
+                    OpCode.Pfaffian => Hadamard(_program.Operands.AsSpan(x.A, x.B * x.B), x.B) / 2,
+                    OpCode.Permanent => RowNorms(_program.Operands.AsSpan(x.A, x.B * x.B), x.B),
+                    _ => double.NaN,
+                };
+                // a relative margin for the rounding of each step
+                if (b[i] > 0) b[i] = b[i] * (1 + 1e-12) + 1e-9;
+            }
+            var most = double.NegativeInfinity;
+            for (var o = _program.ConditionNames.Length; o < _program.Outputs.Length; o++) most = Math.Max(most, b[_program.Outputs[o]]);
+            return most;
+        }
+
+        private static double Power(double a, BigInteger e) =>
+            e.IsZero ? 0 : double.IsNegativeInfinity(a) ? a : a * (double)e;
+
+        /// <summary>log2(2^a + 2^b), rounded up by the caller's margin.</summary>
+        private static double LogAdd(double a, double b)
+        {
+            if (double.IsNegativeInfinity(a)) return b;
+            if (double.IsNegativeInfinity(b)) return a;
+            var (hi, lo) = a >= b ? (a, b) : (b, a);
+            return hi + Math.Log2(1 + Math.Pow(2, lo - hi));
+        }
+
+        /// <summary>Hadamard: |det| ≤ Π over rows of the row's Euclidean norm, in log2.</summary>
+        private double Hadamard(ReadOnlySpan<int> operands, int n)
+        {
+            double total = 0;
+            for (var r = 0; r < n; r++)
+            {
+                var row = double.NegativeInfinity;
+                for (var c = 0; c < n; c++) row = LogAdd(row, 2 * _bits[operands[r * n + c]]);
+                if (double.IsNegativeInfinity(row)) return row;
+                total += row / 2;
+            }
+            return total;
+        }
+
+        /// <summary>|perm| ≤ Π over rows of the row's sum of absolute values, in log2.</summary>
+        private double RowNorms(ReadOnlySpan<int> operands, int n)
+        {
+            double total = 0;
+            for (var r = 0; r < n; r++)
+            {
+                var row = double.NegativeInfinity;
+                for (var c = 0; c < n; c++) row = LogAdd(row, _bits[operands[r * n + c]]);
+                if (double.IsNegativeInfinity(row)) return row;
+                total += row;
+            }
+            return total;
+        }
+
+        private static PrimeField62[] LargestPrimes(int count)
+        {
+            var primes = new PrimeField62[count];
+            var candidate = (1UL << 62) - 1;
+            for (var k = 0; k < count; candidate -= 2)
+                if (Primality.IsPrime(candidate)) primes[k++] = PrimeField62.Create(candidate);
+            return primes;
         }
     }
 

@@ -286,7 +286,36 @@ internal sealed class SparseInterpolation<TField, T>(TField field, int variables
                 p[0] = field.Negate(field.Multiply(nodes[s], p[0]));
             }
             _rows = new T[t][];
-            for (var s = 0; s < t; s++)
+            // Four nodes at a time: their synthetic divisions and Horner sums are independent chains, which the processor
+            // overlaps (one node's chain is bound by the latency of a modular multiply-add).
+            var s0 = 0;
+            for (; s0 + 4 <= t; s0 += 4)
+            {
+                T m0 = nodes[s0], m1 = nodes[s0 + 1], m2 = nodes[s0 + 2], m3 = nodes[s0 + 3];
+                T[] q0 = new T[t], q1 = new T[t], q2 = new T[t], q3 = new T[t];
+                q0[t - 1] = q1[t - 1] = q2[t - 1] = q3[t - 1] = p[t];
+                for (var i = t - 1; i >= 1; i--)
+                {
+                    q0[i - 1] = field.MultiplyAdd(m0, q0[i], p[i]);
+                    q1[i - 1] = field.MultiplyAdd(m1, q1[i], p[i]);
+                    q2[i - 1] = field.MultiplyAdd(m2, q2[i], p[i]);
+                    q3[i - 1] = field.MultiplyAdd(m3, q3[i], p[i]);
+                }
+                T d0 = field.Zero, d1 = field.Zero, d2 = field.Zero, d3 = field.Zero;
+                for (var i = t - 1; i >= 0; i--)
+                {
+                    d0 = field.MultiplyAdd(d0, m0, q0[i]);
+                    d1 = field.MultiplyAdd(d1, m1, q1[i]);
+                    d2 = field.MultiplyAdd(d2, m2, q2[i]);
+                    d3 = field.MultiplyAdd(d3, m3, q3[i]);
+                }
+                Scale(field, q0, d0);
+                Scale(field, q1, d1);
+                Scale(field, q2, d2);
+                Scale(field, q3, d3);
+                (_rows[s0], _rows[s0 + 1], _rows[s0 + 2], _rows[s0 + 3]) = (q0, q1, q2, q3);
+            }
+            for (var s = s0; s < t; s++)
             {
                 // synthetic division of P by (z − m_s): q_{t−1} = p_t, q_{i−1} = p_i + m_s·q_i
                 var q = new T[t];
@@ -294,10 +323,16 @@ internal sealed class SparseInterpolation<TField, T>(TField field, int variables
                 for (var i = t - 1; i >= 1; i--) q[i - 1] = field.MultiplyAdd(nodes[s], q[i], p[i]);
                 var denominator = field.Zero;
                 for (var i = t - 1; i >= 0; i--) denominator = field.MultiplyAdd(denominator, nodes[s], q[i]);
-                field.TryInvert(denominator, out var inverse);
-                for (var i = 0; i < t; i++) q[i] = field.Multiply(q[i], inverse);
+                Scale(field, q, denominator);
                 _rows[s] = q;
             }
+        }
+
+        /// <summary>Divides the row by P_s(m_s).</summary>
+        private static void Scale(TField field, T[] q, T denominator)
+        {
+            field.TryInvert(denominator, out var inverse);
+            for (var i = 0; i < q.Length; i++) q[i] = field.Multiply(q[i], inverse);
         }
 
         public T[] Solve(T[] values)
@@ -305,10 +340,19 @@ internal sealed class SparseInterpolation<TField, T>(TField field, int variables
             var c = new T[_rows.Length];
             for (var s = 0; s < c.Length; s++)
             {
-                var sum = _field.Zero;
+                // four independent sums (exact arithmetic: the order of the additions does not change the result)
+                T sum0 = _field.Zero, sum1 = _field.Zero, sum2 = _field.Zero, sum3 = _field.Zero;
                 var row = _rows[s];
-                for (var i = 0; i < row.Length; i++) sum = _field.MultiplyAdd(row[i], values[i], sum);
-                c[s] = sum;
+                var i = 0;
+                for (; i + 4 <= row.Length; i += 4)
+                {
+                    sum0 = _field.MultiplyAdd(row[i], values[i], sum0);
+                    sum1 = _field.MultiplyAdd(row[i + 1], values[i + 1], sum1);
+                    sum2 = _field.MultiplyAdd(row[i + 2], values[i + 2], sum2);
+                    sum3 = _field.MultiplyAdd(row[i + 3], values[i + 3], sum3);
+                }
+                for (; i < row.Length; i++) sum0 = _field.MultiplyAdd(row[i], values[i], sum0);
+                c[s] = _field.Add(_field.Add(sum0, sum1), _field.Add(sum2, sum3));
             }
             return c;
         }

@@ -189,3 +189,52 @@ public sealed class CounterexampleSearchTests
         return ordered.First(p => !f.At(p).IsZero);
     }
 }
+
+/// <summary>
+/// Issue #16: over Q a polynomial program is evaluated by residues modulo primes below 2^62 with a bound on the values; the
+/// search must find exactly what evaluating every point over the rationals finds.
+/// </summary>
+public sealed class CounterexampleByResiduesTests
+{
+    [Theory]
+    // Vandermonde's determinant det(x_i^(j−1)) = Π_{i<j} (x_j − x_i) (a published identity), in the three false forms of
+    // ../shared/bench/gen-catalogue.py: twice the product (zero wherever two coordinates agree), a sign flipped, an off-by-one.
+    [InlineData("det(matrix(i in 1..4, j in 1..4: x[i]^(j-1))) = 2*prod(i in 1..4: prod(j in i+1..4: x[j] - x[i]))")]
+    [InlineData("det(matrix(i in 1..5, j in 1..5: x[i]^(j-1))) = prod(i in 1..5: prod(j in i+1..5: x[j] + x[i]))")]
+    [InlineData("det(matrix(i in 1..4, j in 1..4: x[i]^(j-1))) = prod(i in 1..4: prod(j in i..4: x[j] - x[i] + 1))")]
+    // The permanent is not the determinant (they agree on 2×2 matrices with a zero product off the diagonal only).
+    [InlineData("perm(matrix(i in 1..3, j in 1..3: x[i]^(j-1))) = det(matrix(i in 1..3, j in 1..3: x[i]^(j-1)))")]
+    // The Pfaffian of a 4×4 skew-symmetric matrix is af − be + cd (a standard formula); here with a wrong sign.
+    [InlineData("pf([[0, a, b, c], [-a, 0, d, e], [-b, -d, 0, f], [-c, -e, -f, 0]]) = a*f + b*e + c*d")]
+    // A matrix identity: the entry [2,2] differs.
+    [InlineData("[[a, b], [c, d]]^2 = [[a^2 + b*c, a*b + b*d], [a*c + c*d, d^2]]")]
+    // Values above 2^62: the difference −4611686018427387847·x is a multiple of the first modulus (the largest prime below
+    // 2^62, sympy prevprime(2**62)), so a second prime must show it nonzero.
+    [InlineData("x = x + 4611686018427387847")]
+    [InlineData("x*y = x*y + 4611686018427387847*4611686018427387817*x")]
+    [InlineData("(x + y)^9 = x^9 + y^9 + 9*x*y*(x^7 + y^7)")]
+    public void ResiduesFindWhatRationalsFind(string line)
+    {
+        var compiled = Some.Compiled(line);
+        var exact = CounterexampleSearch.FindWith(compiled, CounterexampleBudget.Default, 7, byResidues: false);
+        var residues = CounterexampleSearch.FindWith(compiled, CounterexampleBudget.Default, 7, byResidues: true, exactFirst: 0);
+        Assert.NotNull(exact);
+        Assert.NotNull(residues);
+        Assert.Equal(exact.Describe(), residues.Describe());
+        Assert.Equal(exact.PointsTried, residues.PointsTried);
+        Assert.Equal(exact.Exhaustive, residues.Exhaustive);
+        Assert.Equal(exact.CompleteShells, residues.CompleteShells);
+    }
+
+    [Fact]
+    public void AMultipleOfTheFirstModulus_IsNotTakenForZero()
+    {
+        // lhs − rhs = −4611686018427387847 (the largest prime below 2^62, sympy prevprime(2**62)) everywhere: the origin; worked by hand.
+        var cx = CounterexampleSearch.FindWith(Some.Compiled("x = x + 4611686018427387847"), CounterexampleBudget.Default, 0, byResidues: true, exactFirst: 0)!;
+        Assert.Equal("fails at x = 0: lhs = 0, rhs = 4611686018427387847", cx.Describe());
+        Assert.Equal(1, cx.PointsTried);
+        // p1·p2·x vanishes modulo both of the first two moduli: the first point with x ≠ 0 of the order, (1, 0); worked by hand.
+        var two = CounterexampleSearch.FindWith(Some.Compiled("x*y = x*y + 4611686018427387847*4611686018427387817*x"), CounterexampleBudget.Default, 0, byResidues: true, exactFirst: 0)!;
+        Assert.Equal("fails at x = 1, y = 0: lhs = 0, rhs = 21267647932558653302378126310941659999", two.Describe());
+    }
+}
