@@ -18,13 +18,18 @@ public static class ImportCommand
         };
         var catalogue = new Option<string?>("--catalogue") { HelpName = "NAME", Description = "The catalogue's name (default: the file name without its extension); one file only." };
         var seed = new Option<long?>("--seed") { HelpName = "S", Description = "The catalogue's run seed, 0 to 2^63-1 (default: a random one, stored, so runs can be repeated)." };
+        var noGrouping = new Option<bool>("--no-grouping")
+        {
+            Description = "Do not fingerprint the entries to group those that are the same identity written differently (by default\n" +
+                "each group's first entry is screened and the others share its result, marked as shared).",
+        };
         var store = new StoreOptions();
         var command = new Command("import", "Load catalogue files into the store. Every good entry is imported; a bad one is recorded in the\n" +
             "table 'rejection' with its line, raw text and reason, and does not stop the import. A file whose catalogue name\n" +
             "is already in the store is refused (exit 2): give another name with --catalogue.\n\n" +
             "Examples:\n  idq import identities.idq\n  idq import batch.jsonl --catalogue batch-2 --seed 42")
         {
-            files, catalogue, seed,
+            files, catalogue, seed, noGrouping,
         };
         store.AddTo(command);
         command.SetAction(parse =>
@@ -38,7 +43,7 @@ public static class ImportCommand
             }
             using var connection = store.OpenCurrent(parse, "import", error);
             if (connection is null) return ExitCodes.BadInput;
-            return Execute(connection, paths, new ImportOptions { CatalogueName = name, Seed = parse.GetValue(seed) }, output, error);
+            return Execute(connection, paths, new ImportOptions { CatalogueName = name, Seed = parse.GetValue(seed), GroupEquivalents = !parse.GetValue(noGrouping) }, output, error);
         });
         return command;
     }
@@ -70,6 +75,9 @@ public static class ImportCommand
             output.WriteLine($"{path}: catalogue '{s.Catalogue}' (id {s.CatalogueId}, seed {s.Seed}): " +
                 $"{Count(s.Entries, "entry", "entries")}, {Count(s.Instances, "instance", "instances")}, " +
                 $"{Count(s.Rejections, "rejection", "rejections")} ({s.Lines} lines in {s.Elapsed.TotalSeconds:F1} s{rate})");
+            if (s.Grouping is { Members: > 0 } g)
+                output.WriteLine($"  {Count(g.Members, "entry is", "entries are")} the same identity as an earlier one ({Count(g.Groups, "group", "groups")}; " +
+                    $"screened once per group, the others share the result: idq sql \"SELECT * FROM equivalents\")");
             foreach (var w in s.Warnings) error.WriteLine($"idq import: warning: {path}: {w}");
             foreach (var r in s.FirstRejections.Take(RejectionsShown - shown)) output.WriteLine($"  rejected {r}");
             shown += Math.Min(s.FirstRejections.Count, RejectionsShown - shown);

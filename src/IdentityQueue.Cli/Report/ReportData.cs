@@ -118,6 +118,9 @@ internal sealed class ReportData
     public required IReadOnlyList<RejectionInfo> Rejections { get; init; }
     public required long RejectionsTotal { get; init; }
 
+    /// <summary>Equivalence groups (#15 point 4, <see cref="EquivalenceSection"/>); none unless loaded.</summary>
+    public EquivalenceInfo Equivalence { get; init; } = EquivalenceInfo.None;
+
     public long Total(string state) => StateCounts.Where(s => s.State == state).Sum(s => s.Count);
 
     public long Total(ResultState state) => Total(state.Text());
@@ -158,6 +161,7 @@ internal sealed class ReportData
             InstancesTruncated = instances.Count > MaxInstances,
             Rejections = [.. reads.Rejections(MaxRejections).Select(r => new RejectionInfo(r.Catalogue, r.Source, r.Line, r.Raw, r.Reason))],
             RejectionsTotal = reads.RejectionsTotal(),
+            Equivalence = EquivalenceInfo.Load(store, catalogues),
         };
     }
 

@@ -52,6 +52,7 @@ internal static class ReportPage
         Evidence(html, data);
         Time(html, data);
         Families(html, data);
+        EquivalenceSection.Append(html, data);
         Rejections(html, data);
         html.Append($"""
             </main>

@@ -246,6 +246,11 @@ public sealed class CandidateStore(StoreConnection store)
             if (outcome.Details?.Difference is { } difference && details.Difference(outcome.CandidateId, difference) is { } insert)
                 Run(insert, isResult: false);
         }
+        // Members of the groups of representatives that settled share their result, in this transaction (after their rows).
+        using var share = _db.Command(SharedResults.Share(_store), transaction);
+        var settled = outcomes.Where(o => existing.Contains(o.CandidateId) && StateOf(o) is ResultStates.Refuted or ResultStates.Survived).Select(o => o.CandidateId).ToList();
+        share.Parameter("@representatives", _store.IdList(settled));
+        if (settled.Count > 0) Run(share, isResult: false);
         if (batch is { BatchCommands.Count: > 0 })
         {
             batch.ExecuteNonQuery();
