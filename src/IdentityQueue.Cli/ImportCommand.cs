@@ -77,7 +77,8 @@ public static class ImportCommand
                 $"{Count(s.Rejections, "rejection", "rejections")} ({s.Lines} lines in {s.Elapsed.TotalSeconds:F1} s{rate})");
             if (s.Grouping is { Members: > 0 } g)
                 output.WriteLine($"  {Count(g.Members, "entry is", "entries are")} the same identity as an earlier one ({Count(g.Groups, "group", "groups")}; " +
-                    $"screened once per group, the others share the result: idq sql \"SELECT * FROM equivalents\")");
+                    $"screened once per group, the others share the result: idq sql \"SELECT * FROM equivalents\"); grouping took " +
+                    $"{g.Elapsed.TotalSeconds:F1} s ({g.Computed} fingerprints in {g.FingerprintTime.TotalSeconds:F1} s, {g.Pairs} chance bounds in {g.BoundTime.TotalSeconds:F1} s)");
             foreach (var w in s.Warnings) error.WriteLine($"idq import: warning: {path}: {w}");
             foreach (var r in s.FirstRejections.Take(RejectionsShown - shown)) output.WriteLine($"  rejected {r}");
             shown += Math.Min(s.FirstRejections.Count, RejectionsShown - shown);

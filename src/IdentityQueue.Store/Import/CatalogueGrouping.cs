@@ -11,7 +11,23 @@ using IdentityQueue.Store.Work;
 namespace IdentityQueue.Store.Import;
 
 /// <summary>What grouping a catalogue found: fingerprinted candidates, members written (entries after the first of their group), groups, time.</summary>
-public sealed record GroupingSummary(int Candidates, int Fingerprinted, int Members, int Groups, TimeSpan Elapsed);
+public sealed record GroupingSummary(int Candidates, int Fingerprinted, int Members, int Groups, TimeSpan Elapsed)
+{
+    /// <summary>Fingerprints computed (the others were of a text seen before, or its sides swapped).</summary>
+    public int Computed { get; init; }
+
+    /// <summary>Chance bounds computed (one per distinct pair of representative and member texts).</summary>
+    public int Pairs { get; init; }
+
+    /// <summary>Time to read the candidates.</summary>
+    public TimeSpan ReadTime { get; init; }
+
+    /// <summary>Time to fingerprint them.</summary>
+    public TimeSpan FingerprintTime { get; init; }
+
+    /// <summary>Time to bound the chance of a false match of the members.</summary>
+    public TimeSpan BoundTime { get; init; }
+}
 
 /// <summary>
 /// Groups the candidates of one catalogue that are the same identity written differently (#15 point 4): each candidate is
@@ -41,23 +57,48 @@ public sealed class CatalogueGrouping(StoreConnection store)
         limits ??= Limits.Default;
         var clock = Stopwatch.StartNew();
         var candidates = new List<StoredCandidate>();
-        using (var read = _db.Command(CandidateStore.CandidateColumns + " WHERE c.catalogue_id = @id ORDER BY c.id"))
+        using (var select = _db.Command(CandidateStore.CandidateColumns + " WHERE c.catalogue_id = @id ORDER BY c.id"))
         {
-            read.Parameter("@id", catalogueId);
-            using var r = read.ExecuteReader();
+            select.Parameter("@id", catalogueId);
+            using var r = select.ExecuteReader();
             while (r.Read()) candidates.Add(CandidateStore.ReadCandidate(r));
         }
+        var read = clock.Elapsed;
         var prints = new Fingerprint?[candidates.Count];
-        // Consecutive ranges, so that a family's instances (adjacent ids, the same stored sides) share one parse per range.
-        var ranges = Partitioner.Create(0, candidates.Count, 256);
-        Parallel.ForEach(ranges, new ParallelOptions { MaxDegreeOfParallelism = threads ?? Environment.ProcessorCount }, range =>
+        // A text seen before (the same sides, field and parameters, or the sides swapped) has that print: the same
+        // identity, computed once. Consecutive ranges, so that a family's instances (adjacent ids, the same stored sides)
+        // share one parse per range.
+        var known = new ConcurrentDictionary<(string Lhs, string Rhs, string Field, string? Params), Fingerprint?>();
+        var computed = 0;
+        var parallel = new ParallelOptions { MaxDegreeOfParallelism = threads ?? Environment.ProcessorCount };
+        Parallel.ForEach(Partitioner.Create(0, candidates.Count, 256), parallel, range =>
         {
             var sides = new StoredSides();
-            for (var i = range.Item1; i < range.Item2; i++) prints[i] = PrintOf(candidates[i], limits, sides);
+            for (var i = range.Item1; i < range.Item2; i++)
+            {
+                var c = candidates[i];
+                if (known.TryGetValue((c.Lhs, c.Rhs, c.Field, c.Params), out var same)) prints[i] = same;
+                else if (known.TryGetValue((c.Rhs, c.Lhs, c.Field, c.Params), out var mirrored))
+                    prints[i] = mirrored is { } m ? m with { Left = m.Right, Right = m.Left } : null;
+                else
+                {
+                    prints[i] = known[(c.Lhs, c.Rhs, c.Field, c.Params)] = PrintOf(c, limits, sides);
+                    Interlocked.Increment(ref computed);
+                }
+            }
         });
+        var fingerprinted = clock.Elapsed;
         var rows = EquivalenceGroups.Build(candidates.Select((c, i) => (c.Id, prints[i])));
         var byId = new Dictionary<long, int>(candidates.Count);
         for (var i = 0; i < candidates.Count; i++) byId[candidates[i].Id] = i;
+        // The chance bound per distinct pair of texts (members written exactly like an earlier member share it), in parallel.
+        var pairs = rows.Select(r => (Representative: byId[r.RepresentativeId], Member: byId[r.Id], r.Swapped))
+            .GroupBy(p => (Text(candidates[p.Representative]), Text(candidates[p.Member]), p.Swapped))
+            .Select(g => g.First()).ToList();
+        var bounds = new ConcurrentDictionary<((string, string, string, string?), (string, string, string, string?), bool), int?>();
+        Parallel.ForEach(pairs, parallel, p => bounds[(Text(candidates[p.Representative]), Text(candidates[p.Member]), p.Swapped)] =
+            FalseMatchBits(candidates[p.Representative], prints[p.Representative]!.Value, candidates[p.Member], p.Swapped, limits));
+        var bounded = clock.Elapsed;
 
         using var transaction = _db.BeginTransaction();
         using var insert = _db.Command("""
@@ -76,13 +117,22 @@ public sealed class CatalogueGrouping(StoreConnection store)
             candidate.Set(row.Id);
             group.Set(row.RepresentativeId);
             swapped.Set(row.Swapped);
-            bits.Set(FalseMatchBits(candidates[representative], prints[representative]!.Value, candidates[byId[row.Id]], row.Swapped, limits));
+            bits.Set(bounds[(Text(candidates[representative]), Text(candidates[byId[row.Id]]), row.Swapped)]);
             insert.ExecuteNonQuery();
         }
         transaction.Commit();
         var groups = rows.Select(r => r.RepresentativeId).Distinct().Count();
-        return new GroupingSummary(candidates.Count, prints.Count(p => p is not null), rows.Count, groups, clock.Elapsed);
+        return new GroupingSummary(candidates.Count, prints.Count(p => p is not null), rows.Count, groups, clock.Elapsed)
+        {
+            Computed = computed,
+            Pairs = pairs.Count,
+            ReadTime = read,
+            FingerprintTime = fingerprinted - read,
+            BoundTime = bounded - fingerprinted,
+        };
     }
+
+    private static (string, string, string, string?) Text(StoredCandidate c) => (c.Lhs, c.Rhs, c.Field, c.Params);
 
     /// <summary>The fingerprint of a stored candidate, or null when it has none (it does not bind, compile or evaluate; a series identity).</summary>
     internal static Fingerprint? PrintOf(StoredCandidate candidate, Limits limits, StoredSides? sides = null)
