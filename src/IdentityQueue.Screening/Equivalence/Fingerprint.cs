@@ -195,8 +195,9 @@ public readonly record struct Fingerprint(string Field, string Shape, UInt128 Le
             var weights = new T[program.Outputs.Length - first];
             for (var e = 0; e < weights.Length; e++)
             {
+                if (weights.Length == 1) { weights[e] = field.One; break; }
                 var random = new Xoshiro256(Hash(seed, "entry", f, e.ToString(System.Globalization.CultureInfo.InvariantCulture)));
-                weights[e] = weights.Length == 1 ? field.One : field.Sample(ref random);
+                weights[e] = field.Sample(ref random);
             }
             var found = 0;
             for (var k = 0; found < Points && k < Points + MaxSkipped; k++)
@@ -237,7 +238,20 @@ public readonly record struct Fingerprint(string Field, string Shape, UInt128 Le
     }
 
     /// <summary>The generator that samples variable <paramref name="name"/> at point <paramref name="k"/> of field <paramref name="f"/>.</summary>
-    internal static Xoshiro256 PointRandom(RunSeed seed, int f, int k, string name) => new(Hash(seed, "point", f, k, name));
+    internal static Xoshiro256 PointRandom(RunSeed seed, int f, int k, string name)
+    {
+        // A name has one value per point across a catalogue: its hash is computed once (a SHA-256 per variable, point and
+        // field would cost more than evaluating most sides). Cleared past MaxPointSeeds.
+        if (PointSeeds.TryGetValue((seed.Value, f, k, name), out var known)) return new Xoshiro256(known);
+        if (PointSeeds.Count >= MaxPointSeeds) PointSeeds.Clear();
+        var hash = Hash(seed, "point", f, k, name);
+        PointSeeds.TryAdd((seed.Value, f, k, name), hash);
+        return new Xoshiro256(hash);
+    }
+
+    private const int MaxPointSeeds = 1 << 16;
+
+    private static readonly ConcurrentDictionary<(ulong Seed, int Field, int Point, string Name), ulong> PointSeeds = new();
 
     private static void Append(IncrementalHash hash, int field, int point, BigInteger[] coefficients)
     {

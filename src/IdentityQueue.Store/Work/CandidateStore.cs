@@ -199,7 +199,7 @@ public sealed class CandidateStore(StoreConnection store)
                 state = excluded.state, degree_bound = excluded.degree_bound, height_bound_log2 = excluded.height_bound_log2,
                 trials_zero = excluded.trials_zero, error_bound_log2 = excluded.error_bound_log2,
                 witness_trial_id = excluded.witness_trial_id, certified = excluded.certified, message = excluded.message,
-                updated_at = excluded.updated_at, claimed_by = NULL, claimed_at = NULL
+                updated_at = excluded.updated_at, claimed_by = NULL, claimed_at = NULL, shared_from = NULL
             WHERE @trials >= (SELECT COUNT(*) FROM trial t WHERE t.candidate_id = excluded.candidate_id)
             """, transaction);
         var p = new
@@ -213,7 +213,8 @@ public sealed class CandidateStore(StoreConnection store)
             INSERT INTO result (candidate_id, state, message, updated_at, claimed_by, claimed_at)
             VALUES (@candidate, @state, @message, CURRENT_TIMESTAMP, NULL, NULL)
             ON CONFLICT (candidate_id) DO UPDATE SET
-                state = excluded.state, message = excluded.message, updated_at = excluded.updated_at, claimed_by = NULL, claimed_at = NULL
+                state = excluded.state, message = excluded.message, updated_at = excluded.updated_at, claimed_by = NULL, claimed_at = NULL,
+                shared_from = NULL
             """, transaction);
         var u = new { Candidate = unscreened.Parameter("@candidate"), State = unscreened.Parameter("@state"), Message = unscreened.Parameter("@message") };
         using var details = new DetailInsert(_db, transaction);
