@@ -60,4 +60,30 @@ public sealed class SharedResultsTests
         // Nothing was shared: a failed or invalid representative's result is its own.
         Assert.Equal(0, store.Count("SELECT COUNT(*) FROM result WHERE shared_from IS NOT NULL"));
     }
+
+    [Fact]
+    public void ARepresentativeSavedSurvived_SharesWithItsWaitingMembers_OnceAndMarked()
+    {
+        using var store = TempStore.Create();
+        store.Import(store.File("g.idq", Catalogue), new ImportOptions { Seed = 5 });
+        var candidates = new CandidateStore(store.Connection);
+        Assert.True(candidates.SaveOutcome(1, Some.Screen(store, 1), Some.Worker));
+        const string member = "SELECT state, shared_from, degree_bound, error_bound_log2, message, trials_zero FROM result WHERE candidate_id = 2";
+        var shared = Assert.Single(store.Rows(member));
+        var representative = Assert.Single(store.Rows("SELECT state, degree_bound, error_bound_log2 FROM result WHERE candidate_id = 1"));
+        Assert.Equal(["survived", 1L, representative[1], representative[2]], shared[..4]);
+        Assert.StartsWith("same identity as square (fingerprint match, chance of a false match ≤ 2^-", (string)shared[4]!);
+        Assert.Equal(0L, shared[5]);
+        // The member of the other group, whose representative is still pending, waits.
+        Assert.Equal("pending", store.Scalar("SELECT state FROM result WHERE candidate_id = 4"));
+
+        // A job that runs twice saves the representative again: the member is already final and stays as it is.
+        candidates.SaveOutcome(1, Some.Screen(store, 1), Some.Worker);
+        Assert.Equal(shared, Assert.Single(store.Rows(member)));
+
+        // Screened on its own later (a run that reopened it), its result is its own again.
+        store.Execute("UPDATE result SET state = 'pending' WHERE candidate_id = 2");
+        Assert.True(candidates.SaveOutcome(2, Some.Screen(store, 2), Some.Worker));
+        Assert.Null(store.Scalar("SELECT shared_from FROM result WHERE candidate_id = 2"));
+    }
 }
