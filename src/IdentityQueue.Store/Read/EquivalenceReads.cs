@@ -56,10 +56,10 @@ public static class EquivalenceReads
     {
         var (filter, parameters) = ReadSql.In("k.name", "k", catalogues ?? []);
         var totals = ReadSql.Rows(store, $"""
-            SELECT COUNT(DISTINCT e.group_candidate_id) AS groups, COUNT(*) AS members
+            SELECT COUNT(DISTINCT e.group_candidate_id) AS group_count, COUNT(*) AS member_count
             FROM equivalence e JOIN candidate g ON g.id = e.group_candidate_id JOIN catalogue k ON k.id = g.catalogue_id
             WHERE 1 = 1{filter}
-            """, parameters, r => (r.Long("groups"), r.Long("members")))[0];
+            """, parameters, r => (r.Long("group_count"), r.Long("member_count")))[0];
         var listed = new List<(string Name, object? Value)>(parameters) { ("@max", maxGroups) };
         var rows = ReadSql.Rows(store, $"""
             SELECT k.name AS catalogue, g.id AS representative_id, g.label AS representative, COALESCE(gr.state, 'pending') AS state,

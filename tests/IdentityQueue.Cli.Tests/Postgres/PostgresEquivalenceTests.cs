@@ -45,5 +45,10 @@ public sealed class PostgresEquivalenceTests : IDisposable
         Assert.Equal(5, results.Count(r => r.Contains("|same identity as ", StringComparison.Ordinal)));
         Assert.Equal(Rows(StoreLocation.Sqlite(sqlite), shared), results);
         Assert.Contains("same identity  as wrong (candidate 4, sides swapped;", Idq("show", "wrong-swapped", "--postgres", pg).Out);
+        var report = Path.Combine(_dir, "report");
+        Assert.Equal(0, Idq("report", "--postgres", pg, "--out", report).Code);
+        var html = File.ReadAllText(Path.Combine(report, "index.html"));
+        Assert.Equal(4, System.Text.RegularExpressions.Regex.Count(html, "<tr data-key=\"\\d+\" data-members="));
+        Assert.Contains("4 groups, 5 entries share a result", html);
     }
 }
