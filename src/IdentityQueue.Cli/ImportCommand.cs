@@ -31,6 +31,11 @@ public static class ImportCommand
                 "is unchanged keeps its id, verdict and trials (a new label is taken over); new or edited entries are screened by the next run;\n" +
                 "entries no longer in the file are removed. The old version's verdicts are kept for 'idq compare NAME'. One file only.",
         };
+        var noGrouping = new Option<bool>("--no-grouping")
+        {
+            Description = "Do not fingerprint the entries to group those that are the same identity written differently (by default\n" +
+                "each group's first entry is screened and the others share its result, marked as shared).",
+        };
         var store = new StoreOptions();
         var command = new Command("import", "Load catalogue files into the store. Every good entry is imported; a bad one is recorded in the\n" +
             "table 'rejection' with its line, raw text and reason, and does not stop the import. A file whose catalogue name\n" +
@@ -38,7 +43,7 @@ public static class ImportCommand
             "Examples:\n  idq import identities.idq\n  idq import batch.jsonl --catalogue batch-2 --seed 42\n  idq import moser.idq --open-budget 200\n" +
             "  idq import identities.idq --new-version   # screen only what changed; then: idq compare identities")
         {
-            files, catalogue, seed, openBudget, newVersion,
+            files, catalogue, seed, openBudget, newVersion, noGrouping,
         };
         store.AddTo(command);
         command.SetAction(parse =>
@@ -69,8 +74,8 @@ public static class ImportCommand
             using var connection = store.OpenCurrent(parse, "import", error);
             if (connection is null) return ExitCodes.BadInput;
             if (parse.GetValue(newVersion))
-                return ExecuteNewVersion(connection, paths[0], new ImportOptions { CatalogueName = name, Seed = parse.GetValue(seed), OpenBudget = budget }, output, error);
-            return Execute(connection, paths, new ImportOptions { CatalogueName = name, Seed = parse.GetValue(seed), OpenBudget = budget }, output, error);
+                return ExecuteNewVersion(connection, paths[0], new ImportOptions { CatalogueName = name, Seed = parse.GetValue(seed), OpenBudget = budget, GroupEquivalents = !parse.GetValue(noGrouping) }, output, error);
+            return Execute(connection, paths, new ImportOptions { CatalogueName = name, Seed = parse.GetValue(seed), OpenBudget = budget, GroupEquivalents = !parse.GetValue(noGrouping) }, output, error);
         });
         return command;
     }
@@ -102,6 +107,10 @@ public static class ImportCommand
             output.WriteLine($"{path}: catalogue '{s.Catalogue}' (id {s.CatalogueId}, seed {s.Seed}): " +
                 $"{Count(s.Entries, "entry", "entries")}, {Count(s.Instances, "instance", "instances")}, " +
                 $"{Count(s.Rejections, "rejection", "rejections")} ({s.Lines} lines in {s.Elapsed.TotalSeconds:F1} s{rate})");
+            if (s.Grouping is { Members: > 0 } g)
+                output.WriteLine($"  {Count(g.Members, "entry is", "entries are")} the same identity as an earlier one ({Count(g.Groups, "group", "groups")}; " +
+                    $"screened once per group, the others share the result: idq sql \"SELECT * FROM equivalents\"); grouping took " +
+                    $"{g.Elapsed.TotalSeconds:F1} s ({g.Computed} fingerprints in {g.FingerprintTime.TotalSeconds:F1} s, {g.Pairs} chance bounds in {g.BoundTime.TotalSeconds:F1} s)");
             foreach (var w in s.Warnings) error.WriteLine($"idq import: warning: {path}: {w}");
             foreach (var r in s.FirstRejections.Take(RejectionsShown - shown)) output.WriteLine($"  rejected {r}");
             shown += Math.Min(s.FirstRejections.Count, RejectionsShown - shown);

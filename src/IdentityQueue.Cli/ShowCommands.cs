@@ -65,6 +65,7 @@ internal static class ShowCommands
             o.WriteLine($"                 {x.Smallness}");
         }
         if (detail.Difference is { } d) o.WriteLine($"  difference     {d.Describe()}");
+        if (detail.Equivalence is { } g) WriteEquivalence(o, g, state);
         o.WriteLine($"  trials         {trials.Count}");
         foreach (var t in trials)
         {
@@ -170,6 +171,7 @@ internal static class ShowCommands
             if (detail.Result is { } r) WriteResult(w, r);
             w.WriteEndObject();
             WriteDetails(w, detail);
+            WriteEquivalence(w, detail.Equivalence);
             w.WriteStartArray("trials");
             foreach (var t in trials)
             {
@@ -201,6 +203,46 @@ internal static class ShowCommands
             w.WriteEndObject();
         }
         output.WriteLine(System.Text.Encoding.UTF8.GetString(stream.ToArray()));
+    }
+
+    /// <summary>The candidate's equivalence group: the representative whose result it shares (or waits for), or the entries that share its own.</summary>
+    private static void WriteEquivalence(TextWriter o, StoredEquivalence g, ResultState state)
+    {
+        if (g.RepresentativeId is { } id)
+        {
+            var how = g.SharedFrom is not null ? "its result is shared from there, not screened here"
+                : state.IsFinal() ? "screened on its own (the representative's result was not shared)"
+                : "waits for the representative's result";
+            o.WriteLine($"  same identity  as {g.RepresentativeLabel} (candidate {id}{(g.Swapped ? ", sides swapped" : "")}; " +
+                $"fingerprint match, chance of a false match {g.Chance}): {how}");
+        }
+        else
+        {
+            o.WriteLine($"  written also as {string.Join(", ", g.Members.Take(10))}{(g.Members.Count > 10 ? $", … ({g.Members.Count} in all)" : "")}" +
+                " (the same identity by fingerprint; they share this result)");
+        }
+    }
+
+    /// <summary>The equivalence group under the columns of <c>equivalents</c> and <c>result.shared_from</c>; members for a representative; null when in none.</summary>
+    private static void WriteEquivalence(Utf8JsonWriter w, StoredEquivalence? g)
+    {
+        if (g is null) { w.WriteNull("equivalence"); return; }
+        w.WriteStartObject("equivalence");
+        if (g.RepresentativeId is { } id)
+        {
+            w.WriteNumber("group_candidate_id", id);
+            w.WriteString("group_label", g.RepresentativeLabel);
+            w.WriteNumber("swapped", g.Swapped ? 1 : 0);
+            if (g.FalseMatchBits is { } k) w.WriteNumber("false_match_bits", k); else w.WriteNull("false_match_bits");
+            if (g.SharedFrom is { } from) w.WriteNumber("shared_from", from); else w.WriteNull("shared_from");
+        }
+        else
+        {
+            w.WriteStartArray("members");
+            foreach (var m in g.Members) w.WriteStringValue(m);
+            w.WriteEndArray();
+        }
+        w.WriteEndObject();
     }
 
     /// <summary>The refutation's counterexample and difference under the columns of their views (null when none was found).</summary>

@@ -220,6 +220,10 @@ namespace IdentityQueue.Migrations.PostgreSql.Migrations
                         .HasColumnType("bigint")
                         .HasColumnName("candidate_id");
 
+                    b.Property<int?>("FalseMatchBits")
+                        .HasColumnType("integer")
+                        .HasColumnName("false_match_bits");
+
                     b.Property<long>("GroupCandidateId")
                         .HasColumnType("bigint")
                         .HasColumnName("group_candidate_id");
@@ -396,6 +400,10 @@ namespace IdentityQueue.Migrations.PostgreSql.Migrations
                     b.Property<string>("Message")
                         .HasColumnType("text")
                         .HasColumnName("message");
+
+                    b.Property<long?>("SharedFrom")
+                        .HasColumnType("bigint")
+                        .HasColumnName("shared_from");
 
                     b.Property<string>("State")
                         .IsRequired()

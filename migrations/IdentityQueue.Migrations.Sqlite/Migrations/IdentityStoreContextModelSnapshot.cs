@@ -211,6 +211,10 @@ namespace IdentityQueue.Migrations.Sqlite.Migrations
                         .HasColumnType("INTEGER")
                         .HasColumnName("candidate_id");
 
+                    b.Property<int?>("FalseMatchBits")
+                        .HasColumnType("INTEGER")
+                        .HasColumnName("false_match_bits");
+
                     b.Property<long>("GroupCandidateId")
                         .HasColumnType("INTEGER")
                         .HasColumnName("group_candidate_id");
@@ -383,6 +387,10 @@ namespace IdentityQueue.Migrations.Sqlite.Migrations
                     b.Property<string>("Message")
                         .HasColumnType("TEXT")
                         .HasColumnName("message");
+
+                    b.Property<long?>("SharedFrom")
+                        .HasColumnType("INTEGER")
+                        .HasColumnName("shared_from");
 
                     b.Property<string>("State")
                         .IsRequired()

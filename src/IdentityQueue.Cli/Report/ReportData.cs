@@ -148,6 +148,9 @@ internal sealed class ReportData
     public IReadOnlyList<RefutationInfo> Refutations { get; init; } = [];
     public long RefutationsTotal { get; init; }
 
+    /// <summary>Equivalence groups (#15 point 4, <see cref="EquivalenceSection"/>); none unless loaded.</summary>
+    public EquivalenceInfo Equivalence { get; init; } = EquivalenceInfo.None;
+
     public long Total(string state) => StateCounts.Where(s => s.State == state).Sum(s => s.Count);
 
     public long Total(ResultState state) => Total(state.Text());
@@ -201,6 +204,7 @@ internal sealed class ReportData
                 Algebra.Syntax.ExprPrinter.Line(Algebra.Syntax.ExprPrinter.Canonical(r.Lhs), Algebra.Syntax.ExprPrinter.Canonical(r.Rhs), r.Field), r.Counterexample?.Describe(), r.Counterexample?.Smallness,
                 r.Difference?.Describe()))],
             RefutationsTotal = reads.RefutationsTotal(),
+            Equivalence = EquivalenceInfo.Load(store, catalogues),
         };
     }
 

@@ -53,7 +53,7 @@ internal static class ReportPage
         Time(html, data);
         Families(html, data);
         Refutations(html, data);
-        // further sections of evidence (e.g. equivalence groups) go here, before the rejections
+        EquivalenceSection.Append(html, data);
         Rejections(html, data);
         html.Append($"""
             </main>

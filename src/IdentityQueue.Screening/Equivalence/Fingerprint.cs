@@ -7,6 +7,7 @@ using IdentityQueue.Algebra;
 using IdentityQueue.Algebra.Compile;
 using IdentityQueue.Algebra.Evaluate;
 using IdentityQueue.Algebra.Fields;
+using IdentityQueue.Algebra.Lower;
 using IdentityQueue.Algebra.Syntax;
 
 namespace IdentityQueue.Screening.Equivalence;
@@ -119,7 +120,7 @@ public readonly record struct Fingerprint(string Field, string Shape, UInt128 Le
         if (left is null || right is null) return null;
         var shape = string.Join(",", left.Program.OutputNames);
         if (shape != string.Join(",", right.Program.OutputNames)) return null;
-        var field = left.Field; // bound for a parameter characteristic
+        var field = left.Entry.Field; // bound for a parameter characteristic
         if (field.IsSeries) return null;
         var name = field.ToString();
         if (field.IsRationals)
@@ -154,18 +155,21 @@ public readonly record struct Fingerprint(string Field, string Shape, UInt128 Le
         return Make<ExtensionField<SmallPrimeField, SmallResidue>, ExtElement<SmallResidue>>(extensions, left, right, seed, name, shape, false);
     }
 
-    /// <summary>One side compiled as <c>side = 0</c> (a matrix side as <c>side = 0·side</c>), so that the program's outputs are the side's value.</summary>
-    private static CompiledIdentity? SideProgram(IdentityEntry entry, Expr side, IReadOnlyDictionary<string, BigInteger> parameters, Limits limits)
+    /// <summary>
+    /// One side lowered as <c>side = 0</c> (a matrix side as <c>side = 0·side</c>), so that the program's outputs are the
+    /// side's value. Lowered only: the print needs no bounds (<see cref="Algebra.Bounds.BoundAnalysis"/> is a pass of its own, skipped here).
+    /// </summary>
+    private static LoweredIdentity? SideProgram(IdentityEntry entry, Expr side, IReadOnlyDictionary<string, BigInteger> parameters, Limits limits)
     {
         var zero = new IntegerLiteral(BigInteger.Zero, side.Position);
-        var scalar = IdentityCompiler.Compile(entry with { Left = side, Right = zero }, parameters, limits);
+        var scalar = Lowering.Lower(entry with { Left = side, Right = zero }, parameters, limits);
         if (scalar.Success) return scalar.Value;
         var zeroMatrix = new ProductExpr([new ProductFactor(zero, false, side.Position), new ProductFactor(side, false, side.Position)], side.Position);
-        var matrix = IdentityCompiler.Compile(entry with { Left = side, Right = zeroMatrix }, parameters, limits);
-        return matrix.Success && matrix.Value.IsMatrixIdentity ? matrix.Value : null;
+        var matrix = Lowering.Lower(entry with { Left = side, Right = zeroMatrix }, parameters, limits);
+        return matrix.Success && matrix.Value.Program.OutputNames.Length > 0 ? matrix.Value : null;
     }
 
-    private static Fingerprint? Make<TField, T>(TField[] fields, CompiledIdentity left, CompiledIdentity right, RunSeed seed,
+    private static Fingerprint? Make<TField, T>(TField[] fields, LoweredIdentity left, LoweredIdentity right, RunSeed seed,
         string name, string shape, bool heightMatters)
         where TField : struct, IField<T> where T : struct
     {
@@ -191,8 +195,9 @@ public readonly record struct Fingerprint(string Field, string Shape, UInt128 Le
             var weights = new T[program.Outputs.Length - first];
             for (var e = 0; e < weights.Length; e++)
             {
+                if (weights.Length == 1) { weights[e] = field.One; break; }
                 var random = new Xoshiro256(Hash(seed, "entry", f, e.ToString(System.Globalization.CultureInfo.InvariantCulture)));
-                weights[e] = weights.Length == 1 ? field.One : field.Sample(ref random);
+                weights[e] = field.Sample(ref random);
             }
             var found = 0;
             for (var k = 0; found < Points && k < Points + MaxSkipped; k++)
@@ -233,7 +238,20 @@ public readonly record struct Fingerprint(string Field, string Shape, UInt128 Le
     }
 
     /// <summary>The generator that samples variable <paramref name="name"/> at point <paramref name="k"/> of field <paramref name="f"/>.</summary>
-    internal static Xoshiro256 PointRandom(RunSeed seed, int f, int k, string name) => new(Hash(seed, "point", f, k, name));
+    internal static Xoshiro256 PointRandom(RunSeed seed, int f, int k, string name)
+    {
+        // A name has one value per point across a catalogue: its hash is computed once (a SHA-256 per variable, point and
+        // field would cost more than evaluating most sides). Cleared past MaxPointSeeds.
+        if (PointSeeds.TryGetValue((seed.Value, f, k, name), out var known)) return new Xoshiro256(known);
+        if (PointSeeds.Count >= MaxPointSeeds) PointSeeds.Clear();
+        var hash = Hash(seed, "point", f, k, name);
+        PointSeeds.TryAdd((seed.Value, f, k, name), hash);
+        return new Xoshiro256(hash);
+    }
+
+    private const int MaxPointSeeds = 1 << 16;
+
+    private static readonly ConcurrentDictionary<(ulong Seed, int Field, int Point, string Name), ulong> PointSeeds = new();
 
     private static void Append(IncrementalHash hash, int field, int point, BigInteger[] coefficients)
     {

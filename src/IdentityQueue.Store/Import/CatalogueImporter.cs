@@ -101,7 +101,7 @@ public sealed class CatalogueImporter(StoreConnection store)
         try
         {
             var summary = Load(path, catalogueId, name, seed, options, clock);
-            if (summary.Entries > 0 || summary.Rejections > 0) return Result<ImportSummary>.Ok(summary);
+            if (summary.Entries > 0 || summary.Rejections > 0) return Result<ImportSummary>.Ok(WithGroups(summary, options, clock));
             // Only blank lines, comments or a CSV header: no catalogue is left behind for it.
             using var delete = _db.Command("DELETE FROM catalogue WHERE id = @id");
             delete.Parameter("@id", catalogueId);
@@ -116,6 +116,14 @@ public sealed class CatalogueImporter(StoreConnection store)
             delete.ExecuteNonQuery();
             throw;
         }
+    }
+
+    /// <summary>The equivalence groups of the new catalogue (#15 point 4, <see cref="CatalogueGrouping"/>), unless <see cref="ImportOptions.GroupEquivalents"/> is off.</summary>
+    private ImportSummary WithGroups(ImportSummary summary, ImportOptions options, Stopwatch clock)
+    {
+        if (!options.GroupEquivalents || summary.Instances == 0) return summary;
+        var grouping = new CatalogueGrouping(store).Group(summary.CatalogueId, options.Limits, options.GroupingThreads);
+        return summary with { Grouping = grouping, Elapsed = clock.Elapsed };
     }
 
     private ImportSummary Load(string path, long catalogueId, string name, long seed, ImportOptions options, Stopwatch clock)

@@ -239,6 +239,9 @@ public sealed class CatalogueReimporter(StoreConnection store)
             counts.ExecuteNonQuery();
         }
         transaction.Commit();
+        // New or edited instances join the catalogue's equivalence groups (kept rows stay; a group whose representative
+        // went has its row removed with it and is grouped afresh).
+        if (options.GroupEquivalents && added > 0) new CatalogueGrouping(store).Group(catalogueId, options.Limits, options.GroupingThreads);
 
         return Result<ReimportSummary>.Ok(new ReimportSummary(catalogueId, name, path, version + 1, file.Lines, file.Entries, file.Instances.Count,
             file.Rejections.Count, kept.Count, relabelled, added, removed.Count, [.. file.Rejections.Take(options.RejectionsListed)], clock.Elapsed)

@@ -19,6 +19,15 @@ public sealed record ImportOptions
 
     /// <summary>The open family budget of the file's open-ended families (<c>--open-budget</c>); null for the default (64 instances, 8 at a time).</summary>
     public Screening.Catalogues.OpenFamilyBudget? OpenBudget { get; init; }
+
+    /// <summary>
+    /// Whether the import fingerprints the new candidates and groups those that are the same identity written differently
+    /// (<see cref="CatalogueGrouping"/>; members share their representative's screening). On by default; <c>--no-grouping</c>.
+    /// </summary>
+    public bool GroupEquivalents { get; init; } = true;
+
+    /// <summary>Threads for the fingerprints; null for the number of cores.</summary>
+    public int? GroupingThreads { get; init; }
 }
 
 /// <summary>A catalogue entry that was not imported: where, what, and why (a row of <c>rejection</c>).</summary>
@@ -52,4 +61,7 @@ public sealed record ImportSummary(
 {
     /// <summary>What was accepted but deserves a word (an unknown CSV column, ignored), each once; empty for most imports.</summary>
     public IReadOnlyList<string> Warnings { get; init; } = [];
+
+    /// <summary>The equivalence groups found (#15 point 4), or null when grouping was off.</summary>
+    public GroupingSummary? Grouping { get; init; }
 }

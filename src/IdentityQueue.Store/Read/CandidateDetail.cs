@@ -38,6 +38,9 @@ public sealed record CandidateDetail(StoredCandidate Candidate, ResultDetail? Re
     /// <summary>For a refuted candidate: lhs − rhs recovered, when it was.</summary>
     public StoredDifference? Difference { get; init; }
 
+    /// <summary>Its equivalence group (#15 point 4): the representative it is the same identity as, or the members it represents; null when in none.</summary>
+    public StoredEquivalence? Equivalence { get; init; }
+
     /// <summary>The candidate's state; a candidate without a result row is pending.</summary>
     public ResultState State => Result?.State ?? ResultState.Pending;
 }
@@ -69,6 +72,7 @@ public sealed class CandidateReads(StoreConnection store)
         {
             Counterexample = RefutationDetailReads.Counterexample(store, ids[0]),
             Difference = RefutationDetailReads.Difference(store, ids[0]),
+            Equivalence = EquivalenceReads.Of(store, ids[0]),
         };
     }
 

@@ -84,6 +84,7 @@ public sealed class IdentityStoreContext(DbContextOptions<IdentityStoreContext> 
             e.Property(x => x.UpdatedAt).HasColumnName("updated_at").HasDefaultValueSql(Now);
             e.Property(x => x.ClaimedBy).HasColumnName("claimed_by");
             e.Property(x => x.ClaimedAt).HasColumnName("claimed_at");
+            e.Property(x => x.SharedFrom).HasColumnName("shared_from");
             e.HasOne<CandidateRow>().WithOne().HasForeignKey<ResultRow>(x => x.CandidateId)
                 .HasConstraintName("fk_result_candidate").OnDelete(DeleteBehavior.Cascade);
             e.HasOne<TrialRow>().WithMany().HasForeignKey(x => x.WitnessTrialId)
@@ -176,6 +177,7 @@ public sealed class IdentityStoreContext(DbContextOptions<IdentityStoreContext> 
             e.Property(x => x.CandidateId).HasColumnName("candidate_id").ValueGeneratedNever();
             e.Property(x => x.GroupCandidateId).HasColumnName("group_candidate_id");
             e.Property(x => x.Swapped).HasColumnName("swapped");
+            e.Property(x => x.FalseMatchBits).HasColumnName("false_match_bits");
             e.HasOne<CandidateRow>().WithOne().HasForeignKey<EquivalenceRow>(x => x.CandidateId)
                 .HasConstraintName("fk_equivalence_candidate").OnDelete(DeleteBehavior.Cascade);
             e.HasOne<CandidateRow>().WithMany().HasForeignKey(x => x.GroupCandidateId)

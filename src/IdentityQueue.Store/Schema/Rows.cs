@@ -71,6 +71,11 @@ public sealed class ResultRow
     /// <summary>The worker screening the candidate now, and since when; null when no one is.</summary>
     public string? ClaimedBy { get; set; }
     public DateTime? ClaimedAt { get; set; }
+    /// <summary>
+    /// The representative whose result this one shares (a member of an equivalence group, see <see cref="EquivalenceRow"/>):
+    /// state, degree bound and error bound are its, not screened here; null for a result screened on its own.
+    /// </summary>
+    public long? SharedFrom { get; set; }
 }
 
 /// <summary>A row of <c>trial</c>: one evaluation of lhs − rhs at a random point.</summary>
@@ -192,6 +197,8 @@ public sealed class EquivalenceRow
     public long GroupCandidateId { get; set; }
     /// <summary>True when the sides are swapped with respect to the representative's.</summary>
     public bool Swapped { get; set; }
+    /// <summary>k of "the chance of a false match is at most 2^-k" (Fingerprint.FalseMatchLog2, rounded down); null when not bounded.</summary>
+    public int? FalseMatchBits { get; set; }
 }
 
 /// <summary>

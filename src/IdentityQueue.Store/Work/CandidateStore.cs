@@ -199,7 +199,7 @@ public sealed class CandidateStore(StoreConnection store)
                 state = excluded.state, degree_bound = excluded.degree_bound, height_bound_log2 = excluded.height_bound_log2,
                 trials_zero = excluded.trials_zero, error_bound_log2 = excluded.error_bound_log2,
                 witness_trial_id = excluded.witness_trial_id, certified = excluded.certified, message = excluded.message,
-                updated_at = excluded.updated_at, claimed_by = NULL, claimed_at = NULL
+                updated_at = excluded.updated_at, claimed_by = NULL, claimed_at = NULL, shared_from = NULL
             WHERE @trials >= (SELECT COUNT(*) FROM trial t WHERE t.candidate_id = excluded.candidate_id)
             """, transaction);
         var p = new
@@ -213,7 +213,8 @@ public sealed class CandidateStore(StoreConnection store)
             INSERT INTO result (candidate_id, state, message, updated_at, claimed_by, claimed_at)
             VALUES (@candidate, @state, @message, CURRENT_TIMESTAMP, NULL, NULL)
             ON CONFLICT (candidate_id) DO UPDATE SET
-                state = excluded.state, message = excluded.message, updated_at = excluded.updated_at, claimed_by = NULL, claimed_at = NULL
+                state = excluded.state, message = excluded.message, updated_at = excluded.updated_at, claimed_by = NULL, claimed_at = NULL,
+                shared_from = NULL
             """, transaction);
         var u = new { Candidate = unscreened.Parameter("@candidate"), State = unscreened.Parameter("@state"), Message = unscreened.Parameter("@message") };
         using var details = new DetailInsert(_db, transaction);
@@ -246,6 +247,11 @@ public sealed class CandidateStore(StoreConnection store)
             if (outcome.Details?.Difference is { } difference && details.Difference(outcome.CandidateId, difference) is { } insert)
                 Run(insert, isResult: false);
         }
+        // Members of the groups of representatives that settled share their result, in this transaction (after their rows).
+        using var share = _db.Command(SharedResults.Share(_store), transaction);
+        var settled = outcomes.Where(o => existing.Contains(o.CandidateId) && StateOf(o) is ResultStates.Refuted or ResultStates.Survived).Select(o => o.CandidateId).ToList();
+        share.Parameter("@representatives", _store.IdList(settled));
+        if (settled.Count > 0) Run(share, isResult: false);
         if (batch is { BatchCommands.Count: > 0 })
         {
             batch.ExecuteNonQuery();

@@ -106,7 +106,8 @@ public sealed class WorkQueue(StoreConnection store)
     /// first; no ids when nothing is pending. <paramref name="beforeCommit"/> runs with the rows taken but not yet committed
     /// (the planner enqueues their jobs there): if it throws, or the process dies before the commit, the rows stay pending,
     /// so no candidate is ever left queued without a job (a job enqueued before a failed commit finds its candidates pending
-    /// and screens them, harmlessly).
+    /// and screens them, harmlessly). A member of an equivalence group waits while its representative is not final
+    /// (<see cref="SharedResults"/>).
     /// </summary>
     public (WorkStage Stage, IReadOnlyList<long> Ids) TakePending(int max, Action<WorkStage, IReadOnlyList<long>>? beforeCommit = null) =>
         TakePending(ScreeningPolicy.Default.Stages, max, beforeCommit);
@@ -125,8 +126,8 @@ public sealed class WorkQueue(StoreConnection store)
             var upper = stage.MaxZeroTrials is null ? "" : " AND trials_zero <= @most";
             using var take = _db.Command($"""
                 UPDATE result SET state = '{ResultStates.Queued}', updated_at = CURRENT_TIMESTAMP
-                WHERE candidate_id IN (SELECT candidate_id FROM result WHERE state = '{ResultStates.Pending}'
-                                       AND trials_zero >= @least{upper}
+                WHERE candidate_id IN (SELECT candidate_id FROM result w WHERE state = '{ResultStates.Pending}'
+                                       AND trials_zero >= @least{upper} AND NOT {SharedResults.WaitsForRepresentative("w")}
                                        ORDER BY candidate_id LIMIT @max{lockRows})
                 RETURNING candidate_id
                 """, transaction);
