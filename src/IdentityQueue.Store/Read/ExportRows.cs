@@ -70,23 +70,19 @@ public sealed class ExportRows(StoreConnection store)
     public static readonly IReadOnlySet<string> JsonColumns = new HashSet<string>(["params", "witness_polynomial", "witness_point", "counterexample_point"], StringComparer.Ordinal);
 
     /// <summary>One row per candidate: the candidate, its result and its witness (if refuted). Portable SQL.</summary>
-    public const string Query = """
+    public const string Query = $"""
         SELECT c.id, k.name AS catalogue, c.label, c.family, c.params, c.lhs, c.rhs, c.field,
                r.state, r.degree_bound, r.error_bound_log2, r.certified, r.message,
                (SELECT count(*) FROM trial t WHERE t.candidate_id = c.id) AS trials,
                w.modulus AS witness_modulus, w.defining_polynomial AS witness_polynomial, w.point AS witness_point,
                w.difference AS witness_difference, w.entry AS witness_entry,
                r.height_bound_log2, r.trials_zero,
-               x.point AS x_point, x.lhs_value AS x_lhs, x.rhs_value AS x_rhs, x.entry AS x_entry, x.max_abs AS x_max_abs,
-               x.exhaustive AS x_exhaustive,
-               d.candidate_id AS d_id, d.difference AS d_difference, d.terms AS d_terms, d.total_degree AS d_total_degree,
-               d.terms_estimated AS d_terms_estimated
+               {RefutationDetailSql.Columns}
         FROM candidate c
         JOIN catalogue k ON k.id = c.catalogue_id
         LEFT JOIN result r ON r.candidate_id = c.id
         LEFT JOIN trial w ON w.id = r.witness_trial_id
-        LEFT JOIN counterexamples x ON x.candidate_id = c.id
-        LEFT JOIN differences d ON d.candidate_id = c.id
+        {RefutationDetailSql.Joins}
         WHERE 1 = 1
         """;
 
@@ -101,12 +97,8 @@ public sealed class ExportRows(StoreConnection store)
             r.Long("trials"), r.NullableText("witness_modulus"), r.NullableText("witness_polynomial"), r.NullableText("witness_point"),
             r.NullableText("witness_difference"), r.NullableText("witness_entry"), r.NullableDouble("height_bound_log2"), r.NullableLong("trials_zero"))
         {
-            Counterexample = r.NullableText("x_point") is { } point
-                ? new StoredCounterexample(point, r.Text("x_lhs"), r.Text("x_rhs"), r.NullableText("x_entry"), r.Long("x_max_abs"), r.Long("x_exhaustive") != 0)
-                : null,
-            Difference = r.NullableLong("d_id") is null ? null
-                : new StoredDifference(r.NullableText("d_difference"), r.NullableLong("d_terms"),
-                    r.NullableLong("d_total_degree") is { } degree ? (int)degree : null, r.Long("d_terms_estimated") != 0),
+            Counterexample = RefutationDetailSql.Counterexample(r),
+            Difference = RefutationDetailSql.Difference(r),
         });
     }
 }

@@ -181,10 +181,7 @@ public sealed class FamilyReads(StoreConnection store)
     /// </summary>
     public const string FirstFailuresQuery = $"""
         SELECT k.name AS catalogue, c.family, c.id, c.label, c.params,
-               x.point AS x_point, x.lhs_value AS x_lhs, x.rhs_value AS x_rhs, x.entry AS x_entry, x.max_abs AS x_max_abs,
-               x.exhaustive AS x_exhaustive,
-               d.candidate_id AS d_id, d.difference AS d_difference, d.terms AS d_terms, d.total_degree AS d_total_degree,
-               d.terms_estimated AS d_terms_estimated
+               {RefutationDetailSql.Columns}
         FROM candidate c
         JOIN catalogue k ON k.id = c.catalogue_id
         JOIN result r ON r.candidate_id = c.id
@@ -193,20 +190,15 @@ public sealed class FamilyReads(StoreConnection store)
               WHERE f.family IS NOT NULL AND fr.state = '{ResultStates.Refuted}'
               GROUP BY f.catalogue_id, f.family) m
           ON m.catalogue_id = c.catalogue_id AND m.family = c.family AND m.first_position = COALESCE(c.position, -1)
-        LEFT JOIN counterexamples x ON x.candidate_id = c.id
-        LEFT JOIN differences d ON d.candidate_id = c.id
+        {RefutationDetailSql.Joins}
         WHERE c.family IS NOT NULL AND r.state = '{ResultStates.Refuted}'
         """;
 
     /// <summary>A row of <see cref="FirstFailuresQuery"/> as the catalogue, the family and its first failure.</summary>
     internal static (string Catalogue, string Family, FirstFailure Failure) ReadFirstFailure(ReadRow r) =>
         (r.Text("catalogue"), r.Text("family"), new FirstFailure(r.Long("id"), r.Text("label"), r.NullableText("params"),
-            r.NullableText("x_point") is { } point
-                ? new StoredCounterexample(point, r.Text("x_lhs"), r.Text("x_rhs"), r.NullableText("x_entry"), r.Long("x_max_abs"), r.Long("x_exhaustive") != 0)
-                : null,
-            r.NullableLong("d_id") is null ? null
-                : new StoredDifference(r.NullableText("d_difference"), r.NullableLong("d_terms"),
-                    r.NullableLong("d_total_degree") is { } degree ? (int)degree : null, r.Long("d_terms_estimated") != 0)));
+            RefutationDetailSql.Counterexample(r),
+            RefutationDetailSql.Difference(r)));
 
     /// <summary>Every family with this label (one per catalogue that has it), by catalogue name; empty when none.</summary>
     public IReadOnlyList<FamilyDetail> Find(string family)

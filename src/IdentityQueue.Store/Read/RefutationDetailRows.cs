@@ -63,3 +63,35 @@ public static class RefutationDetailReads
             """, [("@id", candidateId)], r => new StoredDifference(r.NullableText("difference"), r.NullableLong("terms"),
             r.NullableLong("total_degree") is { } d ? (int)d : null, r.Long("terms_estimated") != 0)).FirstOrDefault();
 }
+
+/// <summary>
+/// The one way a read model brings a candidate's refutation details: the select columns (<c>x_*</c>, <c>d_*</c>), the
+/// joins (the query must alias <c>candidate c</c> and <c>result r</c>) and the readers of a row. A member of an
+/// equivalence group whose result is shared from its representative (<c>result.shared_from</c>) shows the
+/// representative's details, unless its sides are swapped (then the values would read the other way round, and it shows none).
+/// </summary>
+internal static class RefutationDetailSql
+{
+    public const string Columns = """
+        x.point AS x_point, x.lhs_value AS x_lhs, x.rhs_value AS x_rhs, x.entry AS x_entry, x.max_abs AS x_max_abs,
+               x.exhaustive AS x_exhaustive,
+               d.candidate_id AS d_id, d.difference AS d_difference, d.terms AS d_terms, d.total_degree AS d_total_degree,
+               d.terms_estimated AS d_terms_estimated
+        """;
+
+    public const string Joins = """
+        LEFT JOIN equivalence se ON se.candidate_id = c.id AND se.group_candidate_id = r.shared_from
+        LEFT JOIN counterexamples x ON x.candidate_id = CASE WHEN se.swapped THEN c.id ELSE COALESCE(r.shared_from, c.id) END
+        LEFT JOIN differences d ON d.candidate_id = CASE WHEN se.swapped THEN c.id ELSE COALESCE(r.shared_from, c.id) END
+        """;
+
+    public static StoredCounterexample? Counterexample(ReadRow r) =>
+        r.NullableText("x_point") is { } point
+            ? new StoredCounterexample(point, r.Text("x_lhs"), r.Text("x_rhs"), r.NullableText("x_entry"), r.Long("x_max_abs"), r.Long("x_exhaustive") != 0)
+            : null;
+
+    public static StoredDifference? Difference(ReadRow r) =>
+        r.NullableLong("d_id") is null ? null
+            : new StoredDifference(r.NullableText("d_difference"), r.NullableLong("d_terms"),
+                r.NullableLong("d_total_degree") is { } degree ? (int)degree : null, r.Long("d_terms_estimated") != 0);
+}

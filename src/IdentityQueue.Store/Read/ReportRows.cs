@@ -133,13 +133,9 @@ public sealed class ReportReads(StoreConnection store, IReadOnlyList<string> cat
 
     private static string RefutationsQuery(string where, int limit) => $"""
         SELECT k.name, c.id, c.label, c.lhs, c.rhs, c.field,
-               x.point AS x_point, x.lhs_value AS x_lhs, x.rhs_value AS x_rhs, x.entry AS x_entry, x.max_abs AS x_max_abs,
-               x.exhaustive AS x_exhaustive,
-               d.candidate_id AS d_id, d.difference AS d_difference, d.terms AS d_terms, d.total_degree AS d_total_degree,
-               d.terms_estimated AS d_terms_estimated
+               {RefutationDetailSql.Columns}
         FROM candidate c JOIN catalogue k ON k.id = c.catalogue_id JOIN result r ON r.candidate_id = c.id
-             LEFT JOIN counterexamples x ON x.candidate_id = c.id
-             LEFT JOIN differences d ON d.candidate_id = c.id
+             {RefutationDetailSql.Joins}
         WHERE r.state = '{ResultStates.Refuted}'{where}
         ORDER BY k.name, c.position, c.id
         LIMIT {limit.ToString(CultureInfo.InvariantCulture)}
@@ -196,12 +192,8 @@ public sealed class ReportReads(StoreConnection store, IReadOnlyList<string> cat
     public IReadOnlyList<RefutationSummary> Refutations(int limit) =>
         Rows(RefutationsQuery(_filter.Condition, limit), r => new RefutationSummary(r.Text("name"), r.Long("id"), r.Text("label"), r.Text("lhs"),
             r.Text("rhs"), r.Text("field"),
-            r.NullableText("x_point") is { } point
-                ? new StoredCounterexample(point, r.Text("x_lhs"), r.Text("x_rhs"), r.NullableText("x_entry"), r.Long("x_max_abs"), r.Long("x_exhaustive") != 0)
-                : null,
-            r.NullableLong("d_id") is null ? null
-                : new StoredDifference(r.NullableText("d_difference"), r.NullableLong("d_terms"),
-                    r.NullableLong("d_total_degree") is { } degree ? (int)degree : null, r.Long("d_terms_estimated") != 0)));
+            RefutationDetailSql.Counterexample(r),
+            RefutationDetailSql.Difference(r)));
 
     public long RefutationsTotal() => Rows(RefutationsCountQuery(_filter.Condition), r => r.Long("n"))[0];
 

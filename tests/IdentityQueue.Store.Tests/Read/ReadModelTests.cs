@@ -1,3 +1,4 @@
+using IdentityQueue.Store.Import;
 using IdentityQueue.Store.Read;
 using IdentityQueue.Store.Schema;
 
@@ -105,5 +106,31 @@ public sealed class ReadModelTests
         Assert.Equal(ExportRows.Columns.Count, a.Values().Length);
         Assert.Equal("survived", a.Values()[ExportRows.Columns.ToList().IndexOf("state")]);
         Assert.Equal(1L, a.Values()[ExportRows.Columns.ToList().IndexOf("certified")]);
+    }
+
+    [Fact]
+    public void ExportRows_OfAMemberWhoseResultIsShared_ShowTheRepresentativesDetails_UnlessItsSidesAreSwapped()
+    {
+        // (x+y)^2 = x^2 + y^2 lacks the cross term 2xy (the binomial theorem, common practice): at x = y = 1 the sides are
+        // 4 and 2. "again" is the same identity written in another order, "mirror" the same with its sides swapped.
+        using var store = TempStore.Create();
+        store.Import(store.File("c.idq", "wrong: (x+y)^2 = x^2 + y^2\nagain: (y+x)^2 = y^2 + x^2\nmirror: x^2 + y^2 = (x+y)^2\n"),
+            new ImportOptions { Seed = 5 });
+        Assert.Equal(["again|1|0", "mirror|1|1"],
+            store.Rows("SELECT c.label, e.group_candidate_id, e.swapped FROM equivalence e JOIN candidate c ON c.id = e.candidate_id ORDER BY c.id")
+                .Select(r => $"{r[0]}|{r[1]}|{r[2]}"));
+        // The representative's refutation details, and the members' results shared from it (as CandidateStore.Save writes them).
+        store.Execute("UPDATE result SET state = 'refuted' WHERE candidate_id = 1");
+        store.Execute("UPDATE result SET state = 'refuted', shared_from = 1 WHERE candidate_id IN (2, 3)");
+        store.Execute("""INSERT INTO counterexample (candidate_id, point, lhs_value, rhs_value, max_abs, exhaustive, points_tried) VALUES (1, '{"x":"1","y":"1"}', '4', '2', 1, 1, 4)""");
+        store.Execute("INSERT INTO recovered_difference (candidate_id, difference, terms, total_degree, terms_estimated) VALUES (1, '2*x*y', 1, 2, 0)");
+
+        var rows = new ExportRows(store.Connection).Read([ResultState.Refuted]).ToDictionary(r => r.Label);
+        Assert.Equal("fails at x = 1, y = 1: lhs = 4, rhs = 2", rows["wrong"].Counterexample!.Describe());
+        Assert.Equal(rows["wrong"].Counterexample, rows["again"].Counterexample);
+        Assert.Equal(rows["wrong"].Difference, rows["again"].Difference);
+        // Read the other way round the values would be wrong (lhs = 2, rhs = 4), so a swapped member shows none.
+        Assert.Null(rows["mirror"].Counterexample);
+        Assert.Null(rows["mirror"].Difference);
     }
 }
