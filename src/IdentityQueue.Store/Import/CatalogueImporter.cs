@@ -126,6 +126,25 @@ public sealed class CatalogueImporter(StoreConnection store)
         return summary with { Grouping = grouping, Elapsed = clock.Elapsed };
     }
 
+    /// <summary>The insert of one catalogue candidate, its values as parameters (<c>@catalogue</c>, <c>@label</c>, …); the re-import uses it too.</summary>
+    internal const string CandidateInsert = """
+        INSERT INTO candidate (catalogue_id, label, family, params, lhs, rhs, field, position, lhs_column, rhs_column)
+        VALUES (@catalogue, @label, @family, @params, @lhs, @rhs, @field, @position, @lhs_column, @rhs_column)
+        """;
+
+    /// <summary>Gives every candidate of the catalogue that has no result row a pending one (after an import or a new version).</summary>
+    internal static void InsertPendingResults(DbConnection db, long catalogueId, DbTransaction transaction)
+    {
+        using var results = db.Command($"""
+            INSERT INTO result (candidate_id, state)
+            SELECT c.id, '{ResultStates.Pending}' FROM candidate c
+            WHERE c.catalogue_id = @id AND NOT EXISTS (SELECT 1 FROM result r WHERE r.candidate_id = c.id)
+            ON CONFLICT (candidate_id) DO NOTHING
+            """, transaction);
+        results.Parameter("@id", catalogueId);
+        results.ExecuteNonQuery();
+    }
+
     private ImportSummary Load(string path, long catalogueId, string name, long seed, ImportOptions options, Stopwatch clock)
     {
         var reader = new CatalogueReader(path, options.Limits, options.OpenBudget);
@@ -162,16 +181,7 @@ public sealed class CatalogueImporter(StoreConnection store)
         rows.Finish();
 
         using var finish = _db.BeginTransaction();
-        using (var results = _db.Command($"""
-            INSERT INTO result (candidate_id, state)
-            SELECT c.id, '{ResultStates.Pending}' FROM candidate c
-            WHERE c.catalogue_id = @id AND NOT EXISTS (SELECT 1 FROM result r WHERE r.candidate_id = c.id)
-            ON CONFLICT (candidate_id) DO NOTHING
-            """, finish))
-        {
-            results.Parameter("@id", catalogueId);
-            results.ExecuteNonQuery();
-        }
+        InsertPendingResults(_db, catalogueId, finish);
         // An open-ended family is recorded with its first chunk, in the transaction that makes the chunk's results pending.
         var families = new OpenFamilies(store);
         foreach (var (family, o, count) in open) families.Add(catalogueId, family, o, count, finish);
@@ -203,10 +213,7 @@ public sealed class CatalogueImporter(StoreConnection store)
         {
             _db = db;
             _transaction = db.BeginTransaction();
-            _candidate = db.Command("""
-                INSERT INTO candidate (catalogue_id, label, family, params, lhs, rhs, field, position, lhs_column, rhs_column)
-                VALUES (@catalogue, @label, @family, @params, @lhs, @rhs, @field, @position, @lhs_column, @rhs_column)
-                """, _transaction);
+            _candidate = db.Command(CandidateInsert, _transaction);
             _candidate.Parameter("@catalogue", catalogueId);
             _label = _candidate.Parameter("@label");
             _family = _candidate.Parameter("@family");

@@ -142,10 +142,7 @@ public sealed class CatalogueReimporter(StoreConnection store)
                 lhs_column = @lhs_column, rhs_column = @rhs_column
             WHERE id = @id
             """, transaction))
-        using (var insert = _db.Command("""
-            INSERT INTO candidate (catalogue_id, label, family, params, lhs, rhs, field, position, lhs_column, rhs_column)
-            VALUES (@catalogue, @label, @family, @params, @lhs, @rhs, @field, @position, @lhs_column, @rhs_column)
-            """, transaction))
+        using (var insert = _db.Command(CatalogueImporter.CandidateInsert, transaction))
         {
             var updateRow = new CandidateParameters(update);
             var id = update.Parameter("@id");
@@ -215,16 +212,7 @@ public sealed class CatalogueReimporter(StoreConnection store)
                 reject.ExecuteNonQuery();
             }
         }
-        using (var results = _db.Command($"""
-            INSERT INTO result (candidate_id, state)
-            SELECT c.id, '{ResultStates.Pending}' FROM candidate c
-            WHERE c.catalogue_id = @id AND NOT EXISTS (SELECT 1 FROM result r WHERE r.candidate_id = c.id)
-            ON CONFLICT (candidate_id) DO NOTHING
-            """, transaction))
-        {
-            results.Parameter("@id", catalogueId);
-            results.ExecuteNonQuery();
-        }
+        CatalogueImporter.InsertPendingResults(_db, catalogueId, transaction);
         using (var counts = _db.Command("""
             UPDATE catalogue SET source = @source, version = @version, entries = @entries, instances = @instances, rejections = @rejections
             WHERE id = @id
