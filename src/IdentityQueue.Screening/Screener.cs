@@ -69,8 +69,7 @@ public static class Screener
             if (left <= TimeSpan.Zero)
                 return Undecided(identity, trials, accumulated, $"the time budget (TimePerCandidate = {options.Budget}) ran out at 2^{accumulated:F1} of the target {options.Target}");
             var blocked = BlockTrialRunner.Handles(identity, rung);
-            var perTrial = options.Costs.TrialTime(identity, rung, cost);
-            var oneTrial = blocked ? perTrial * BlockTrialRunner.PaddedLanes(rung, 1) : perTrial;
+            var oneTrial = options.Costs.TrialTime(identity, rung, cost);
             if (oneTrial > left)
                 return Undecided(identity, trials, accumulated, TooCostly(cost, oneTrial, rung, options.Budget, left, trials.Count));
             TrialRecord[] stage;
@@ -80,7 +79,7 @@ public static class Screener
                 {
                     var lanes = StageLanes(identity, rung, options, accumulated, trials.Count);
                     // A block costs its padded lanes: fewer lanes when all of them would not fit what is left.
-                    while (lanes > 1 && perTrial * BlockTrialRunner.PaddedLanes(rung, lanes) > left) lanes--;
+                    while (lanes > 1 && options.Costs.TrialTime(identity, rung, cost, lanes) > left) lanes--;
                     var seeds = new ulong[lanes];
                     for (var l = 0; l < lanes; l++) seeds[l] = TrialSeed(options.Seed, candidateKey, seq + l);
                     block ??= BlockProgram.Prepare(identity.Program);
@@ -132,8 +131,7 @@ public static class Screener
         var cost = TrialCost.Of(identity.Program, OddCharacteristic(identity));
         var rung = FieldLadder.Choose(identity, FieldLadder.Rungs(identity.Field, options.Limits.MaxFieldBits), 0, options.Policy.MinBitsPerTrial);
         if (rung is null) return new TrialEstimate(cost, null, TimeSpan.Zero, null);
-        var perTrial = options.Costs.TrialTime(identity, rung, cost);
-        var oneTrial = BlockTrialRunner.Handles(identity, rung) ? perTrial * BlockTrialRunner.PaddedLanes(rung, 1) : perTrial;
+        var oneTrial = options.Costs.TrialTime(identity, rung, cost);
         var message = oneTrial > options.Budget.PerCandidate ? TooCostly(cost, oneTrial, rung, options.Budget, options.Budget.PerCandidate, 0) : null;
         return new TrialEstimate(cost, rung, oneTrial, message);
     }
