@@ -164,12 +164,15 @@ public sealed class CostModel
         {
             foreach (var c in new[] { products.Item2, permanents.Item2, determinants.Item2 }) FastestBlock(c, rung, full, runs: 1);
         } while (warm.Elapsed < WarmUp);
+        // Other work on the machine only ever slows a measurement down, and so does code the JIT has not optimised yet: each
+        // rate is the least of the rounds measured.
         var speed = Measure();
         for (var round = 0; round < MaxCalibrationRounds; round++)
         {
             var again = Measure();
-            if (Agree(speed, again)) return again;
-            speed = again;
+            var agree = Agree(speed, again);
+            speed = Least(speed, again);
+            if (agree) break;
         }
         return speed;
 
@@ -203,6 +206,11 @@ public sealed class CostModel
     /// <summary>How many times a calibration measures again when its measurements disagree (the JIT still optimising).</summary>
     private const int MaxCalibrationRounds = 4;
 
+    /// <summary>Each rate the least of the two measurements'.</summary>
+    private static RungSpeed Least(RungSpeed a, RungSpeed b) =>
+        new(Math.Min(a.NanosecondsPerInstruction, b.NanosecondsPerInstruction), Math.Min(a.NanosecondsPerPermanentOperation, b.NanosecondsPerPermanentOperation),
+            Math.Min(a.NanosecondsPerEliminationOperation, b.NanosecondsPerEliminationOperation), Math.Min(a.NanosecondsPerConstant, b.NanosecondsPerConstant));
+
     /// <summary>Two measurements of a rung agree when every rate is within a third of the other.</summary>
     private static bool Agree(RungSpeed a, RungSpeed b)
     {
@@ -226,13 +234,13 @@ public sealed class CostModel
     /// on the block rungs, else one trial), the fastest of several runs, each timed around the call in fractional
     /// microseconds: a small program's trial takes a few microseconds, and whole microseconds would blur the slope.
     /// </summary>
-    private static double FastestBlock(CompiledIdentity identity, Rung rung, int trials, int runs = 25)
+    private static double FastestBlock(CompiledIdentity identity, Rung rung, int trials, int runs = 40)
     {
         var best = double.MaxValue;
         var block = BlockTrialRunner.Handles(identity, rung) ? BlockProgram.Prepare(identity.Program) : null;
         var seeds = new ulong[block is null ? 1 : trials];
         var clock = System.Diagnostics.Stopwatch.StartNew();
-        for (var run = 0; run < runs && (run < 5 || clock.ElapsedMilliseconds < 60); run++)
+        for (var run = 0; run < runs && (run < 7 || clock.ElapsedMilliseconds < 100); run++)
         {
             for (var l = 0; l < seeds.Length; l++) seeds[l] = (ulong)(run * 64 + l + 1);
             var start = System.Diagnostics.Stopwatch.GetTimestamp();

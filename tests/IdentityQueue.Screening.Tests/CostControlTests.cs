@@ -9,6 +9,7 @@ namespace IdentityQueue.Screening.Tests;
 /// times, a monster settled before it runs, a trial cancelled inside its kernel when the budget runs out, and a stop that
 /// keeps the finished trials.
 /// </summary>
+[Collection(nameof(TimedAlone))]
 public sealed class CostControlTests(ITestOutputHelper log)
 {
     /// <summary>
@@ -162,3 +163,10 @@ public sealed class CostControlTests(ITestOutputHelper log)
         Assert.Equal("60 s", TimeBudget.Default.ToString());
     }
 }
+
+/// <summary>
+/// Tests that time kernels against the cost model's estimate: they run alone, not beside the other test classes, which
+/// would share the two cores with them and slow one measurement down more than the other.
+/// </summary>
+[CollectionDefinition(nameof(TimedAlone), DisableParallelization = true)]
+public sealed class TimedAlone;
